@@ -1,0 +1,139 @@
+//! The import report: every row that could not be used, every value that was dropped, counts.
+
+use std::collections::BTreeMap;
+
+use serde::{Deserialize, Serialize};
+
+/// Why a row could not be used at all.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "reason", rename_all = "snake_case")]
+pub enum RejectReason {
+    /// A required value is empty.
+    MissingValue {
+        /// Column header as written in the file.
+        column: String,
+    },
+    /// A value that must be a number is not one.
+    NotANumber {
+        /// Column header.
+        column: String,
+        /// The text found.
+        value: String,
+    },
+    /// Price is zero, negative or absurdly large.
+    PriceOutOfRange {
+        /// The price found.
+        value: f64,
+    },
+    /// Model year before 1900 or after next year.
+    ModelYearOutOfRange {
+        /// The year found.
+        value: i64,
+        /// The latest year accepted.
+        latest_allowed: i32,
+    },
+    /// Odometer negative or above 1,000,000 miles.
+    MileageOutOfRange {
+        /// The mileage found, in miles.
+        value: f64,
+    },
+}
+
+impl RejectReason {
+    /// Short stable code used to count reasons.
+    #[must_use]
+    pub fn code(&self) -> &'static str {
+        match self {
+            RejectReason::MissingValue { .. } => "missing_value",
+            RejectReason::NotANumber { .. } => "not_a_number",
+            RejectReason::PriceOutOfRange { .. } => "price_out_of_range",
+            RejectReason::ModelYearOutOfRange { .. } => "model_year_out_of_range",
+            RejectReason::MileageOutOfRange { .. } => "mileage_out_of_range",
+        }
+    }
+}
+
+impl std::fmt::Display for RejectReason {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            RejectReason::MissingValue { column } => write!(f, "column '{column}' is empty"),
+            RejectReason::NotANumber { column, value } => {
+                write!(f, "column '{column}': '{value}' is not a number")
+            }
+            RejectReason::PriceOutOfRange { value } => {
+                write!(f, "asking price {value} is not between 1 and 10,000,000")
+            }
+            RejectReason::ModelYearOutOfRange {
+                value,
+                latest_allowed,
+            } => write!(
+                f,
+                "model year {value} is outside 1900..={latest_allowed}"
+            ),
+            RejectReason::MileageOutOfRange { value } => {
+                write!(f, "mileage {value:.0} mi is outside 0..=1,000,000")
+            }
+        }
+    }
+}
+
+/// A rejected row.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct RejectedRow {
+    /// Line in the file (1 is the header).
+    pub line: u64,
+    /// Why it was rejected.
+    #[serde(flatten)]
+    pub reason: RejectReason,
+}
+
+/// An optional value that was unreadable and dropped while its row was kept.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct DroppedValue {
+    /// Line in the file.
+    pub line: u64,
+    /// Column header.
+    pub column: String,
+    /// The text found.
+    pub value: String,
+    /// What was done instead.
+    pub note: String,
+}
+
+/// Summary of one import.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+pub struct ImportReport {
+    /// File name.
+    pub file_name: String,
+    /// Field separator used.
+    pub delimiter: String,
+    /// Data rows read.
+    pub rows_read: usize,
+    /// Rows imported.
+    pub rows_used: usize,
+    /// Rows rejected, each with line and reason.
+    pub rejected: Vec<RejectedRow>,
+    /// Rejections counted by reason code.
+    pub rejected_by_reason: BTreeMap<String, usize>,
+    /// Optional values dropped (row kept).
+    pub dropped_values: Vec<DroppedValue>,
+    /// How each recognised column was mapped: file header to field.
+    pub column_map: BTreeMap<String, String>,
+    /// Headers that matched no field and were ignored.
+    pub ignored_columns: Vec<String>,
+    /// Odometer unit of the file ("miles" or "kilometres").
+    pub odometer_unit: String,
+    /// Rows without a condition class, treated as used (≥ 1,000 mi) or new (< 1,000 mi).
+    pub condition_inferred: usize,
+}
+
+impl ImportReport {
+    /// Records a rejection.
+    pub fn reject(&mut self, line: u64, reason: RejectReason) {
+        *self
+            .rejected_by_reason
+            .entry(reason.code().to_owned())
+            .or_default() += 1;
+        self.rejected.push(RejectedRow { line, reason });
+    }
+}

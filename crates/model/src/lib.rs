@@ -1,0 +1,15 @@
+//! comptrail's valuation engine.
+//!
+//! Everything an appraisal computes lives here and runs without a window: import and clean a
+//! market, fit how price falls with age, mileage, variant and condition, choose and adjust
+//! comparables for a subject vehicle, reconcile them into a value with a band, and test how well
+//! the market supports that value. The command line and the desktop workbench call these same
+//! functions.
+
+pub mod condition;
+pub mod import;
+pub mod linalg;
+pub mod market;
+pub mod ols;
+pub mod stats;
+pub mod vocabulary;

@@ -1,0 +1,284 @@
+//! The imported market: one column per attribute, one row per listing.
+//!
+//! Columns rather than row structs keep a million listings compact and make the fit a straight
+//! scan. [`Market::listing`] gives an owned row for display and for the saved evidence.
+
+use chrono::NaiveDate;
+use serde::{Deserialize, Serialize};
+
+use crate::condition::{Condition, TitleStatus};
+use crate::vocabulary::{NameId, Vocabulary, NO_NAME};
+
+/// Where a market came from, kept with every appraisal so the evidence can be traced.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize, Default)]
+pub struct MarketSource {
+    /// File name (or "demo market" for generated data).
+    pub file_name: String,
+    /// Data rows in the file, header excluded.
+    pub rows_read: usize,
+    /// FNV-1a 64-bit hash of the file's bytes, hex.
+    pub content_hash: String,
+}
+
+/// A make and model pair: the unit a depreciation fit is made for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub struct Segment {
+    /// Interned make.
+    pub make: NameId,
+    /// Interned model.
+    pub model: NameId,
+}
+
+/// All listings of a market, column by column.
+#[derive(Debug, Clone, Default)]
+pub struct Market {
+    /// Provenance.
+    pub source: MarketSource,
+    /// Interned makes, models, variants, sellers, locations and options.
+    pub names: Vocabulary,
+    /// Line of the listing in its file (1 is the header).
+    pub line: Vec<u64>,
+    /// Model year.
+    pub model_year: Vec<i32>,
+    /// Make.
+    pub make: Vec<NameId>,
+    /// Model.
+    pub model: Vec<NameId>,
+    /// Variant (trim); [`NO_NAME`] when not stated.
+    pub variant: Vec<NameId>,
+    /// Asking price in the file's currency.
+    pub asking_price: Vec<f64>,
+    /// Odometer in miles (kilometres are converted on import).
+    pub miles: Vec<f64>,
+    /// Condition class.
+    pub condition: Vec<Condition>,
+    /// Date first listed.
+    pub listed_on: Vec<Option<NaiveDate>>,
+    /// Date sold, when the feed records sales.
+    pub sold_on: Vec<Option<NaiveDate>>,
+    /// Sale price, when the feed records sales.
+    pub sale_price: Vec<Option<f64>>,
+    /// Vehicle identification number.
+    pub vin: Vec<Option<Box<str>>>,
+    /// Seller or source; [`NO_NAME`] when not stated.
+    pub seller: Vec<NameId>,
+    /// Postal code or place name; [`NO_NAME`] when not stated.
+    pub location: Vec<NameId>,
+    /// Latitude and longitude in degrees.
+    pub coordinates: Vec<Option<(f32, f32)>>,
+    /// Distance from the appraiser's market centre in miles, when the feed gives it.
+    pub distance_miles: Vec<Option<f32>>,
+    /// Title brand, when stated.
+    pub title: Vec<Option<TitleStatus>>,
+    /// Free-text options; [`NO_NAME`] when not stated.
+    pub options: Vec<NameId>,
+}
+
+/// One listing as owned values, for tables, reports and saved sessions.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Listing {
+    /// Row index in the market.
+    pub row: usize,
+    /// Line in the source file.
+    pub line: u64,
+    /// Model year.
+    pub model_year: i32,
+    /// Make.
+    pub make: String,
+    /// Model.
+    pub model: String,
+    /// Variant (trim).
+    pub variant: Option<String>,
+    /// Asking price.
+    pub asking_price: f64,
+    /// Odometer in miles.
+    pub miles: f64,
+    /// Condition class.
+    pub condition: Condition,
+    /// Date first listed.
+    pub listed_on: Option<NaiveDate>,
+    /// Date sold.
+    pub sold_on: Option<NaiveDate>,
+    /// Sale price.
+    pub sale_price: Option<f64>,
+    /// VIN.
+    pub vin: Option<String>,
+    /// Seller or source.
+    pub seller: Option<String>,
+    /// Location.
+    pub location: Option<String>,
+    /// Latitude and longitude.
+    pub coordinates: Option<(f32, f32)>,
+    /// Distance in miles, when given by the feed.
+    pub distance_miles: Option<f32>,
+    /// Title brand.
+    pub title: Option<TitleStatus>,
+    /// Options text.
+    pub options: Option<String>,
+}
+
+impl Market {
+    /// Number of listings.
+    #[must_use]
+    pub fn len(&self) -> usize {
+        self.asking_price.len()
+    }
+
+    /// Whether the market holds no listing.
+    #[must_use]
+    pub fn is_empty(&self) -> bool {
+        self.asking_price.is_empty()
+    }
+
+    /// The segment of row `row`.
+    #[must_use]
+    pub fn segment_of(&self, row: usize) -> Segment {
+        Segment {
+            make: self.make[row],
+            model: self.model[row],
+        }
+    }
+
+    /// "Make Model" text of a segment.
+    #[must_use]
+    pub fn segment_name(&self, segment: Segment) -> String {
+        format!(
+            "{} {}",
+            self.names.name(segment.make),
+            self.names.name(segment.model)
+        )
+    }
+
+    /// Finds a segment by make and model names (ASCII case ignored).
+    #[must_use]
+    pub fn find_segment(&self, make: &str, model: &str) -> Option<Segment> {
+        let make = self.names.id_ignore_case(make)?;
+        let model = self.names.id_ignore_case(model)?;
+        let segment = Segment { make, model };
+        (0..self.len())
+            .any(|i| self.segment_of(i) == segment)
+            .then_some(segment)
+    }
+
+    /// Every segment with its listing count, largest first.
+    #[must_use]
+    pub fn segments(&self) -> Vec<(Segment, usize)> {
+        let mut counts: std::collections::HashMap<Segment, usize> = std::collections::HashMap::new();
+        for i in 0..self.len() {
+            *counts.entry(self.segment_of(i)).or_default() += 1;
+        }
+        let mut list: Vec<(Segment, usize)> = counts.into_iter().collect();
+        list.sort_by(|a, b| {
+            b.1.cmp(&a.1).then_with(|| {
+                self.segment_name(a.0)
+                    .cmp(&self.segment_name(b.0))
+            })
+        });
+        list
+    }
+
+    /// Rows belonging to `segment`, in file order.
+    #[must_use]
+    pub fn rows_of(&self, segment: Segment) -> Vec<usize> {
+        (0..self.len())
+            .filter(|&i| self.make[i] == segment.make && self.model[i] == segment.model)
+            .collect()
+    }
+
+    /// Text of an optional interned column value.
+    #[must_use]
+    pub fn optional_name(&self, id: NameId) -> Option<String> {
+        (id != NO_NAME).then(|| self.names.name(id).to_owned())
+    }
+
+    /// Variant text of a row, "(no variant)" when the feed did not state one.
+    #[must_use]
+    pub fn variant_name(&self, row: usize) -> &str {
+        let id = self.variant[row];
+        if id == NO_NAME {
+            "(no variant)"
+        } else {
+            self.names.name(id)
+        }
+    }
+
+    /// The latest listing or sale date in the market; the natural "as of" date for it.
+    #[must_use]
+    pub fn latest_date(&self) -> Option<NaiveDate> {
+        self.listed_on
+            .iter()
+            .chain(self.sold_on.iter())
+            .flatten()
+            .max()
+            .copied()
+    }
+
+    /// An owned copy of row `row`.
+    #[must_use]
+    pub fn listing(&self, row: usize) -> Listing {
+        Listing {
+            row,
+            line: self.line[row],
+            model_year: self.model_year[row],
+            make: self.names.name(self.make[row]).to_owned(),
+            model: self.names.name(self.model[row]).to_owned(),
+            variant: self.optional_name(self.variant[row]),
+            asking_price: self.asking_price[row],
+            miles: self.miles[row],
+            condition: self.condition[row],
+            listed_on: self.listed_on[row],
+            sold_on: self.sold_on[row],
+            sale_price: self.sale_price[row],
+            vin: self.vin[row].as_deref().map(str::to_owned),
+            seller: self.optional_name(self.seller[row]),
+            location: self.optional_name(self.location[row]),
+            coordinates: self.coordinates[row],
+            distance_miles: self.distance_miles[row],
+            title: self.title[row],
+            options: self.optional_name(self.options[row]),
+        }
+    }
+
+    /// Appends an owned listing (used to rebuild a market from saved evidence and in tests).
+    pub fn push(&mut self, listing: &Listing) {
+        let intern = |names: &mut Vocabulary, v: &Option<String>| {
+            v.as_deref().map_or(NO_NAME, |s| names.intern(s))
+        };
+        self.line.push(listing.line);
+        self.model_year.push(listing.model_year);
+        let make = self.names.intern(&listing.make);
+        self.make.push(make);
+        let model = self.names.intern(&listing.model);
+        self.model.push(model);
+        let variant = intern(&mut self.names, &listing.variant);
+        self.variant.push(variant);
+        self.asking_price.push(listing.asking_price);
+        self.miles.push(listing.miles);
+        self.condition.push(listing.condition);
+        self.listed_on.push(listing.listed_on);
+        self.sold_on.push(listing.sold_on);
+        self.sale_price.push(listing.sale_price);
+        self.vin.push(listing.vin.as_deref().map(Into::into));
+        let seller = intern(&mut self.names, &listing.seller);
+        self.seller.push(seller);
+        let location = intern(&mut self.names, &listing.location);
+        self.location.push(location);
+        self.coordinates.push(listing.coordinates);
+        self.distance_miles.push(listing.distance_miles);
+        self.title.push(listing.title);
+        let options = intern(&mut self.names, &listing.options);
+        self.options.push(options);
+    }
+}
+
+/// FNV-1a 64-bit hash of bytes, as 16 hex digits: a content fingerprint for the saved evidence
+/// (not a security hash).
+#[must_use]
+pub fn content_hash(bytes: &[u8]) -> String {
+    let mut h: u64 = 0xcbf2_9ce4_8422_2325;
+    for &b in bytes {
+        h ^= u64::from(b);
+        h = h.wrapping_mul(0x0000_0100_0000_01b3);
+    }
+    format!("{h:016x}")
+}

@@ -1,0 +1,89 @@
+//! Small statistics helpers: Student t quantiles (via statrs), medians, MAD, weighted moments.
+
+use statrs::distribution::{ContinuousCDF, Normal, StudentsT};
+
+/// Two-sided critical value `t(1 - (1 - level)/2; df)` for a central interval at `level`.
+///
+/// Falls back to the normal quantile for very large `df`, where the two agree to many digits
+/// and the t inverse CDF is slow.
+#[must_use]
+pub fn t_two_sided(level: f64, df: f64) -> f64 {
+    t_quantile(1.0 - (1.0 - level) / 2.0, df)
+}
+
+/// Quantile `t(p; df)` of Student's t distribution.
+#[must_use]
+pub fn t_quantile(p: f64, df: f64) -> f64 {
+    if df > 1.0e7 || !df.is_finite() {
+        return normal_quantile(p);
+    }
+    match StudentsT::new(0.0, 1.0, df) {
+        Ok(dist) => dist.inverse_cdf(p),
+        Err(_) => f64::NAN,
+    }
+}
+
+/// Two-sided p-value of a t statistic with `df` degrees of freedom.
+#[must_use]
+pub fn t_p_value(t: f64, df: f64) -> f64 {
+    match StudentsT::new(0.0, 1.0, df.max(1.0)) {
+        Ok(dist) => 2.0 * (1.0 - dist.cdf(t.abs())),
+        Err(_) => f64::NAN,
+    }
+}
+
+/// Quantile of the standard normal distribution.
+#[must_use]
+pub fn normal_quantile(p: f64) -> f64 {
+    match Normal::new(0.0, 1.0) {
+        Ok(dist) => dist.inverse_cdf(p),
+        Err(_) => f64::NAN,
+    }
+}
+
+/// Median of the values (NaNs must not be present); `None` for an empty slice.
+#[must_use]
+pub fn median(values: &[f64]) -> Option<f64> {
+    quantile(values, 0.5)
+}
+
+/// Linear-interpolation quantile (type 7, the common default); `None` for an empty slice.
+#[must_use]
+pub fn quantile(values: &[f64], q: f64) -> Option<f64> {
+    if values.is_empty() {
+        return None;
+    }
+    let mut v = values.to_vec();
+    v.sort_by(f64::total_cmp);
+    let h = (v.len() - 1) as f64 * q.clamp(0.0, 1.0);
+    let lo = h.floor() as usize;
+    let hi = h.ceil() as usize;
+    Some(v[lo] + (h - lo as f64) * (v[hi] - v[lo]))
+}
+
+/// Median absolute deviation from the median, scaled by 1/0.6745 to estimate a normal SD.
+#[must_use]
+pub fn mad_sd(values: &[f64]) -> Option<f64> {
+    let m = median(values)?;
+    let dev: Vec<f64> = values.iter().map(|v| (v - m).abs()).collect();
+    median(&dev).map(|d| d / 0.674_489_750_196_081_7)
+}
+
+/// Weighted mean and weighted standard deviation (reliability weights, `V1²/(V1² - V2)` bias
+/// correction); the SD is `None` when fewer than two weights are positive.
+#[must_use]
+pub fn weighted_mean_sd(values: &[f64], weights: &[f64]) -> (f64, Option<f64>) {
+    let v1: f64 = weights.iter().sum();
+    let v2: f64 = weights.iter().map(|w| w * w).sum();
+    let mean = values.iter().zip(weights).map(|(x, w)| x * w).sum::<f64>() / v1;
+    let positive = weights.iter().filter(|w| **w > 0.0).count();
+    if positive < 2 || v1 * v1 - v2 <= 0.0 {
+        return (mean, None);
+    }
+    let ss: f64 = values
+        .iter()
+        .zip(weights)
+        .map(|(x, w)| w * (x - mean).powi(2))
+        .sum();
+    (mean, Some((ss / (v1 - v2 / v1)).sqrt()))
+}

@@ -1,0 +1,3 @@
+//! comptrail's checks against the outside world and its end-to-end behaviour, in one binary.
+
+mod nist;

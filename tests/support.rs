@@ -1,0 +1,51 @@
+//! Helpers shared by the checks: reading reference data and measuring agreement.
+
+use std::path::PathBuf;
+
+use ndarray::{Array1, Array2};
+
+/// Path of a file in `tests/data`.
+#[must_use]
+pub fn data_path(name: &str) -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("data").join(name)
+}
+
+/// Reads a numeric CSV whose first column is the response: returns (X, y) and the header.
+///
+/// # Panics
+/// On a missing or malformed reference file: these are fixed test inputs.
+#[must_use]
+#[allow(clippy::expect_used)]
+pub fn read_reference(name: &str) -> (Array2<f64>, Array1<f64>) {
+    let text = std::fs::read_to_string(data_path(name)).expect("reference file");
+    let mut lines = text.lines();
+    let header = lines.next().expect("header");
+    let columns = header.split(',').count();
+    let mut ys = Vec::new();
+    let mut xs = Vec::new();
+    for line in lines.filter(|l| !l.trim().is_empty()) {
+        let values: Vec<f64> = line
+            .split(',')
+            .map(|v| v.trim().parse().expect("number"))
+            .collect();
+        ys.push(values[0]);
+        xs.extend_from_slice(&values[1..]);
+    }
+    let n = ys.len();
+    (
+        Array2::from_shape_vec((n, columns - 1), xs).expect("shape"),
+        Array1::from(ys),
+    )
+}
+
+/// Log relative error, `-log10(|computed - certified| / |certified|)` (McCullough 1998); 15 when
+/// the two agree exactly, and the absolute version when the certified value is 0.
+#[must_use]
+pub fn lre(computed: f64, certified: f64) -> f64 {
+    let err = if certified == 0.0 {
+        (computed - certified).abs()
+    } else {
+        ((computed - certified) / certified).abs()
+    };
+    if err == 0.0 { 15.0 } else { (-err.log10()).min(15.0) }
+}
