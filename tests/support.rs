@@ -49,3 +49,37 @@ pub fn lre(computed: f64, certified: f64) -> f64 {
     };
     if err == 0.0 { 15.0 } else { (-err.log10()).min(15.0) }
 }
+
+/// A demo market of `rows` listings imported through the real CSV path.
+///
+/// # Panics
+/// If the generated file fails to import (a bug the checks should surface).
+#[must_use]
+#[allow(clippy::expect_used)]
+pub fn demo_market(rows: usize, seed: u64) -> model::market::Market {
+    let bytes = model::demo::demo_csv_bytes(rows, seed);
+    let options = model::import::ImportOptions {
+        latest_model_year: 2027,
+        ..model::import::ImportOptions::default()
+    };
+    model::import::import_csv_bytes("demo.csv", bytes, &options)
+        .expect("demo market imports")
+        .0
+}
+
+/// Fits the demo segment `make model` with `settings` (as of the demo date).
+///
+/// # Panics
+/// If the segment is missing or the fit fails.
+#[must_use]
+#[allow(clippy::expect_used)]
+pub fn fit_demo(
+    market: &model::market::Market,
+    make: &str,
+    model_name: &str,
+    mut settings: model::appraisal::FitSettings,
+) -> model::appraisal::MarketFit {
+    settings.as_of = Some(model::demo::demo_as_of());
+    let segment = model::appraisal::find_segment(market, make, model_name).expect("segment");
+    model::appraisal::fit_market(market, segment, &settings, &model::clean::Overrides::new()).expect("fit")
+}

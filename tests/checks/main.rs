@@ -1,3 +1,4 @@
 //! comptrail's checks against the outside world and its end-to-end behaviour, in one binary.
 
 mod nist;
+mod recovery;

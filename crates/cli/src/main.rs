@@ -1,1 +1,256 @@
-fn main(){}
+//! The comptrail command line: the valuation engine without a display.
+
+mod args;
+mod load;
+mod output;
+mod render;
+
+use std::io::Write;
+use std::process::ExitCode;
+
+use anyhow::{bail, Context, Result};
+use clap::Parser;
+use model::adjustment::{AdjustmentKind, UserAdjustment};
+use model::appraisal::{appraise, AppraisalRequest};
+use model::backtest::{backtest, BacktestSettings};
+use model::comparables::{ComparableRules, MileageRule};
+use model::depreciation::{depreciation_table, rank_segments};
+use model::forecast::forecast;
+use model::gaps::price_gaps;
+use model::subject::Subject;
+use serde::Serialize;
+
+use crate::args::{AppraiseArgs, Cli, Command, MarketArgs, MileageRuleArg};
+use crate::output::{AppraisalDocument, BacktestDocument, DepreciationDocument, FitDocument, FitSummary, GapsDocument, ImportSummary};
+
+/// The subject appraised when none is given on the demo market.
+const DEMO_SUBJECT: &str = "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used";
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    match run(cli) {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(e) => {
+            // One line: the outermost context and each cause, most specific last.
+            let chain: Vec<String> = e.chain().map(ToString::to_string).collect();
+            eprintln!("comptrail: {}", chain.join(": "));
+            ExitCode::FAILURE
+        }
+    }
+}
+
+fn run(cli: Cli) -> Result<()> {
+    let command = cli.command.unwrap_or_else(|| {
+        Command::Appraise(AppraiseArgs {
+            market: default_market_args(),
+            subject: None,
+            level: 0.8,
+            comps: 8,
+            year_window: 1,
+            mileage_rule: MileageRuleArg::Pricing,
+            max_days: 90,
+            max_distance: None,
+            same_variant: false,
+            include_comp: Vec::new(),
+            exclude_comp: Vec::new(),
+            adjust: Vec::new(),
+            hold_months: Some(6.0),
+            hold_miles: None,
+        })
+    });
+    match command {
+        Command::DemoMarket { rows, seed, out } => demo_market(rows, seed, &out),
+        Command::Fit(args) => fit(&args),
+        Command::Appraise(args) => appraise_command(&args),
+        Command::Depreciation { market, max_age } => depreciation(&market, max_age),
+        Command::Gaps { market, level, top } => gaps(&market, level, top),
+        Command::Backtest {
+            market,
+            folds,
+            level,
+            comparable_subjects,
+        } => backtest_command(&market, folds, level, comparable_subjects),
+    }
+}
+
+fn default_market_args() -> MarketArgs {
+    MarketArgs {
+        file: None,
+        make: None,
+        model: None,
+        age_form: args::AgeFormArg::Quadratic,
+        robust: false,
+        as_of: None,
+        delimiter: None,
+        odometer: args::OdometerArg::Miles,
+        stale_days: 180,
+        keep: Vec::new(),
+        drop: Vec::new(),
+        demo_rows: 20_000,
+        json: false,
+    }
+}
+
+fn print(json: bool, doc: &impl Serialize, human: impl FnOnce() -> String) -> Result<()> {
+    let mut out = std::io::stdout().lock();
+    if json {
+        serde_json::to_writer_pretty(&mut out, doc)?;
+        writeln!(out)?;
+    } else {
+        write!(out, "{}", human())?;
+    }
+    Ok(())
+}
+
+fn demo_market(rows: usize, seed: u64, out: &std::path::Path) -> Result<()> {
+    if rows == 0 || rows > 10_000_000 {
+        bail!("--rows must be between 1 and 10,000,000");
+    }
+    let file = std::fs::File::create(out).with_context(|| format!("cannot create {}", out.display()))?;
+    let mut writer = std::io::BufWriter::new(file);
+    model::demo::write_demo_csv(rows, seed, &mut writer).with_context(|| format!("writing {}", out.display()))?;
+    writer.flush()?;
+    eprintln!("wrote {} invented listings to {} (seed {seed}, as of {})", rows, out.display(), model::demo::demo_as_of());
+    Ok(())
+}
+
+fn fit(args: &MarketArgs) -> Result<()> {
+    let loaded = load::load_market(args)?;
+    let segment = load::choose_segment(&loaded.market, args, None)?;
+    let fit = load::fit(&loaded, args, segment)?;
+    let doc = FitDocument {
+        import: ImportSummary::from_report(&loaded.report),
+        fit: FitSummary::new(&loaded.market, &fit),
+    };
+    print(args.json, &doc, || format!("{}{}", render::import(&doc.import), render::fit(&doc.fit)))
+}
+
+fn parse_adjustment(spec: &str) -> Result<UserAdjustment> {
+    let parts: Vec<&str> = spec.splitn(4, ':').collect();
+    let [kind, amount, basis, rest @ ..] = parts.as_slice() else {
+        bail!("--adjust '{spec}': write KIND:AMOUNT:BASIS[:LINE], e.g. \"options:600:tow package the comparables lack\"");
+    };
+    let kind = AdjustmentKind::parse_user(kind)
+        .with_context(|| format!("--adjust '{spec}': kind '{kind}' is not options, prior-damage, condition or other"))?;
+    let amount = model::import::parse_number(amount).with_context(|| format!("--adjust '{spec}': amount '{amount}' is not a number"))?;
+    if basis.trim().is_empty() {
+        bail!("--adjust '{spec}': every adjustment needs its basis");
+    }
+    let line = rest
+        .first()
+        .map(|l| l.trim().parse::<u64>().with_context(|| format!("--adjust '{spec}': line '{l}' is not a line number")))
+        .transpose()?;
+    Ok(UserAdjustment {
+        line,
+        kind,
+        amount,
+        basis: basis.trim().to_owned(),
+    })
+}
+
+fn comparable_rules(args: &AppraiseArgs) -> Result<ComparableRules> {
+    if args.comps == 0 {
+        bail!("--comps must be at least 1");
+    }
+    Ok(ComparableRules {
+        model_year_window: args.year_window.max(0),
+        mileage: match args.mileage_rule {
+            MileageRuleArg::Pricing => MileageRule::default_pricing(),
+            MileageRuleArg::NewYork => MileageRule::new_york(),
+            MileageRuleArg::None => MileageRule {
+                max_over: None,
+                max_under: None,
+            },
+        },
+        max_listing_age_days: (args.max_days > 0).then_some(args.max_days),
+        max_distance_miles: args.max_distance,
+        same_variant_only: args.same_variant,
+        count: args.comps,
+        ..ComparableRules::default()
+    })
+}
+
+fn appraise_command(args: &AppraiseArgs) -> Result<()> {
+    let subject_text = match (&args.subject, &args.market.file) {
+        (Some(s), _) => s.clone(),
+        (None, None) => DEMO_SUBJECT.to_owned(),
+        (None, Some(_)) => bail!("--subject is required with a market file, e.g. --subject \"{DEMO_SUBJECT}\""),
+    };
+    let subject = Subject::parse(&subject_text)?;
+    let loaded = load::load_market(&args.market)?;
+    let segment = load::choose_segment(&loaded.market, &args.market, Some((&subject.make, &subject.model)))?;
+    let fit = load::fit(&loaded, &args.market, segment)?;
+    let mut request = AppraisalRequest::new(subject.clone());
+    request.rules = comparable_rules(args)?;
+    request.level = args.level;
+    request.choices.include = args.include_comp.iter().copied().collect();
+    request.choices.exclude = args.exclude_comp.iter().copied().collect();
+    request.user_adjustments = args.adjust.iter().map(|s| parse_adjustment(s)).collect::<Result<_>>()?;
+    let appraisal = appraise(&loaded.market, &fit, &request)?;
+    let forecast = args
+        .hold_months
+        .map(|months| forecast(&loaded.market, &fit, &subject, months, args.hold_miles, args.level))
+        .transpose()?;
+    let doc = AppraisalDocument {
+        import: ImportSummary::from_report(&loaded.report),
+        fit: FitSummary::new(&loaded.market, &fit),
+        indicated_value: appraisal.reconciliation.indicated_value,
+        value_band: appraisal.reconciliation.value_band,
+        appraisal,
+        forecast,
+        cautions: model::cautions::CAUTIONS.to_vec(),
+    };
+    print(args.market.json, &doc, || render::appraisal(&doc))
+}
+
+fn depreciation(args: &MarketArgs, max_age: u32) -> Result<()> {
+    let loaded = load::load_market(args)?;
+    let segment = load::choose_segment(&loaded.market, args, None).or_else(|e| {
+        // Several models and none chosen: describe the largest, rank them all.
+        loaded.market.segments().first().map(|s| s.0).ok_or(e)
+    })?;
+    let fit = load::fit(&loaded, args, segment)?;
+    let settings = load::fit_settings(args)?;
+    let doc = DepreciationDocument {
+        import: ImportSummary::from_report(&loaded.report),
+        fit: FitSummary::new(&loaded.market, &fit),
+        table: depreciation_table(&fit.model, &loaded.market, max_age),
+        ranking: rank_segments(&loaded.market, &settings, 40),
+    };
+    print(args.json, &doc, || render::depreciation(&doc))
+}
+
+fn gaps(args: &MarketArgs, level: f64, top: usize) -> Result<()> {
+    if !(level > 0.0 && level < 1.0) {
+        bail!("--level {level} must be strictly between 0 and 1");
+    }
+    let loaded = load::load_market(args)?;
+    let segment = load::choose_segment(&loaded.market, args, None)?;
+    let fit = load::fit(&loaded, args, segment)?;
+    let doc = GapsDocument {
+        import: ImportSummary::from_report(&loaded.report),
+        fit: FitSummary::new(&loaded.market, &fit),
+        level,
+        gaps: price_gaps(&loaded.market, &fit, level),
+    };
+    print(args.json, &doc, || render::gaps(&doc, top))
+}
+
+fn backtest_command(args: &MarketArgs, folds: usize, level: f64, comparable_subjects: usize) -> Result<()> {
+    let loaded = load::load_market(args)?;
+    let segment = load::choose_segment(&loaded.market, args, None)?;
+    let fit = load::fit(&loaded, args, segment)?;
+    let settings = BacktestSettings {
+        folds,
+        level,
+        comparable_subjects_per_fold: comparable_subjects,
+        ..BacktestSettings::default()
+    };
+    let result = backtest(&loaded.market, &fit, &ComparableRules::default(), &settings)?;
+    let doc = BacktestDocument {
+        import: ImportSummary::from_report(&loaded.report),
+        fit: FitSummary::new(&loaded.market, &fit),
+        backtest: result,
+    };
+    print(args.json, &doc, || render::backtest(&doc))
+}

@@ -1,0 +1,111 @@
+//! Reading the market and building the fit from the shared options.
+
+use anyhow::{anyhow, bail, Context, Result};
+use chrono::NaiveDate;
+use model::appraisal::{find_segment, fit_market, segment_list, FitSettings, MarketFit};
+use model::clean::{Override, Overrides};
+use model::hedonic::AgeForm;
+use model::import::{import_csv_bytes, import_csv_file, ImportOptions, ImportReport, OdometerUnit};
+use model::market::{Market, Segment};
+
+use crate::args::{AgeFormArg, MarketArgs, OdometerArg};
+
+/// A loaded market with its import report.
+pub struct Loaded {
+    pub market: Market,
+    pub report: ImportReport,
+}
+
+/// Imports the file named in `args`, or generates the demo market.
+pub fn load_market(args: &MarketArgs) -> Result<Loaded> {
+    let mut options = ImportOptions {
+        delimiter: args.delimiter.map(|c| c as u8),
+        odometer_unit: match args.odometer {
+            OdometerArg::Miles => OdometerUnit::Miles,
+            OdometerArg::Km => OdometerUnit::Kilometres,
+        },
+        ..ImportOptions::default()
+    };
+    if let Some(as_of) = parse_as_of(args)? {
+        use chrono::Datelike;
+        options.latest_model_year = options.latest_model_year.max(as_of.year() + 1);
+    }
+    let (market, report) = match &args.file {
+        Some(path) => import_csv_file(path, &options)?,
+        None => {
+            if args.demo_rows == 0 || args.demo_rows > 10_000_000 {
+                bail!("--demo-rows must be between 1 and 10,000,000");
+            }
+            options.latest_model_year = options.latest_model_year.max(2027);
+            let bytes = model::demo::demo_csv_bytes(args.demo_rows, 1);
+            import_csv_bytes("demo market (seed 1)", bytes, &options)?
+        }
+    };
+    Ok(Loaded { market, report })
+}
+
+fn parse_as_of(args: &MarketArgs) -> Result<Option<NaiveDate>> {
+    args.as_of
+        .as_deref()
+        .map(|t| {
+            model::import::parse_date(t).ok_or_else(|| anyhow!("--as-of '{t}' is not a date (use YYYY-MM-DD)"))
+        })
+        .transpose()
+}
+
+/// The fit settings the options ask for.
+pub fn fit_settings(args: &MarketArgs) -> Result<FitSettings> {
+    let mut settings = FitSettings {
+        age_form: match args.age_form {
+            AgeFormArg::Linear => AgeForm::Linear,
+            AgeFormArg::Quadratic => AgeForm::Quadratic,
+            AgeFormArg::PerYear => AgeForm::PerYear,
+        },
+        robust: args.robust,
+        as_of: parse_as_of(args)?,
+        ..FitSettings::default()
+    };
+    settings.cleaning.stale_after_days = (args.stale_days > 0).then_some(args.stale_days);
+    if args.file.is_none() && settings.as_of.is_none() {
+        settings.as_of = Some(model::demo::demo_as_of());
+    }
+    Ok(settings)
+}
+
+/// The appraiser's overrides from `--keep` and `--drop`.
+pub fn overrides(args: &MarketArgs) -> Overrides {
+    let mut o = Overrides::new();
+    for &line in &args.keep {
+        o.insert(line, Override::Include { note: "kept from the command line".into() });
+    }
+    for &line in &args.drop {
+        o.insert(line, Override::Exclude { note: "dropped from the command line".into() });
+    }
+    o
+}
+
+/// The segment named by `--make/--model`, the subject's, or the file's only one.
+pub fn choose_segment(market: &Market, args: &MarketArgs, subject: Option<(&str, &str)>) -> Result<Segment> {
+    match (args.make.as_deref(), args.model.as_deref(), subject) {
+        (Some(make), Some(model), _) | (_, _, Some((make, model))) => Ok(find_segment(market, make, model)?),
+        (Some(_), None, _) | (None, Some(_), _) => bail!("give both --make and --model"),
+        (None, None, None) => {
+            let segments = market.segments();
+            match segments.as_slice() {
+                [(only, _)] => Ok(*only),
+                _ => bail!(
+                    "the file holds {} models; choose one with --make and --model: {}",
+                    segments.len(),
+                    segment_list(market)
+                ),
+            }
+        }
+    }
+}
+
+/// Cleans and fits the chosen segment.
+pub fn fit(loaded: &Loaded, args: &MarketArgs, segment: Segment) -> Result<MarketFit> {
+    let settings = fit_settings(args)?;
+    fit_market(&loaded.market, segment, &settings, &overrides(args))
+        .with_context(|| format!("fitting {}", loaded.market.segment_name(segment)))
+}

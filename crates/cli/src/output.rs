@@ -1,0 +1,153 @@
+//! The JSON documents the commands print with `--json`. Their keys are documented in the
+//! README and kept stable.
+
+use std::collections::BTreeMap;
+
+use model::appraisal::{Appraisal, MarketFit};
+use model::backtest::Backtest;
+use model::depreciation::{DeclineRank, DepreciationTable};
+use model::forecast::Forecast;
+use model::gaps::PriceGap;
+use model::hedonic::{AnnualDepreciation, Term};
+use model::import::{DroppedValue, ImportReport, RejectedRow};
+use serde::Serialize;
+
+/// Rejections and dropped values listed in full up to this many; the counts are always whole.
+const LISTED: usize = 50;
+
+/// The import summary.
+#[derive(Debug, Serialize)]
+pub struct ImportSummary {
+    pub file: String,
+    pub delimiter: String,
+    pub odometer_unit: String,
+    pub rows_read: usize,
+    pub rows_used: usize,
+    pub rows_rejected: usize,
+    pub rejected_by_reason: BTreeMap<String, usize>,
+    pub rejected: Vec<RejectedRow>,
+    pub dropped_values_count: usize,
+    pub dropped_values: Vec<DroppedValue>,
+    pub column_map: BTreeMap<String, String>,
+    pub ignored_columns: Vec<String>,
+    pub condition_inferred: usize,
+}
+
+impl ImportSummary {
+    pub fn from_report(r: &ImportReport) -> Self {
+        Self {
+            file: r.file_name.clone(),
+            delimiter: r.delimiter.clone(),
+            odometer_unit: r.odometer_unit.clone(),
+            rows_read: r.rows_read,
+            rows_used: r.rows_used,
+            rows_rejected: r.rejected.len(),
+            rejected_by_reason: r.rejected_by_reason.clone(),
+            rejected: r.rejected.iter().take(LISTED).cloned().collect(),
+            dropped_values_count: r.dropped_values.len(),
+            dropped_values: r.dropped_values.iter().take(LISTED).cloned().collect(),
+            column_map: r.column_map.clone(),
+            ignored_columns: r.ignored_columns.clone(),
+            condition_inferred: r.condition_inferred,
+        }
+    }
+}
+
+/// Cleaning summary of the fitted segment.
+#[derive(Debug, Serialize)]
+pub struct CleaningSummary {
+    pub listings: usize,
+    pub used: usize,
+    pub excluded_by_rule: BTreeMap<String, usize>,
+    pub outlier_check_skipped: Option<String>,
+}
+
+/// The fitted model.
+#[derive(Debug, Serialize)]
+pub struct FitSummary {
+    pub segment: String,
+    pub as_of: String,
+    pub age_form: model::hedonic::AgeForm,
+    pub robust: bool,
+    pub n: usize,
+    pub terms: Vec<Term>,
+    pub residual_sd: f64,
+    pub r_squared: f64,
+    pub smearing_factor: f64,
+    pub annual_depreciation: AnnualDepreciation,
+    pub typical_annual_miles: f64,
+    pub cleaning: CleaningSummary,
+}
+
+impl FitSummary {
+    pub fn new(market: &model::market::Market, fit: &MarketFit) -> Self {
+        let m = &fit.model;
+        Self {
+            segment: market.segment_name(fit.segment),
+            as_of: fit.as_of.to_string(),
+            age_form: m.params().age_form,
+            robust: m.params().robust,
+            n: m.rows(),
+            terms: m.terms(),
+            residual_sd: m.residual_sd(),
+            r_squared: m.r_squared(),
+            smearing_factor: m.smearing(),
+            annual_depreciation: m.annual_depreciation(5),
+            typical_annual_miles: m.mileage().annual_miles,
+            cleaning: CleaningSummary {
+                listings: fit.cleaning.rows.len(),
+                used: fit.included_rows.len(),
+                excluded_by_rule: fit.cleaning.counts(),
+                outlier_check_skipped: fit.cleaning.outlier_check_skipped.clone(),
+            },
+        }
+    }
+}
+
+/// `fit --json`.
+#[derive(Debug, Serialize)]
+pub struct FitDocument {
+    pub import: ImportSummary,
+    pub fit: FitSummary,
+}
+
+/// `appraise --json`.
+#[derive(Debug, Serialize)]
+pub struct AppraisalDocument {
+    pub import: ImportSummary,
+    pub fit: FitSummary,
+    #[serde(flatten)]
+    pub appraisal: Appraisal,
+    pub indicated_value: f64,
+    pub value_band: model::ols::Interval,
+    pub forecast: Option<Forecast>,
+    pub cautions: Vec<&'static str>,
+}
+
+/// `depreciation --json`.
+#[derive(Debug, Serialize)]
+pub struct DepreciationDocument {
+    pub import: ImportSummary,
+    pub fit: FitSummary,
+    #[serde(flatten)]
+    pub table: DepreciationTable,
+    pub ranking: Vec<DeclineRank>,
+}
+
+/// `gaps --json`.
+#[derive(Debug, Serialize)]
+pub struct GapsDocument {
+    pub import: ImportSummary,
+    pub fit: FitSummary,
+    pub level: f64,
+    pub gaps: Vec<PriceGap>,
+}
+
+/// `backtest --json`.
+#[derive(Debug, Serialize)]
+pub struct BacktestDocument {
+    pub import: ImportSummary,
+    pub fit: FitSummary,
+    #[serde(flatten)]
+    pub backtest: Backtest,
+}

@@ -1,0 +1,295 @@
+//! Human-readable tables for the terminal.
+
+use std::fmt::Write;
+
+use model::adjustment::describe;
+use model::format::{money, signed_money, thousands};
+
+use crate::output::{AppraisalDocument, BacktestDocument, DepreciationDocument, FitSummary, GapsDocument, ImportSummary};
+
+pub fn import(s: &ImportSummary) -> String {
+    let mut o = String::new();
+    let _ = writeln!(
+        o,
+        "Market: {} ({} separated, odometer in {}): {} rows read, {} used, {} rejected",
+        s.file,
+        s.delimiter,
+        s.odometer_unit,
+        thousands(s.rows_read as f64),
+        thousands(s.rows_used as f64),
+        thousands(s.rows_rejected as f64)
+    );
+    for (code, n) in &s.rejected_by_reason {
+        let _ = writeln!(o, "  rejected, {code}: {}", thousands(*n as f64));
+    }
+    for r in s.rejected.iter().take(5) {
+        let _ = writeln!(o, "    line {}: {}", r.line, r.reason);
+    }
+    if s.rows_rejected > 5 {
+        let _ = writeln!(o, "    … {} more (all listed with --json)", s.rows_rejected - 5);
+    }
+    if s.dropped_values_count > 0 {
+        let _ = writeln!(o, "  values dropped, row kept: {}", s.dropped_values_count);
+        for d in s.dropped_values.iter().take(3) {
+            let _ = writeln!(o, "    line {}: {} = '{}': {}", d.line, d.column, d.value, d.note);
+        }
+    }
+    if s.condition_inferred > 0 {
+        let _ = writeln!(o, "  condition missing on {} rows: taken as used (≥ 1,000 mi) or new", s.condition_inferred);
+    }
+    if !s.ignored_columns.is_empty() {
+        let _ = writeln!(o, "  ignored columns: {}", s.ignored_columns.join(", "));
+    }
+    o
+}
+
+pub fn fit(f: &FitSummary) -> String {
+    let mut o = String::new();
+    let _ = writeln!(
+        o,
+        "\n{} as of {}: {} listings, {} used in the fit",
+        f.segment,
+        f.as_of,
+        thousands(f.cleaning.listings as f64),
+        thousands(f.cleaning.used as f64)
+    );
+    for (code, n) in &f.cleaning.excluded_by_rule {
+        let _ = writeln!(o, "  excluded, {code}: {}", thousands(*n as f64));
+    }
+    if let Some(why) = &f.cleaning.outlier_check_skipped {
+        let _ = writeln!(o, "  outlier check skipped: {why}");
+    }
+    let _ = writeln!(
+        o,
+        "\nln(asking price) fit, {:?} age, {}: n = {}, residual SD {:.4}, R² {:.4}, smearing {:.4}",
+        f.age_form,
+        if f.robust { "Huber robust" } else { "least squares" },
+        thousands(f.n as f64),
+        f.residual_sd,
+        f.r_squared,
+        f.smearing_factor
+    );
+    let _ = writeln!(o, "  {:<26} {:>12} {:>11} {:>9} {:>10}", "term", "estimate", "std error", "t", "effect %");
+    for t in &f.terms {
+        let _ = writeln!(
+            o,
+            "  {:<26} {:>12.6} {:>11.6} {:>9.2} {:>+10.2}",
+            t.name, t.estimate, t.std_error, t.t_value, t.percent_effect
+        );
+    }
+    let d = &f.annual_depreciation;
+    let _ = writeln!(
+        o,
+        "  annual depreciation over {} years: {:.1} % from age alone, {:.1} % with typical mileage ({} mi a year)",
+        d.horizon_years,
+        d.age_only_pct,
+        d.with_typical_miles_pct,
+        thousands(f.typical_annual_miles)
+    );
+    o
+}
+
+pub fn appraisal(doc: &AppraisalDocument) -> String {
+    let a = &doc.appraisal;
+    let mut o = import(&doc.import);
+    o.push_str(&fit(&doc.fit));
+    let level = 100.0 * a.reconciliation.value_band.level;
+    let _ = writeln!(o, "\nSubject: {}", a.subject.describe());
+    let _ = writeln!(
+        o,
+        "Comparables: {} of {} listings of this model passed the filters; {} kept",
+        thousands(a.candidates_passed as f64),
+        thousands(a.candidates_considered as f64),
+        a.comparables.len()
+    );
+    for (code, n) in &a.stopped_by {
+        let _ = writeln!(o, "  stopped by {code}: {}", thousands(*n as f64));
+    }
+    for (i, c) in a.comparables.iter().enumerate() {
+        let l = &c.listing;
+        let _ = writeln!(
+            o,
+            "\n#{} line {}: {} {} {}, {} mi, {}, asking {}{}",
+            i + 1,
+            l.line,
+            l.model_year,
+            l.model,
+            l.variant.as_deref().unwrap_or("(no variant)"),
+            thousands(l.miles),
+            l.condition,
+            money(l.asking_price),
+            if c.manual { "  [included by hand]" } else { "" }
+        );
+        let _ = writeln!(
+            o,
+            "   source: {}, {}, VIN {}, listed {}{}",
+            l.seller.as_deref().unwrap_or("unknown seller"),
+            l.location.as_deref().unwrap_or("unknown place"),
+            l.vin.as_deref().unwrap_or("none"),
+            l.listed_on.map_or_else(|| "on an unknown date".to_owned(), |d| d.to_string()),
+            c.days_listed.map(|d| format!(" ({d} days)")).unwrap_or_default()
+        );
+        for b in &c.rule_breaks {
+            let _ = writeln!(o, "   breaks rule: {b}");
+        }
+        for line in &c.adjustments {
+            let _ = writeln!(o, "   {}", describe(line));
+        }
+        let _ = writeln!(
+            o,
+            "   net {} ({:.1} %), gross {} ({:.1} %) → adjusted {}; similarity {:.2}, weight {:.1} %",
+            signed_money(c.net_adjustment),
+            c.net_pct,
+            money(c.gross_adjustment),
+            c.gross_pct,
+            money(c.adjusted_price),
+            c.similarity,
+            100.0 * c.weight
+        );
+    }
+    let r = &a.reconciliation;
+    let m = &a.model_estimate;
+    let _ = writeln!(o, "\nIndicated value: {}", money(r.indicated_value));
+    let _ = writeln!(
+        o,
+        "Value band ({level:.0} %): {} to {}  (width set by the {})",
+        money(r.value_band.lower),
+        money(r.value_band.upper),
+        match r.band_source {
+            model::reconcile::BandSource::Comparables => "spread of the adjusted comparables",
+            model::reconcile::BandSource::Model => "model's prediction interval",
+            model::reconcile::BandSource::ModelOnly => "model alone: no comparables passed the filters",
+        }
+    );
+    let _ = writeln!(
+        o,
+        "Model's own estimate: median {}, mean {}; {level:.0} % prediction interval {} to {}; {level:.0} % confidence interval for the market median {} to {}",
+        money(m.median),
+        money(m.mean),
+        money(m.prediction_interval.lower),
+        money(m.prediction_interval.upper),
+        money(m.confidence_interval.lower),
+        money(m.confidence_interval.upper)
+    );
+    let _ = writeln!(
+        o,
+        "Comparables vs model: {:+.1} %; effective number of comparables {:.1}",
+        r.model_gap_pct, r.effective_count
+    );
+    if let Some(f) = &doc.forecast {
+        let _ = writeln!(
+            o,
+            "Forecast after {:.0} months and {} more miles: {} ({} , {:+.1} %), {level:.0} % prediction interval {} to {}{}",
+            f.months,
+            thousands(f.added_miles),
+            money(f.then.median),
+            signed_money(f.change),
+            f.change_pct,
+            money(f.then.prediction_interval.lower),
+            money(f.then.prediction_interval.upper),
+            if f.extrapolated { " (beyond the oldest age in the market: an extrapolation)" } else { "" }
+        );
+    }
+    let _ = writeln!(o);
+    for c in &doc.cautions {
+        let _ = writeln!(o, "Caution: {c}");
+    }
+    o
+}
+
+pub fn depreciation(doc: &DepreciationDocument) -> String {
+    let mut o = import(&doc.import);
+    o.push_str(&fit(&doc.fit));
+    for curve in &doc.table.curves {
+        let _ = writeln!(o, "\n{}: value at typical mileage (used unless marked new)", curve.variant);
+        let _ = writeln!(o, "  {:>5} {:>10} {:>10} {:>10} {:>7} {:>11} {:>7}", "age", "miles", "value", "loss", "loss %", "cumulative", "cum %");
+        for r in &curve.rows {
+            let _ = writeln!(
+                o,
+                "  {:>5} {:>10} {:>10} {:>10} {:>7.1} {:>11} {:>7.1}",
+                r.age_years.map_or_else(|| "new".to_owned(), |a| a.to_string()),
+                thousands(r.typical_miles),
+                money(r.value),
+                money(r.loss),
+                r.loss_pct,
+                money(r.cumulative_loss),
+                r.cumulative_loss_pct
+            );
+        }
+    }
+    for p in &doc.table.premiums {
+        let _ = writeln!(o, "\nPremium of {} over {} by age:", p.variant, p.base);
+        for r in &p.by_age {
+            let _ = writeln!(o, "  age {:>2}: {:>9} ({:.1} %)", r.age_years, money(r.premium), r.premium_pct);
+        }
+    }
+    let _ = writeln!(o, "\nModels in the file by fitted annual decline (linear age, 5 years):");
+    for r in &doc.ranking {
+        match &r.skipped {
+            None => {
+                let _ = writeln!(
+                    o,
+                    "  {:<24} {:>5.1} %/yr with typical miles, {:>5.1} %/yr from age alone ({} listings)",
+                    r.segment,
+                    r.with_typical_miles_pct,
+                    r.age_only_pct,
+                    thousands(r.listings as f64)
+                );
+            }
+            Some(why) => {
+                let _ = writeln!(o, "  {:<24} not ranked: {why}", r.segment);
+            }
+        }
+    }
+    o
+}
+
+pub fn gaps(doc: &GapsDocument, top: usize) -> String {
+    let mut o = import(&doc.import);
+    o.push_str(&fit(&doc.fit));
+    let line = |o: &mut String, g: &model::gaps::PriceGap| {
+        let _ = writeln!(
+            o,
+            "  line {:>8}  {:<34} asking {:>9}  market {:>9}  gap {:>9} ({:+6.1} %)  {:?}{}",
+            g.line,
+            g.description,
+            money(g.asking_price),
+            money(g.expected),
+            signed_money(g.gap),
+            g.gap_pct,
+            g.flag,
+            g.exclusion.as_deref().map(|e| format!(" [excluded: {e}]")).unwrap_or_default()
+        );
+    };
+    let _ = writeln!(o, "\nFurthest below the market (possible deals or possible problems: look before use):");
+    for g in doc.gaps.iter().take(top) {
+        line(&mut o, g);
+    }
+    let _ = writeln!(o, "\nFurthest above the market:");
+    for g in doc.gaps.iter().rev().take(top) {
+        line(&mut o, g);
+    }
+    o
+}
+
+pub fn backtest(doc: &BacktestDocument) -> String {
+    let mut o = import(&doc.import);
+    o.push_str(&fit(&doc.fit));
+    let b = &doc.backtest;
+    let _ = writeln!(o, "\n{}-fold backtest (asking prices stand in for values):", b.folds);
+    for (name, m) in [("model", &b.model), ("comparables", &b.comparables)] {
+        let _ = writeln!(
+            o,
+            "  {:<12} {} valued, median absolute error {:.1} %, {:.1} % inside the {:.0} % band",
+            name,
+            thousands(m.evaluated as f64),
+            m.median_abs_pct_error,
+            m.band_coverage_pct,
+            100.0 * m.level
+        );
+    }
+    if b.not_valued > 0 {
+        let _ = writeln!(o, "  not valued: {} (variant or condition missing from the training part, or no comparables)", b.not_valued);
+    }
+    o
+}

@@ -1,0 +1,337 @@
+//! One appraisal, end to end: clean and fit the subject's segment once ([`fit_market`]), then
+//! choose, adjust and reconcile comparables for a subject ([`appraise`]), cheaply enough to run
+//! again on every change of the subject.
+
+use chrono::NaiveDate;
+use linfa::ParamGuard;
+use serde::{Deserialize, Serialize};
+
+use crate::adjustment::{model_lines, net_and_gross, user_lines, AdjustmentLine, SubjectTerms, UserAdjustment};
+use crate::clean::{clean_segment, CleaningRules, Overrides, SegmentCleaning};
+use crate::comparables::{choose_comparables, ComparableChoices, ComparableRules, RuleBreak, SubjectKey};
+use crate::hedonic::{age_years, AgeForm, Attributes, FitError, HedonicModel, HedonicParams, ValueEstimate};
+use crate::market::{Listing, Market, Segment};
+use crate::reconcile::{reconcile, ReconcileInput, Reconciliation};
+use crate::subject::Subject;
+use crate::vocabulary::NO_NAME;
+
+/// Why an appraisal could not be made.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum AppraisalError {
+    /// The subject's make and model are not in the market.
+    #[error("the market has no {make} {model}; it holds: {available}")]
+    UnknownSegment {
+        /// Make asked for.
+        make: String,
+        /// Model asked for.
+        model: String,
+        /// Segments present.
+        available: String,
+    },
+    /// The subject's variant has no listing in the fitted market.
+    #[error("variant '{variant}' has no usable listings for this model; known variants: {known}")]
+    UnknownVariant {
+        /// Variant asked for.
+        variant: String,
+        /// Variants present.
+        known: String,
+    },
+    /// The subject's condition class has no listing in the fitted market.
+    #[error("no usable {condition} listings for this model, so the market cannot price that condition")]
+    UnknownCondition {
+        /// Condition asked for.
+        condition: String,
+    },
+    /// The level is not strictly between 0 and 1.
+    #[error("level {0} must be strictly between 0 and 1 (e.g. 0.8)")]
+    BadLevel(f64),
+    /// The fit failed.
+    #[error(transparent)]
+    Fit(#[from] FitError),
+}
+
+/// Settings of the market fit.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct FitSettings {
+    /// Age form.
+    pub age_form: AgeForm,
+    /// Huber robust fit.
+    pub robust: bool,
+    /// Appraisal date (ages, listing ages); the market's latest date when `None`.
+    pub as_of: Option<NaiveDate>,
+    /// Cleaning rules.
+    pub cleaning: CleaningRules,
+}
+
+impl Default for FitSettings {
+    fn default() -> Self {
+        Self {
+            age_form: AgeForm::default(),
+            robust: false,
+            as_of: None,
+            cleaning: CleaningRules::default(),
+        }
+    }
+}
+
+impl FitSettings {
+    /// The appraisal date for `market`: the setting, else the market's latest listing or sale
+    /// date, else today.
+    #[must_use]
+    pub fn as_of_for(&self, market: &Market) -> NaiveDate {
+        self.as_of
+            .or_else(|| market.latest_date())
+            .unwrap_or_else(crate::import::today)
+    }
+}
+
+/// A cleaned and fitted segment.
+#[derive(Debug, Clone)]
+pub struct MarketFit {
+    /// The segment.
+    pub segment: Segment,
+    /// Appraisal date used.
+    pub as_of: NaiveDate,
+    /// Cleaning outcome.
+    pub cleaning: SegmentCleaning,
+    /// The fitted model.
+    pub model: HedonicModel,
+    /// Rows used (cleaning's included rows), cached.
+    pub included_rows: Vec<usize>,
+}
+
+/// Finds a segment by name, with an error listing what the market holds.
+pub fn find_segment(market: &Market, make: &str, model: &str) -> Result<Segment, AppraisalError> {
+    market.find_segment(make, model).ok_or_else(|| AppraisalError::UnknownSegment {
+        make: make.to_owned(),
+        model: model.to_owned(),
+        available: segment_list(market),
+    })
+}
+
+/// "Quellmark Tessel (5,012), ..." for messages.
+#[must_use]
+pub fn segment_list(market: &Market) -> String {
+    market
+        .segments()
+        .iter()
+        .map(|(s, n)| format!("{} ({})", market.segment_name(*s), crate::format::thousands(*n as f64)))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// Cleans and fits one segment.
+pub fn fit_market(
+    market: &Market,
+    segment: Segment,
+    settings: &FitSettings,
+    overrides: &Overrides,
+) -> Result<MarketFit, AppraisalError> {
+    let as_of = settings.as_of_for(market);
+    let cleaning = clean_segment(market, segment, &settings.cleaning, settings.age_form, as_of, overrides);
+    let included_rows = cleaning.included_rows();
+    let params = HedonicParams::new(as_of)
+        .age_form(settings.age_form)
+        .robust(settings.robust)
+        .check()?;
+    let model = params.fit(market, &included_rows)?;
+    Ok(MarketFit {
+        segment,
+        as_of,
+        cleaning,
+        model,
+        included_rows,
+    })
+}
+
+/// Everything an appraisal request carries besides the market.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct AppraisalRequest {
+    /// The subject.
+    pub subject: Subject,
+    /// Comparable filters and ranking.
+    pub rules: ComparableRules,
+    /// Manual includes and excludes.
+    pub choices: ComparableChoices,
+    /// The appraiser's adjustment lines.
+    pub user_adjustments: Vec<UserAdjustment>,
+    /// Interval level, e.g. 0.8.
+    pub level: f64,
+}
+
+impl AppraisalRequest {
+    /// A request with default rules at the 80 % level.
+    #[must_use]
+    pub fn new(subject: Subject) -> Self {
+        Self {
+            subject,
+            rules: ComparableRules::default(),
+            choices: ComparableChoices::default(),
+            user_adjustments: Vec::new(),
+            level: 0.8,
+        }
+    }
+}
+
+/// A comparable with its adjustment grid and weight.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct AdjustedComparable {
+    /// The listing, every field.
+    pub listing: Listing,
+    /// Days listed before the appraisal date.
+    pub days_listed: Option<i64>,
+    /// Gower distance to the subject.
+    pub gower_distance: f64,
+    /// 1 - Gower distance.
+    pub similarity: f64,
+    /// Included by hand.
+    pub manual: bool,
+    /// Filters it breaks (manual includes only).
+    pub rule_breaks: Vec<RuleBreak>,
+    /// Adjustment lines.
+    pub adjustments: Vec<AdjustmentLine>,
+    /// Sum of the lines.
+    pub net_adjustment: f64,
+    /// Sum of the lines' absolute values.
+    pub gross_adjustment: f64,
+    /// |net| / price, percent.
+    pub net_pct: f64,
+    /// gross / price, percent.
+    pub gross_pct: f64,
+    /// Price + net adjustment.
+    pub adjusted_price: f64,
+    /// Reconciliation weight (sums to 1 over the comparables).
+    pub weight: f64,
+}
+
+/// The appraisal's outcome.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Appraisal {
+    /// The subject.
+    pub subject: Subject,
+    /// Appraisal date.
+    pub as_of: NaiveDate,
+    /// The model's own estimate for the subject.
+    pub model_estimate: ValueEstimate,
+    /// Comparables, most similar first.
+    pub comparables: Vec<AdjustedComparable>,
+    /// Listings of the model looked at, and how many passed the filters.
+    pub candidates_considered: usize,
+    /// Listings passing every filter.
+    pub candidates_passed: usize,
+    /// Listings stopped by each filter.
+    pub stopped_by: std::collections::BTreeMap<String, usize>,
+    /// The reconciliation.
+    pub reconciliation: Reconciliation,
+}
+
+/// The subject's attributes in the fitted market's terms, checking that the market can price
+/// them.
+pub fn subject_terms(market: &Market, fit: &MarketFit, subject: &Subject) -> Result<SubjectTerms, AppraisalError> {
+    let design = fit.model.design();
+    let variant = match &subject.variant {
+        Some(v) => market.names.id_ignore_case(v),
+        None => Some(NO_NAME),
+    };
+    let Some(variant) = variant.filter(|v| design.knows_variant(*v)) else {
+        return Err(AppraisalError::UnknownVariant {
+            variant: subject.variant.clone().unwrap_or_else(|| "(none)".into()),
+            known: design
+                .variants
+                .iter()
+                .map(|&v| if v == NO_NAME { "(none)".to_owned() } else { market.names.name(v).to_owned() })
+                .collect::<Vec<_>>()
+                .join(", "),
+        });
+    };
+    if !design.knows_condition(subject.condition) {
+        return Err(AppraisalError::UnknownCondition {
+            condition: subject.condition.to_string(),
+        });
+    }
+    Ok(SubjectTerms {
+        model_year: subject.model_year,
+        miles: subject.miles,
+        variant,
+        condition: subject.condition,
+    })
+}
+
+/// Appraises `request.subject` against a fitted segment.
+pub fn appraise(market: &Market, fit: &MarketFit, request: &AppraisalRequest) -> Result<Appraisal, AppraisalError> {
+    appraise_among(market, fit, &fit.cleaning.rows, request)
+}
+
+/// As [`appraise`], choosing comparables only among `candidates` (the backtest holds rows out).
+pub fn appraise_among(
+    market: &Market,
+    fit: &MarketFit,
+    candidates: &[usize],
+    request: &AppraisalRequest,
+) -> Result<Appraisal, AppraisalError> {
+    if !(request.level > 0.0 && request.level < 1.0) {
+        return Err(AppraisalError::BadLevel(request.level));
+    }
+    let terms = subject_terms(market, fit, &request.subject)?;
+    let attributes = Attributes {
+        age_years: age_years(terms.model_year, fit.model.as_of_year()),
+        miles: terms.miles,
+        variant: terms.variant,
+        condition: terms.condition,
+    };
+    let model_estimate = fit.model.estimate(&attributes, request.level);
+    let key = SubjectKey {
+        model_year: terms.model_year,
+        miles: terms.miles,
+        variant: terms.variant,
+        condition: terms.condition,
+    };
+    let selection = choose_comparables(market, &fit.cleaning, candidates, &key, &request.rules, &request.choices, fit.as_of);
+    let mut comparables: Vec<AdjustedComparable> = selection
+        .chosen
+        .iter()
+        .map(|c| {
+            let mut adjustments = model_lines(&fit.model, market, c.row, &terms);
+            adjustments.extend(user_lines(&request.user_adjustments, market.line[c.row]));
+            let price = market.asking_price[c.row];
+            let (net, gross) = net_and_gross(&adjustments);
+            AdjustedComparable {
+                listing: market.listing(c.row),
+                days_listed: market.listed_on[c.row].map(|d| (fit.as_of - d).num_days()),
+                gower_distance: c.gower_distance,
+                similarity: 1.0 - c.gower_distance,
+                manual: c.manual,
+                rule_breaks: c.breaks.clone(),
+                adjustments,
+                net_adjustment: net,
+                gross_adjustment: gross,
+                net_pct: 100.0 * net.abs() / price,
+                gross_pct: 100.0 * gross / price,
+                adjusted_price: price + net,
+                weight: 0.0,
+            }
+        })
+        .collect();
+    let inputs: Vec<ReconcileInput> = comparables
+        .iter()
+        .map(|c| ReconcileInput {
+            adjusted_price: c.adjusted_price,
+            similarity: c.similarity,
+            gross_fraction: c.gross_pct / 100.0,
+        })
+        .collect();
+    let reconciliation = reconcile(&inputs, &model_estimate, fit.model.df_residual() as f64, request.level);
+    for (c, w) in comparables.iter_mut().zip(&reconciliation.weights) {
+        c.weight = *w;
+    }
+    Ok(Appraisal {
+        subject: request.subject.clone(),
+        as_of: fit.as_of,
+        model_estimate,
+        comparables,
+        candidates_considered: selection.considered,
+        candidates_passed: selection.passed,
+        stopped_by: selection.stopped_by,
+        reconciliation,
+    })
+}

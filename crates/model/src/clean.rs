@@ -1,0 +1,379 @@
+//! Cleaning a segment before it is fitted: every exclusion carries its rule and reason, and the
+//! appraiser can override any of them by hand.
+//!
+//! Rules, first match wins: duplicate VIN; duplicate listing (same attributes, no VIN); stale
+//! listing (unsold and listed longer than the limit); old-model-year stock listed as new (priced
+//! as new, it would flatten the age curve); branded title; then, from a first robust fit,
+//! implausibly cheap listings (possible branded title or damage) and high outliers by their
+//! studentized residual.
+
+use std::collections::{BTreeMap, HashMap};
+
+use chrono::{Datelike, NaiveDate};
+use linfa::ParamGuard;
+use serde::{Deserialize, Serialize};
+
+use crate::condition::{Condition, TitleStatus};
+use crate::hedonic::{AgeForm, HedonicParams};
+use crate::market::{Market, Segment};
+
+/// Why a listing is kept out of the fit and the comparables.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "rule", rename_all = "snake_case")]
+pub enum Exclusion {
+    /// Same VIN as an earlier listing.
+    DuplicateVin {
+        /// Line of the listing kept.
+        of_line: u64,
+    },
+    /// Same year, variant, mileage, price and seller as an earlier listing without a VIN.
+    DuplicateListing {
+        /// Line of the listing kept.
+        of_line: u64,
+    },
+    /// Unsold and listed for longer than the limit.
+    StaleListing {
+        /// Days since listed.
+        days_listed: i64,
+        /// The limit.
+        limit_days: u32,
+    },
+    /// A new unit of an earlier model year: priced as new, so it would distort the age curve.
+    OldStockListedAsNew {
+        /// Its model year.
+        model_year: i32,
+    },
+    /// The title carries a brand.
+    BrandedTitle {
+        /// The brand.
+        title: TitleStatus,
+    },
+    /// Far below the market for its attributes: possible branded title or damage.
+    ImplausiblyCheap {
+        /// Asking price as a percentage of the fitted market median.
+        percent_of_market: f64,
+        /// Studentized residual from the first robust fit.
+        studentized: f64,
+    },
+    /// Far above the market for its attributes.
+    HighOutlier {
+        /// Asking price as a percentage of the fitted market median.
+        percent_of_market: f64,
+        /// Studentized residual from the first robust fit.
+        studentized: f64,
+    },
+    /// Excluded by the appraiser.
+    Manual {
+        /// The appraiser's reason.
+        note: String,
+    },
+}
+
+impl Exclusion {
+    /// Stable short code.
+    #[must_use]
+    pub fn code(&self) -> &'static str {
+        match self {
+            Exclusion::DuplicateVin { .. } => "duplicate_vin",
+            Exclusion::DuplicateListing { .. } => "duplicate_listing",
+            Exclusion::StaleListing { .. } => "stale_listing",
+            Exclusion::OldStockListedAsNew { .. } => "old_stock_listed_as_new",
+            Exclusion::BrandedTitle { .. } => "branded_title",
+            Exclusion::ImplausiblyCheap { .. } => "implausibly_cheap",
+            Exclusion::HighOutlier { .. } => "high_outlier",
+            Exclusion::Manual { .. } => "manual",
+        }
+    }
+}
+
+impl std::fmt::Display for Exclusion {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            Exclusion::DuplicateVin { of_line } => write!(f, "same VIN as line {of_line}"),
+            Exclusion::DuplicateListing { of_line } => write!(f, "same vehicle and price as line {of_line}"),
+            Exclusion::StaleListing { days_listed, limit_days } => {
+                write!(f, "listed {days_listed} days ago and unsold (limit {limit_days})")
+            }
+            Exclusion::OldStockListedAsNew { model_year } => {
+                write!(f, "model year {model_year} still listed as new: priced as new, not by age")
+            }
+            Exclusion::BrandedTitle { title } => write!(f, "{} title", title.as_str()),
+            Exclusion::ImplausiblyCheap { percent_of_market, studentized } => write!(
+                f,
+                "asks {percent_of_market:.0} % of the market for its attributes (studentized residual {studentized:.1}): possible branded title or damage; check before use"
+            ),
+            Exclusion::HighOutlier { percent_of_market, studentized } => write!(
+                f,
+                "asks {percent_of_market:.0} % of the market for its attributes (studentized residual {studentized:.1})"
+            ),
+            Exclusion::Manual { note } => write!(f, "excluded by hand: {note}"),
+        }
+    }
+}
+
+/// The appraiser's decision on one listing, keyed by its file line.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(tag = "decision", rename_all = "snake_case")]
+pub enum Override {
+    /// Keep the listing even though a rule excluded it.
+    Include {
+        /// Why.
+        note: String,
+    },
+    /// Exclude the listing.
+    Exclude {
+        /// Why.
+        note: String,
+    },
+}
+
+/// Overrides by file line.
+pub type Overrides = BTreeMap<u64, Override>;
+
+/// Settings of the cleaning rules.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct CleaningRules {
+    /// Exclude duplicates.
+    pub drop_duplicates: bool,
+    /// Unsold listings older than this many days are stale; `None` keeps them.
+    pub stale_after_days: Option<u32>,
+    /// Exclude new units of earlier model years.
+    pub exclude_old_stock_as_new: bool,
+    /// Exclude branded titles.
+    pub exclude_branded_titles: bool,
+    /// |studentized residual| above which a listing is an outlier.
+    pub outlier_threshold: f64,
+    /// A listing asking less than this fraction of the fitted market is implausibly cheap.
+    pub cheap_below_fraction: f64,
+    /// Largest number of listings the first robust fit uses (evenly spaced sample beyond it).
+    pub robust_sample_limit: usize,
+}
+
+impl Default for CleaningRules {
+    fn default() -> Self {
+        Self {
+            drop_duplicates: true,
+            stale_after_days: Some(180),
+            exclude_old_stock_as_new: true,
+            exclude_branded_titles: true,
+            outlier_threshold: 3.5,
+            cheap_below_fraction: 0.70,
+            robust_sample_limit: 50_000,
+        }
+    }
+}
+
+/// The outcome of cleaning one segment.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SegmentCleaning {
+    /// The segment.
+    pub segment: Segment,
+    /// Every row of the segment, ascending.
+    pub rows: Vec<usize>,
+    /// The rule that excluded each row (parallel to `rows`), before overrides.
+    pub exclusions: Vec<Option<Exclusion>>,
+    /// Whether each row is used after overrides (parallel to `rows`).
+    pub included: Vec<bool>,
+    /// Why the outlier rules could not run, if they could not.
+    pub outlier_check_skipped: Option<String>,
+}
+
+impl SegmentCleaning {
+    /// Rows used for the fit and as comparables.
+    #[must_use]
+    pub fn included_rows(&self) -> Vec<usize> {
+        self.rows
+            .iter()
+            .zip(&self.included)
+            .filter(|(_, inc)| **inc)
+            .map(|(r, _)| *r)
+            .collect()
+    }
+
+    fn position(&self, row: usize) -> Option<usize> {
+        self.rows.binary_search(&row).ok()
+    }
+
+    /// The exclusion recorded for `row`, if any (even when overridden).
+    #[must_use]
+    pub fn exclusion_of(&self, row: usize) -> Option<&Exclusion> {
+        self.position(row).and_then(|i| self.exclusions[i].as_ref())
+    }
+
+    /// Whether `row` is used.
+    #[must_use]
+    pub fn is_included(&self, row: usize) -> bool {
+        self.position(row).is_some_and(|i| self.included[i])
+    }
+
+    /// Exclusions in force, counted by rule code.
+    #[must_use]
+    pub fn counts(&self) -> BTreeMap<String, usize> {
+        let mut counts = BTreeMap::new();
+        for (e, inc) in self.exclusions.iter().zip(&self.included) {
+            if let (Some(e), false) = (e, inc) {
+                *counts.entry(e.code().to_owned()).or_default() += 1;
+            }
+        }
+        counts
+    }
+}
+
+/// Cleans `segment` of `market` as of `as_of`, applying the appraiser's `overrides` last.
+#[must_use]
+pub fn clean_segment(
+    market: &Market,
+    segment: Segment,
+    rules: &CleaningRules,
+    age_form: AgeForm,
+    as_of: NaiveDate,
+    overrides: &Overrides,
+) -> SegmentCleaning {
+    let rows = market.rows_of(segment);
+    let mut exclusions: Vec<Option<Exclusion>> = rows
+        .iter()
+        .map(|&r| {
+            let manual = match overrides.get(&market.line[r]) {
+                Some(Override::Exclude { note }) => Some(Exclusion::Manual { note: note.clone() }),
+                _ => None,
+            };
+            manual.or_else(|| stock_rules(market, r, rules, as_of))
+        })
+        .collect();
+    if rules.drop_duplicates {
+        mark_duplicates(market, &rows, &mut exclusions);
+    }
+    let overridden_in = |r: usize| matches!(overrides.get(&market.line[r]), Some(Override::Include { .. }));
+    let outlier_check_skipped = mark_outliers(market, &rows, &mut exclusions, rules, age_form, as_of, &overridden_in);
+    let included = rows
+        .iter()
+        .zip(&exclusions)
+        .map(|(&r, e)| e.is_none() || (overridden_in(r) && !matches!(e, Some(Exclusion::Manual { .. }))))
+        .collect();
+    SegmentCleaning {
+        segment,
+        rows,
+        exclusions,
+        included,
+        outlier_check_skipped,
+    }
+}
+
+fn stock_rules(market: &Market, r: usize, rules: &CleaningRules, as_of: NaiveDate) -> Option<Exclusion> {
+    if let (Some(limit), Some(listed), None) = (rules.stale_after_days, market.listed_on[r], market.sold_on[r]) {
+        let days = (as_of - listed).num_days();
+        if days > i64::from(limit) {
+            return Some(Exclusion::StaleListing {
+                days_listed: days,
+                limit_days: limit,
+            });
+        }
+    }
+    if rules.exclude_old_stock_as_new
+        && market.condition[r] == Condition::New
+        && as_of.year() - market.model_year[r] >= 1
+    {
+        return Some(Exclusion::OldStockListedAsNew {
+            model_year: market.model_year[r],
+        });
+    }
+    if rules.exclude_branded_titles {
+        if let Some(title) = market.title[r].filter(|t| t.is_branded()) {
+            return Some(Exclusion::BrandedTitle { title });
+        }
+    }
+    None
+}
+
+fn mark_duplicates(market: &Market, rows: &[usize], exclusions: &mut [Option<Exclusion>]) {
+    let mut by_vin: HashMap<&str, u64> = HashMap::new();
+    let mut by_attributes: HashMap<(i32, u32, u64, u64, u32), u64> = HashMap::new();
+    for (i, &r) in rows.iter().enumerate() {
+        let line = market.line[r];
+        let duplicate = if let Some(vin) = market.vin[r].as_deref() {
+            match by_vin.get(vin) {
+                Some(&of_line) => Some(Exclusion::DuplicateVin { of_line }),
+                None => {
+                    by_vin.insert(vin, line);
+                    None
+                }
+            }
+        } else {
+            let key = (
+                market.model_year[r],
+                market.variant[r],
+                market.miles[r].round() as u64,
+                (market.asking_price[r] * 100.0).round() as u64,
+                market.seller[r],
+            );
+            match by_attributes.get(&key) {
+                Some(&of_line) => Some(Exclusion::DuplicateListing { of_line }),
+                None => {
+                    by_attributes.insert(key, line);
+                    None
+                }
+            }
+        };
+        if exclusions[i].is_none() {
+            exclusions[i] = duplicate;
+        }
+    }
+}
+
+/// Marks cheap listings and outliers from a first robust fit over the rows not yet excluded.
+/// Returns why the check was skipped, if it was.
+fn mark_outliers(
+    market: &Market,
+    rows: &[usize],
+    exclusions: &mut [Option<Exclusion>],
+    rules: &CleaningRules,
+    age_form: AgeForm,
+    as_of: NaiveDate,
+    overridden_in: &dyn Fn(usize) -> bool,
+) -> Option<String> {
+    let clean: Vec<usize> = rows
+        .iter()
+        .zip(exclusions.iter())
+        .filter(|(r, e)| e.is_none() || overridden_in(**r))
+        .map(|(r, _)| *r)
+        .collect();
+    // An evenly spaced sample is enough to place the market; every listing is then scored.
+    let step = clean.len().div_ceil(rules.robust_sample_limit.max(1)).max(1);
+    let sample: Vec<usize> = clean.iter().copied().step_by(step).collect();
+    let params = match HedonicParams::new(as_of).age_form(age_form).robust(true).check() {
+        Ok(p) => p,
+        Err(e) => return Some(e.to_string()),
+    };
+    let model = match params.fit(market, &sample) {
+        Ok(m) => m,
+        Err(e) => return Some(format!("first robust fit failed: {e}")),
+    };
+    let s = model.residual_sd();
+    if s <= 0.0 {
+        return Some("first robust fit left no residual spread".into());
+    }
+    // Leverage from the sample's cross-products, rescaled to the number of listings scored.
+    let leverage_scale = sample.len() as f64 / clean.len().max(1) as f64;
+    for (i, &r) in rows.iter().enumerate() {
+        if exclusions[i].is_some() {
+            continue;
+        }
+        let a = model.attributes_of_row(market, r);
+        let resid = market.asking_price[r].ln() - model.log_price(&a);
+        let h = (model.leverage(&a) * leverage_scale).min(0.99);
+        let studentized = resid / (s * (1.0 - h).sqrt());
+        let percent_of_market = 100.0 * resid.exp();
+        if resid.exp() < rules.cheap_below_fraction || studentized < -rules.outlier_threshold {
+            exclusions[i] = Some(Exclusion::ImplausiblyCheap {
+                percent_of_market,
+                studentized,
+            });
+        } else if studentized > rules.outlier_threshold {
+            exclusions[i] = Some(Exclusion::HighOutlier {
+                percent_of_market,
+                studentized,
+            });
+        }
+    }
+    None
+}

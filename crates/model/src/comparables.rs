@@ -1,0 +1,437 @@
+//! Choosing comparables for a subject: hard filters first, then ranking by Gower similarity,
+//! then the appraiser's manual includes and excludes.
+
+use std::collections::{BTreeMap, BTreeSet};
+
+use chrono::NaiveDate;
+use serde::{Deserialize, Serialize};
+
+use crate::clean::SegmentCleaning;
+use crate::condition::Condition;
+use crate::gower::{gower_distance, GowerPart, GowerWeights};
+use crate::market::Market;
+use crate::vocabulary::NameId;
+
+/// "The greater of `miles` or `percent` % of the subject's mileage".
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct Allowance {
+    /// Fixed allowance in miles.
+    pub miles: f64,
+    /// Allowance as a percentage of the subject's miles.
+    pub percent: f64,
+}
+
+impl Allowance {
+    /// The allowance for a subject with `subject_miles`.
+    #[must_use]
+    pub fn limit_for(&self, subject_miles: f64) -> f64 {
+        self.miles.max(self.percent / 100.0 * subject_miles)
+    }
+}
+
+/// How far a comparable's mileage may be from the subject's.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct MileageRule {
+    /// Most a comparable may exceed the subject by; `None` for no limit.
+    pub max_over: Option<Allowance>,
+    /// Most a comparable may fall short of the subject by; `None` for no limit.
+    pub max_under: Option<Allowance>,
+}
+
+impl MileageRule {
+    /// 11 NYCRR 216.7: a comparable's mileage may exceed the insured vehicle's by at most
+    /// 4,000 miles or 10 %, whichever is greater; no limit below.
+    #[must_use]
+    pub fn new_york() -> Self {
+        Self {
+            max_over: Some(Allowance { miles: 4_000.0, percent: 10.0 }),
+            max_under: None,
+        }
+    }
+
+    /// The default for pricing: within the greater of 15,000 miles or 30 % either way (a choice
+    /// of ours, common practice, no source).
+    #[must_use]
+    pub fn default_pricing() -> Self {
+        let a = Allowance { miles: 15_000.0, percent: 30.0 };
+        Self {
+            max_over: Some(a),
+            max_under: Some(a),
+        }
+    }
+
+    /// Checks a comparable's mileage against the subject's; the broken limit on failure.
+    #[must_use]
+    pub fn check(&self, subject_miles: f64, comparable_miles: f64) -> Option<RuleBreak> {
+        if let Some(a) = self.max_over {
+            let limit = a.limit_for(subject_miles);
+            if comparable_miles - subject_miles > limit {
+                return Some(RuleBreak::MilesOver {
+                    over_by: comparable_miles - subject_miles,
+                    limit,
+                });
+            }
+        }
+        if let Some(a) = self.max_under {
+            let limit = a.limit_for(subject_miles);
+            if subject_miles - comparable_miles > limit {
+                return Some(RuleBreak::MilesUnder {
+                    under_by: subject_miles - comparable_miles,
+                    limit,
+                });
+            }
+        }
+        None
+    }
+}
+
+/// The hard filters and ranking settings for comparables.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct ComparableRules {
+    /// Model years within this many of the subject's.
+    pub model_year_window: i32,
+    /// Mileage rule.
+    pub mileage: MileageRule,
+    /// Listed no more than this many days before the appraisal date; `None` for no limit.
+    pub max_listing_age_days: Option<u32>,
+    /// No farther than this many miles; `None` for no limit.
+    pub max_distance_miles: Option<f64>,
+    /// Only the subject's own variant.
+    pub same_variant_only: bool,
+    /// How many comparables to keep.
+    pub count: usize,
+    /// Similarity weights.
+    pub weights: GowerWeights,
+}
+
+impl Default for ComparableRules {
+    fn default() -> Self {
+        Self {
+            model_year_window: 1,
+            mileage: MileageRule::default_pricing(),
+            // NAIC model regulation §8(A): comparables available within the last 90 days.
+            max_listing_age_days: Some(90),
+            max_distance_miles: None,
+            same_variant_only: false,
+            count: 8,
+            weights: GowerWeights::default(),
+        }
+    }
+}
+
+/// A hard filter a listing fails.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "rule", rename_all = "snake_case")]
+pub enum RuleBreak {
+    /// Model year outside the window.
+    ModelYearOutsideWindow {
+        /// Years apart.
+        years_apart: i32,
+        /// The window.
+        window: i32,
+    },
+    /// Too many more miles than the subject.
+    MilesOver {
+        /// Miles above the subject.
+        over_by: f64,
+        /// The allowance.
+        limit: f64,
+    },
+    /// Too many fewer miles than the subject.
+    MilesUnder {
+        /// Miles below the subject.
+        under_by: f64,
+        /// The allowance.
+        limit: f64,
+    },
+    /// Listed too long before the appraisal date.
+    ListingTooOld {
+        /// Days listed.
+        days: i64,
+        /// The limit.
+        limit: u32,
+    },
+    /// Too far away.
+    TooFar {
+        /// Miles away.
+        miles: f64,
+        /// The limit.
+        limit: f64,
+    },
+    /// Another variant, when only the subject's is allowed.
+    OtherVariant,
+    /// Excluded by cleaning or by hand.
+    Excluded {
+        /// The exclusion's rule code.
+        code: String,
+    },
+}
+
+impl RuleBreak {
+    /// Stable short code.
+    #[must_use]
+    pub fn code(&self) -> &'static str {
+        match self {
+            RuleBreak::ModelYearOutsideWindow { .. } => "model_year_outside_window",
+            RuleBreak::MilesOver { .. } => "miles_over_limit",
+            RuleBreak::MilesUnder { .. } => "miles_under_limit",
+            RuleBreak::ListingTooOld { .. } => "listing_too_old",
+            RuleBreak::TooFar { .. } => "too_far",
+            RuleBreak::OtherVariant => "other_variant",
+            RuleBreak::Excluded { .. } => "excluded_by_cleaning",
+        }
+    }
+}
+
+impl std::fmt::Display for RuleBreak {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        use crate::format::thousands;
+        match self {
+            RuleBreak::ModelYearOutsideWindow { years_apart, window } => {
+                write!(f, "model year {years_apart} apart (window ±{window})")
+            }
+            RuleBreak::MilesOver { over_by, limit } => write!(
+                f,
+                "{} mi more than the subject (allowed {})",
+                thousands(*over_by),
+                thousands(*limit)
+            ),
+            RuleBreak::MilesUnder { under_by, limit } => write!(
+                f,
+                "{} mi fewer than the subject (allowed {})",
+                thousands(*under_by),
+                thousands(*limit)
+            ),
+            RuleBreak::ListingTooOld { days, limit } => write!(f, "listed {days} days ago (limit {limit})"),
+            RuleBreak::TooFar { miles, limit } => write!(f, "{miles:.0} mi away (limit {limit:.0})"),
+            RuleBreak::OtherVariant => write!(f, "another variant"),
+            RuleBreak::Excluded { code } => write!(f, "excluded by cleaning ({code})"),
+        }
+    }
+}
+
+/// The appraiser's manual choices, by file line.
+#[derive(Debug, Clone, Default, PartialEq, Eq, Serialize, Deserialize)]
+pub struct ComparableChoices {
+    /// Always use these, whatever the filters say (the broken rules are still shown).
+    pub include: BTreeSet<u64>,
+    /// Never use these.
+    pub exclude: BTreeSet<u64>,
+}
+
+/// The subject as the comparable search sees it.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct SubjectKey {
+    /// Model year.
+    pub model_year: i32,
+    /// Miles.
+    pub miles: f64,
+    /// Variant id.
+    pub variant: NameId,
+    /// Condition.
+    pub condition: Condition,
+}
+
+/// A chosen comparable before adjustment.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ChosenComparable {
+    /// Market row.
+    pub row: usize,
+    /// Gower distance to the subject.
+    pub gower_distance: f64,
+    /// Included by hand.
+    pub manual: bool,
+    /// Filters it breaks (only manual includes can break any).
+    pub breaks: Vec<RuleBreak>,
+}
+
+/// The outcome of the comparable search.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ComparableSelection {
+    /// Chosen comparables, most similar first.
+    pub chosen: Vec<ChosenComparable>,
+    /// Listings of the subject's make and model looked at.
+    pub considered: usize,
+    /// How many passed every filter.
+    pub passed: usize,
+    /// Listings stopped by each filter (first failing filter counted).
+    pub stopped_by: BTreeMap<String, usize>,
+}
+
+/// Checks one listing against the hard filters.
+#[must_use]
+pub fn filter_breaks(
+    market: &Market,
+    row: usize,
+    subject: &SubjectKey,
+    rules: &ComparableRules,
+    as_of: NaiveDate,
+) -> Vec<RuleBreak> {
+    let mut breaks = Vec::new();
+    let years_apart = (market.model_year[row] - subject.model_year).abs();
+    if years_apart > rules.model_year_window {
+        breaks.push(RuleBreak::ModelYearOutsideWindow {
+            years_apart,
+            window: rules.model_year_window,
+        });
+    }
+    if let Some(b) = rules.mileage.check(subject.miles, market.miles[row]) {
+        breaks.push(b);
+    }
+    if let (Some(limit), Some(listed)) = (rules.max_listing_age_days, market.listed_on[row]) {
+        let days = (as_of - listed).num_days();
+        if days > i64::from(limit) {
+            breaks.push(RuleBreak::ListingTooOld { days, limit });
+        }
+    }
+    if let (Some(limit), Some(d)) = (rules.max_distance_miles, market.distance_miles[row]) {
+        if f64::from(d) > limit {
+            breaks.push(RuleBreak::TooFar { miles: f64::from(d), limit });
+        }
+    }
+    if rules.same_variant_only && market.variant[row] != subject.variant {
+        breaks.push(RuleBreak::OtherVariant);
+    }
+    breaks
+}
+
+/// Chooses comparables for `subject` among the segment's listings.
+#[must_use]
+pub fn choose_comparables(
+    market: &Market,
+    cleaning: &SegmentCleaning,
+    candidates: &[usize],
+    subject: &SubjectKey,
+    rules: &ComparableRules,
+    choices: &ComparableChoices,
+    as_of: NaiveDate,
+) -> ComparableSelection {
+    let mut stopped_by: BTreeMap<String, usize> = BTreeMap::new();
+    let mut passing = Vec::new();
+    let mut forced = Vec::new();
+    for &row in candidates {
+        let line = market.line[row];
+        if choices.exclude.contains(&line) {
+            *stopped_by.entry("excluded_by_hand".into()).or_default() += 1;
+            continue;
+        }
+        let mut breaks = filter_breaks(market, row, subject, rules, as_of);
+        if !cleaning.is_included(row) {
+            if let Some(e) = cleaning.exclusion_of(row) {
+                breaks.insert(0, RuleBreak::Excluded { code: e.code().to_owned() });
+            }
+        }
+        if choices.include.contains(&line) {
+            forced.push((row, breaks));
+        } else if let Some(first) = breaks.first() {
+            *stopped_by.entry(first.code().into()).or_default() += 1;
+        } else {
+            passing.push(row);
+        }
+    }
+    let passed = passing.len();
+    let pool: Vec<usize> = passing.iter().copied().chain(forced.iter().map(|(r, _)| *r)).collect();
+    let ranges = Ranges::over(market, &pool, subject, as_of);
+    let distance = |row: usize| gower_to_subject(market, row, subject, &rules.weights, &ranges, as_of);
+    let mut ranked: Vec<(usize, f64)> = passing.into_iter().map(|r| (r, distance(r))).collect();
+    ranked.sort_by(|a, b| {
+        a.1.total_cmp(&b.1)
+            .then_with(|| market.listed_on[b.0].cmp(&market.listed_on[a.0]))
+            .then_with(|| market.line[a.0].cmp(&market.line[b.0]))
+    });
+    let slots = rules.count.saturating_sub(forced.len());
+    let mut chosen: Vec<ChosenComparable> = forced
+        .into_iter()
+        .map(|(row, breaks)| ChosenComparable {
+            row,
+            gower_distance: distance(row),
+            manual: true,
+            breaks,
+        })
+        .collect();
+    chosen.extend(ranked.into_iter().take(slots).map(|(row, d)| ChosenComparable {
+        row,
+        gower_distance: d,
+        manual: false,
+        breaks: Vec::new(),
+    }));
+    chosen.sort_by(|a, b| a.gower_distance.total_cmp(&b.gower_distance));
+    ComparableSelection {
+        chosen,
+        considered: candidates.len(),
+        passed,
+        stopped_by,
+    }
+}
+
+/// Ranges of the numeric attributes over the candidate pool and the subject (Gower's ranges
+/// are taken over the sample compared).
+struct Ranges {
+    model_year: f64,
+    miles: f64,
+    distance: f64,
+    days_listed: f64,
+}
+
+impl Ranges {
+    fn over(market: &Market, pool: &[usize], subject: &SubjectKey, as_of: NaiveDate) -> Self {
+        let span = |values: &mut dyn Iterator<Item = f64>| {
+            let (lo, hi) = values.fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| (lo.min(v), hi.max(v)));
+            if hi > lo { hi - lo } else { 0.0 }
+        };
+        Self {
+            model_year: span(&mut pool.iter().map(|&r| f64::from(market.model_year[r])).chain([f64::from(subject.model_year)])),
+            miles: span(&mut pool.iter().map(|&r| market.miles[r]).chain([subject.miles])),
+            distance: span(&mut pool.iter().filter_map(|&r| market.distance_miles[r].map(f64::from)).chain([0.0])),
+            days_listed: span(&mut pool.iter().filter_map(|&r| market.listed_on[r].map(|d| (as_of - d).num_days() as f64)).chain([0.0])),
+        }
+    }
+}
+
+fn gower_to_subject(
+    market: &Market,
+    row: usize,
+    subject: &SubjectKey,
+    w: &GowerWeights,
+    ranges: &Ranges,
+    as_of: NaiveDate,
+) -> f64 {
+    let parts = [
+        (
+            GowerPart::Numeric {
+                a: Some(f64::from(subject.model_year)),
+                b: Some(f64::from(market.model_year[row])),
+                range: ranges.model_year,
+            },
+            w.model_year,
+        ),
+        (
+            GowerPart::Numeric {
+                a: Some(subject.miles),
+                b: Some(market.miles[row]),
+                range: ranges.miles,
+            },
+            w.miles,
+        ),
+        (GowerPart::Categorical(Some(subject.variant == market.variant[row])), w.variant),
+        (GowerPart::Categorical(Some(subject.condition == market.condition[row])), w.condition),
+        // The subject sits at distance 0 and is "listed today".
+        (
+            GowerPart::Numeric {
+                a: Some(0.0),
+                b: market.distance_miles[row].map(f64::from),
+                range: ranges.distance,
+            },
+            w.distance,
+        ),
+        (
+            GowerPart::Numeric {
+                a: Some(0.0),
+                b: market.listed_on[row].map(|d| (as_of - d).num_days() as f64),
+                range: ranges.days_listed,
+            },
+            w.days_listed,
+        ),
+    ];
+    gower_distance(&parts).unwrap_or(1.0)
+}

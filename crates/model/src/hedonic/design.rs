@@ -1,0 +1,205 @@
+//! The hedonic design: which columns a listing contributes to ln(price) and what each is called.
+
+use serde::{Deserialize, Serialize};
+
+use crate::condition::Condition;
+use crate::market::Market;
+use crate::vocabulary::{NameId, NO_NAME};
+
+/// Age in model years at the appraisal date: the appraisal year minus the model year, so 0 for
+/// the appraisal year's model year. Next year's models, on sale early, also count as age 0: they
+/// have not begun to depreciate. Fractional ages arise only in forecasts.
+#[must_use]
+pub fn age_years(model_year: i32, as_of_year: i32) -> f64 {
+    f64::from((as_of_year - model_year).max(0))
+}
+
+/// How age enters the model.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, Default)]
+#[serde(rename_all = "snake_case")]
+pub enum AgeForm {
+    /// ln P linear in age: geometric depreciation at a constant rate.
+    Linear,
+    /// ln P quadratic in age: the rate may fall (or rise) with age.
+    #[default]
+    Quadratic,
+    /// One indicator per age in the data: no shape imposed.
+    PerYear,
+}
+
+impl AgeForm {
+    /// Reads "linear", "quadratic" or "per-year".
+    #[must_use]
+    pub fn parse(text: &str) -> Option<Self> {
+        match text.trim().to_ascii_lowercase().replace('_', "-").as_str() {
+            "linear" => Some(Self::Linear),
+            "quadratic" => Some(Self::Quadratic),
+            "per-year" | "peryear" | "dummies" => Some(Self::PerYear),
+            _ => None,
+        }
+    }
+}
+
+/// Mileage enters in units of 10,000 miles so its coefficient reads as "per 10,000 miles".
+pub const MILES_UNIT: f64 = 10_000.0;
+
+/// The columns of the design matrix for one segment.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Design {
+    /// Age form.
+    pub age_form: AgeForm,
+    /// Ages with their own indicator (per-year form), youngest (the base) first.
+    pub age_levels: Vec<i32>,
+    /// Variants in the fit; the first is the base (no indicator).
+    pub variants: Vec<NameId>,
+    /// Conditions in the fit; the first is the base (no indicator).
+    pub conditions: Vec<Condition>,
+    /// Column names, intercept first.
+    pub names: Vec<String>,
+}
+
+impl Design {
+    /// Builds the design for the given rows: levels present in the data, bases chosen as the
+    /// youngest age, the variant with the lowest median asking price, and `used` when present.
+    #[must_use]
+    pub fn for_rows(market: &Market, rows: &[usize], age_form: AgeForm, as_of_year: i32) -> Self {
+        let mut ages: Vec<i32> = rows.iter().map(|&r| (as_of_year - market.model_year[r]).max(0)).collect();
+        ages.sort_unstable();
+        ages.dedup();
+
+        let mut by_variant: std::collections::HashMap<NameId, Vec<f64>> = std::collections::HashMap::new();
+        for &r in rows {
+            by_variant.entry(market.variant[r]).or_default().push(market.asking_price[r]);
+        }
+        let mut variants: Vec<(NameId, f64)> = by_variant
+            .into_iter()
+            .map(|(v, prices)| (v, crate::stats::median(&prices).unwrap_or(0.0)))
+            .collect();
+        variants.sort_by(|a, b| {
+            a.1.total_cmp(&b.1)
+                .then_with(|| market.names.name(a.0).cmp(market.names.name(b.0)))
+        });
+        let variants: Vec<NameId> = variants.into_iter().map(|(v, _)| v).collect();
+
+        let mut conditions: Vec<Condition> = Condition::ALL
+            .into_iter()
+            .filter(|c| rows.iter().any(|&r| market.condition[r] == *c))
+            .collect();
+        if let Some(pos) = conditions.iter().position(|c| *c == Condition::Used) {
+            conditions.swap(0, pos);
+            conditions[1..].sort();
+        }
+
+        let mut names = vec!["intercept".to_owned()];
+        match age_form {
+            AgeForm::Linear => names.push("age_years".into()),
+            AgeForm::Quadratic => {
+                names.push("age_years".into());
+                names.push("age_years_squared".into());
+            }
+            AgeForm::PerYear => {
+                names.extend(ages.iter().skip(1).map(|a| format!("age={a}")));
+            }
+        }
+        names.push("miles_10k".into());
+        for &v in variants.iter().skip(1) {
+            let label = if v == NO_NAME { "(no variant)" } else { market.names.name(v) };
+            names.push(format!("variant={label}"));
+        }
+        for c in conditions.iter().skip(1) {
+            names.push(format!("condition={c}"));
+        }
+        Self {
+            age_form,
+            age_levels: ages,
+            variants,
+            conditions,
+            names,
+        }
+    }
+
+    /// Number of columns.
+    #[must_use]
+    pub fn width(&self) -> usize {
+        self.names.len()
+    }
+
+    /// Index of the mileage column.
+    #[must_use]
+    pub fn miles_column(&self) -> usize {
+        1 + self.age_width()
+    }
+
+    fn age_width(&self) -> usize {
+        match self.age_form {
+            AgeForm::Linear => 1,
+            AgeForm::Quadratic => 2,
+            AgeForm::PerYear => self.age_levels.len().saturating_sub(1),
+        }
+    }
+
+    /// Whether `variant` has a level in the design.
+    #[must_use]
+    pub fn knows_variant(&self, variant: NameId) -> bool {
+        self.variants.contains(&variant)
+    }
+
+    /// Whether `condition` has a level in the design.
+    #[must_use]
+    pub fn knows_condition(&self, condition: Condition) -> bool {
+        self.conditions.contains(&condition)
+    }
+
+    /// Fills `out` (length [`Self::width`]) with the design row. An unknown variant or condition
+    /// contributes as the base level; callers check with [`Self::knows_variant`] first where it
+    /// matters. Ages between per-year levels are interpolated linearly; beyond them, clamped.
+    pub fn fill_row(&self, age: f64, miles: f64, variant: NameId, condition: Condition, out: &mut [f64]) {
+        out.fill(0.0);
+        out[0] = 1.0;
+        match self.age_form {
+            AgeForm::Linear => out[1] = age,
+            AgeForm::Quadratic => {
+                out[1] = age;
+                out[2] = age * age;
+            }
+            AgeForm::PerYear => self.fill_age_levels(age, &mut out[1..=self.age_width()]),
+        }
+        let m = self.miles_column();
+        out[m] = miles / MILES_UNIT;
+        let mut next = m + 1;
+        if let Some(pos) = self.variants.iter().position(|v| *v == variant) {
+            if pos > 0 {
+                out[next + pos - 1] = 1.0;
+            }
+        }
+        next += self.variants.len().saturating_sub(1);
+        if let Some(pos) = self.conditions.iter().position(|c| *c == condition) {
+            if pos > 0 {
+                out[next + pos - 1] = 1.0;
+            }
+        }
+    }
+
+    fn fill_age_levels(&self, age: f64, out: &mut [f64]) {
+        let levels = &self.age_levels;
+        let Some(&first) = levels.first() else { return };
+        let last = levels[levels.len() - 1];
+        let age = age.clamp(f64::from(first), f64::from(last));
+        // Indicator k (0-based) belongs to levels[k + 1]; the base level has none.
+        let set = |out: &mut [f64], level_index: usize, weight: f64| {
+            if level_index > 0 {
+                out[level_index - 1] += weight;
+            }
+        };
+        let upper = levels.partition_point(|&l| f64::from(l) < age);
+        if upper < levels.len() && f64::from(levels[upper]) == age {
+            set(out, upper, 1.0);
+            return;
+        }
+        let (lo, hi) = (upper - 1, upper);
+        let (a, b) = (f64::from(levels[lo]), f64::from(levels[hi]));
+        let t = (age - a) / (b - a);
+        set(out, lo, 1.0 - t);
+        set(out, hi, t);
+    }
+}

@@ -1,0 +1,581 @@
+//! The hedonic market fit: ln(asking price) on age, mileage, variant and condition.
+//!
+//! ln P = b0 + f(age) + b_mi * miles/10,000 + sum g_k D_k + e (Court 1939; Griliches 1961;
+//! Rosen 1974). Parameters are checked before a fit ([`HedonicParams`] → [`ValidHedonicParams`],
+//! as in linfa) and the fit returns a separate [`HedonicModel`], so an unchecked or unfitted
+//! model cannot be used. Ordinary least squares by QR, optionally Huber's M-estimator by
+//! iteratively reweighted least squares (Huber 1964; Huber & Ronchetti 2009).
+
+mod design;
+mod mileage;
+mod robust;
+
+use chrono::{Datelike, NaiveDate};
+use linfa::ParamGuard;
+use serde::{Deserialize, Serialize};
+
+use crate::condition::Condition;
+use crate::linalg::{QrAccumulator, QrFactor};
+use crate::market::Market;
+use crate::ols::{Interval, OlsError, OlsFit};
+use crate::stats;
+use crate::vocabulary::NameId;
+
+pub use design::{age_years, AgeForm, Design, MILES_UNIT};
+pub use mileage::MileageProfile;
+
+/// Why a market fit could not be made.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum FitError {
+    /// A setting is out of range.
+    #[error("invalid fit setting: {0}")]
+    InvalidParams(String),
+    /// Too few listings for the terms requested.
+    #[error("{rows} usable listings cannot support {terms} terms ({names}); widen the market or use a simpler age form")]
+    TooFewRows {
+        /// Listings available.
+        rows: usize,
+        /// Terms requested.
+        terms: usize,
+        /// Term names.
+        names: String,
+    },
+    /// A term cannot be separated from the others.
+    #[error("term '{term}' cannot be separated from the terms before it (for example every listing of that variant is also of one condition or one age); drop it or widen the market")]
+    Collinear {
+        /// Term name.
+        term: String,
+    },
+    /// Other least-squares failure.
+    #[error("least squares: {0}")]
+    Ols(String),
+}
+
+/// Unchecked fit settings.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct HedonicParams(ValidHedonicParams);
+
+/// Checked fit settings.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct ValidHedonicParams {
+    /// How age enters.
+    pub age_form: AgeForm,
+    /// Huber M-estimation instead of least squares.
+    pub robust: bool,
+    /// Appraisal date: ages are counted to its year.
+    pub as_of: NaiveDate,
+    /// Huber tuning constant (1.345 gives 95 % efficiency at the normal).
+    pub huber_k: f64,
+    /// Iteration limit for the robust fit.
+    pub max_iterations: u32,
+}
+
+impl HedonicParams {
+    /// Default settings (quadratic age, least squares) at `as_of`.
+    #[must_use]
+    pub fn new(as_of: NaiveDate) -> Self {
+        Self(ValidHedonicParams {
+            age_form: AgeForm::default(),
+            robust: false,
+            as_of,
+            huber_k: 1.345,
+            max_iterations: 50,
+        })
+    }
+
+    /// Sets the age form.
+    #[must_use]
+    pub fn age_form(mut self, form: AgeForm) -> Self {
+        self.0.age_form = form;
+        self
+    }
+
+    /// Chooses the robust (Huber) fit.
+    #[must_use]
+    pub fn robust(mut self, robust: bool) -> Self {
+        self.0.robust = robust;
+        self
+    }
+
+    /// Sets Huber's tuning constant.
+    #[must_use]
+    pub fn huber_k(mut self, k: f64) -> Self {
+        self.0.huber_k = k;
+        self
+    }
+
+    /// Sets the robust iteration limit.
+    #[must_use]
+    pub fn max_iterations(mut self, n: u32) -> Self {
+        self.0.max_iterations = n;
+        self
+    }
+}
+
+impl ParamGuard for HedonicParams {
+    type Checked = ValidHedonicParams;
+    type Error = FitError;
+
+    fn check_ref(&self) -> Result<&Self::Checked, Self::Error> {
+        let p = &self.0;
+        if !(p.huber_k.is_finite() && p.huber_k > 0.0) {
+            return Err(FitError::InvalidParams(format!("Huber k must be positive, got {}", p.huber_k)));
+        }
+        if p.max_iterations == 0 {
+            return Err(FitError::InvalidParams("the robust fit needs at least one iteration".into()));
+        }
+        Ok(p)
+    }
+
+    fn check(self) -> Result<Self::Checked, Self::Error> {
+        self.check_ref()?;
+        Ok(self.0)
+    }
+}
+
+/// One estimated term.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Term {
+    /// Term name, e.g. `age_years`, `miles_10k`, `variant=Plus`.
+    pub name: String,
+    /// Coefficient on ln(price).
+    pub estimate: f64,
+    /// Standard error.
+    pub std_error: f64,
+    /// estimate / std_error.
+    pub t_value: f64,
+    /// Two-sided p-value.
+    pub p_value: f64,
+    /// 100 (e^b - 1): the percentage change in price per unit of the term.
+    pub percent_effect: f64,
+}
+
+/// Average annual depreciation over a horizon, from the fitted curve.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct AnnualDepreciation {
+    /// Years averaged over (from age 0).
+    pub horizon_years: u32,
+    /// Percent per year from age alone, mileage held fixed: 100 (1 - e^b_age) in the linear form.
+    pub age_only_pct: f64,
+    /// Percent per year when mileage also grows at the typical rate.
+    pub with_typical_miles_pct: f64,
+}
+
+/// A value estimate in currency from the fitted market.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct ValueEstimate {
+    /// exp(fitted ln price): the market's median price for these attributes.
+    pub median: f64,
+    /// Median times Duan's smearing factor: the market's mean price.
+    pub mean: f64,
+    /// Interval for the market's median price at these attributes (the confidence interval for
+    /// the mean of ln price, back-transformed).
+    pub confidence_interval: Interval,
+    /// Interval for one vehicle's price (the prediction interval, back-transformed).
+    pub prediction_interval: Interval,
+    /// Fitted ln price.
+    pub log_fitted: f64,
+    /// Standard error of the fitted ln price.
+    pub log_se_fit: f64,
+    /// Standard error for a new vehicle's ln price.
+    pub log_se_prediction: f64,
+}
+
+/// What a vehicle is, as far as the fitted market is concerned.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Attributes {
+    /// Age in model years (fractional in forecasts).
+    pub age_years: f64,
+    /// Odometer in miles.
+    pub miles: f64,
+    /// Variant id in the market's vocabulary.
+    pub variant: NameId,
+    /// Condition class.
+    pub condition: Condition,
+}
+
+/// A fitted market: coefficients, their uncertainty and everything needed to predict.
+#[derive(Debug, Clone)]
+pub struct HedonicModel {
+    params: ValidHedonicParams,
+    design: Design,
+    coefficients: Vec<f64>,
+    std_errors: Vec<f64>,
+    /// (X'X)^-1 through R, from the unweighted design.
+    factor: QrFactor,
+    residual_sd: f64,
+    /// Scale of the coefficient covariance (equals `residual_sd` for least squares).
+    coefficient_sd: f64,
+    rows: usize,
+    r_squared: f64,
+    smearing: f64,
+    iterations: u32,
+    mileage: MileageProfile,
+}
+
+impl ValidHedonicParams {
+    /// Fits the market over `rows` of `market` (normally one segment's clean rows).
+    pub fn fit(&self, market: &Market, rows: &[usize]) -> Result<HedonicModel, FitError> {
+        let as_of_year = self.as_of.year();
+        let design = Design::for_rows(market, rows, self.age_form, as_of_year);
+        let p = design.width();
+        if rows.len() <= p {
+            return Err(FitError::TooFewRows {
+                rows: rows.len(),
+                terms: p,
+                names: design.names.join(", "),
+            });
+        }
+        let factor = accumulate(market, rows, &design, as_of_year, None);
+        let ys = rows.iter().map(|&r| market.asking_price[r].ln());
+        let ols = OlsFit::from_factor(factor, true, ys).map_err(|e| fit_error(e, &design))?;
+        let mut coefficients = ols.coefficients().to_vec();
+        let mut residuals = residuals(market, rows, &design, as_of_year, &coefficients);
+        let rss: f64 = residuals.iter().map(|r| r * r).sum();
+        let df = (rows.len() - p) as f64;
+        let mut residual_sd = (rss / df).sqrt();
+        let mut coefficient_sd = residual_sd;
+        let mut iterations = 0;
+        if self.robust {
+            let outcome = robust::huber(self, market, rows, &design, coefficients, residuals)?;
+            coefficients = outcome.coefficients;
+            residuals = outcome.residuals;
+            residual_sd = outcome.scale;
+            coefficient_sd = outcome.coefficient_sd;
+            iterations = outcome.iterations;
+        }
+        let factor = ols.factor().clone();
+        let std_errors = factor
+            .unscaled_variances()
+            .into_iter()
+            .map(|v| coefficient_sd * v.sqrt())
+            .collect();
+        let tss = centred_ss(rows.iter().map(|&r| market.asking_price[r].ln()));
+        let rss: f64 = residuals.iter().map(|r| r * r).sum();
+        // Duan (1983): the mean of exp(e) over the residuals converts a median to a mean.
+        let smearing = residuals.iter().map(|r| r.exp()).sum::<f64>() / residuals.len() as f64;
+        Ok(HedonicModel {
+            params: *self,
+            mileage: MileageProfile::from_rows(market, rows, as_of_year),
+            design,
+            coefficients,
+            std_errors,
+            factor,
+            residual_sd,
+            coefficient_sd,
+            rows: rows.len(),
+            r_squared: 1.0 - rss / tss,
+            smearing,
+            iterations,
+        })
+    }
+}
+
+fn fit_error(e: OlsError, design: &Design) -> FitError {
+    match e {
+        OlsError::Collinear { column } => FitError::Collinear {
+            term: design.names.get(column).cloned().unwrap_or_default(),
+        },
+        OlsError::TooFewRows { rows, coefficients } => FitError::TooFewRows {
+            rows,
+            terms: coefficients,
+            names: design.names.join(", "),
+        },
+        other => FitError::Ols(other.to_string()),
+    }
+}
+
+fn centred_ss(values: impl Iterator<Item = f64>) -> f64 {
+    // Welford's update: one pass, no cancellation.
+    let (mut n, mut mean, mut m2) = (0.0, 0.0, 0.0);
+    for v in values {
+        n += 1.0;
+        let d = v - mean;
+        mean += d / n;
+        m2 += d * (v - mean);
+    }
+    m2
+}
+
+/// Folds the design rows (optionally weighted) into a QR factor, splitting the rows over the
+/// machine's cores.
+pub(crate) fn accumulate(
+    market: &Market,
+    rows: &[usize],
+    design: &Design,
+    as_of_year: i32,
+    weights: Option<&[f64]>,
+) -> QrFactor {
+    let p = design.width();
+    let threads = std::thread::available_parallelism().map_or(1, std::num::NonZero::get);
+    let per = rows.len().div_ceil(threads.max(1)).max(1);
+    let fold = |start: usize| {
+        let end = (start + per).min(rows.len());
+        let mut acc = QrAccumulator::new(p);
+        let mut x = vec![0.0; p];
+        for i in start..end {
+            let r = rows[i];
+            design.fill_row(
+                age_years(market.model_year[r], as_of_year),
+                market.miles[r],
+                market.variant[r],
+                market.condition[r],
+                &mut x,
+            );
+            let mut y = market.asking_price[r].ln();
+            if let Some(w) = weights {
+                let s = w[i].sqrt();
+                x.iter_mut().for_each(|v| *v *= s);
+                y *= s;
+            }
+            acc.push_row(&x, y);
+        }
+        acc
+    };
+    let starts: Vec<usize> = (0..rows.len()).step_by(per).collect();
+    let parts: Vec<QrAccumulator> = if starts.len() > 1 && rows.len() > 20_000 {
+        std::thread::scope(|s| {
+            let handles: Vec<_> = starts.iter().map(|&st| s.spawn(move || fold(st))).collect();
+            handles.into_iter().filter_map(|h| h.join().ok()).collect()
+        })
+    } else {
+        starts.iter().map(|&st| fold(st)).collect()
+    };
+    let mut total = QrAccumulator::new(p);
+    for part in parts {
+        total.merge(part);
+    }
+    total.finish()
+}
+
+/// ln(price) residuals of `rows` under `coefficients`.
+pub(crate) fn residuals(
+    market: &Market,
+    rows: &[usize],
+    design: &Design,
+    as_of_year: i32,
+    coefficients: &[f64],
+) -> Vec<f64> {
+    let mut x = vec![0.0; design.width()];
+    rows.iter()
+        .map(|&r| {
+            design.fill_row(
+                age_years(market.model_year[r], as_of_year),
+                market.miles[r],
+                market.variant[r],
+                market.condition[r],
+                &mut x,
+            );
+            market.asking_price[r].ln() - dot(&x, coefficients)
+        })
+        .collect()
+}
+
+fn dot(a: &[f64], b: &[f64]) -> f64 {
+    a.iter().zip(b).map(|(x, y)| x * y).sum()
+}
+
+impl HedonicModel {
+    /// The settings the model was fitted with.
+    #[must_use]
+    pub fn params(&self) -> &ValidHedonicParams {
+        &self.params
+    }
+
+    /// The design (levels and term names).
+    #[must_use]
+    pub fn design(&self) -> &Design {
+        &self.design
+    }
+
+    /// The typical-mileage profile of the fitted rows.
+    #[must_use]
+    pub fn mileage(&self) -> &MileageProfile {
+        &self.mileage
+    }
+
+    /// Coefficients, intercept first, in [`Design::names`] order.
+    #[must_use]
+    pub fn coefficients(&self) -> &[f64] {
+        &self.coefficients
+    }
+
+    /// Listings fitted.
+    #[must_use]
+    pub fn rows(&self) -> usize {
+        self.rows
+    }
+
+    /// Residual degrees of freedom.
+    #[must_use]
+    pub fn df_residual(&self) -> usize {
+        self.rows - self.coefficients.len()
+    }
+
+    /// Residual SD of ln price (robust scale for the Huber fit).
+    #[must_use]
+    pub fn residual_sd(&self) -> f64 {
+        self.residual_sd
+    }
+
+    /// R² of ln price.
+    #[must_use]
+    pub fn r_squared(&self) -> f64 {
+        self.r_squared
+    }
+
+    /// Duan's smearing factor.
+    #[must_use]
+    pub fn smearing(&self) -> f64 {
+        self.smearing
+    }
+
+    /// IRLS iterations used (0 for least squares).
+    #[must_use]
+    pub fn iterations(&self) -> u32 {
+        self.iterations
+    }
+
+    /// Appraisal year ages are counted to.
+    #[must_use]
+    pub fn as_of_year(&self) -> i32 {
+        self.params.as_of.year()
+    }
+
+    /// Every term with its estimate, standard error, t, p and percentage effect.
+    #[must_use]
+    pub fn terms(&self) -> Vec<Term> {
+        let df = self.df_residual() as f64;
+        self.design
+            .names
+            .iter()
+            .zip(&self.coefficients)
+            .zip(&self.std_errors)
+            .map(|((name, &b), &se)| {
+                let t = b / se;
+                Term {
+                    name: name.clone(),
+                    estimate: b,
+                    std_error: se,
+                    t_value: t,
+                    p_value: stats::t_p_value(t, df),
+                    percent_effect: 100.0 * (b.exp() - 1.0),
+                }
+            })
+            .collect()
+    }
+
+    /// The design row for `attributes`.
+    #[must_use]
+    pub fn design_row(&self, a: &Attributes) -> Vec<f64> {
+        let mut x = vec![0.0; self.design.width()];
+        self.design.fill_row(a.age_years, a.miles, a.variant, a.condition, &mut x);
+        x
+    }
+
+    /// Fitted ln price for `attributes`.
+    #[must_use]
+    pub fn log_price(&self, a: &Attributes) -> f64 {
+        dot(&self.design_row(a), &self.coefficients)
+    }
+
+    /// Fitted ln price of market row `row`.
+    #[must_use]
+    pub fn log_price_of_row(&self, market: &Market, row: usize) -> f64 {
+        self.log_price(&self.attributes_of_row(market, row))
+    }
+
+    /// The attributes of market row `row`.
+    #[must_use]
+    pub fn attributes_of_row(&self, market: &Market, row: usize) -> Attributes {
+        Attributes {
+            age_years: age_years(market.model_year[row], self.as_of_year()),
+            miles: market.miles[row],
+            variant: market.variant[row],
+            condition: market.condition[row],
+        }
+    }
+
+    /// `x'(X'X)^-1 x` for `attributes`: the leverage a listing with them would have.
+    #[must_use]
+    pub fn leverage(&self, a: &Attributes) -> f64 {
+        self.factor.leverage_of(&self.design_row(a))
+    }
+
+    /// Market value in currency with both intervals at `level` (e.g. 0.8).
+    #[must_use]
+    pub fn estimate(&self, a: &Attributes, level: f64) -> ValueEstimate {
+        let log_fitted = self.log_price(a);
+        let h = self.leverage(a);
+        let log_se_fit = self.coefficient_sd * h.sqrt();
+        let log_se_prediction = (self.residual_sd.powi(2) + self.coefficient_sd.powi(2) * h).sqrt();
+        let t = stats::t_two_sided(level, self.df_residual() as f64);
+        let median = log_fitted.exp();
+        ValueEstimate {
+            median,
+            mean: median * self.smearing,
+            confidence_interval: Interval {
+                lower: (log_fitted - t * log_se_fit).exp(),
+                upper: (log_fitted + t * log_se_fit).exp(),
+                level,
+            },
+            prediction_interval: Interval {
+                lower: (log_fitted - t * log_se_prediction).exp(),
+                upper: (log_fitted + t * log_se_prediction).exp(),
+                level,
+            },
+            log_fitted,
+            log_se_fit,
+            log_se_prediction,
+        }
+    }
+
+    /// The part of ln price that depends on age alone, at (possibly fractional) `age`.
+    #[must_use]
+    pub fn age_effect(&self, age: f64) -> f64 {
+        let mut x = vec![0.0; self.design.width()];
+        let base_variant = self.design.variants.first().copied().unwrap_or(crate::vocabulary::NO_NAME);
+        let base_condition = self.design.conditions.first().copied().unwrap_or(Condition::Used);
+        self.design.fill_row(age, 0.0, base_variant, base_condition, &mut x);
+        dot(&x, &self.coefficients) - self.coefficients[0]
+    }
+
+    /// Coefficient on ln price per mile.
+    #[must_use]
+    pub fn miles_slope(&self) -> f64 {
+        self.coefficients[self.design.miles_column()] / MILES_UNIT
+    }
+
+    /// ln-price effect of a variant relative to the base variant (0 for the base or unknown).
+    #[must_use]
+    pub fn variant_effect(&self, variant: NameId) -> f64 {
+        let first = self.design.miles_column() + 1;
+        match self.design.variants.iter().position(|v| *v == variant) {
+            Some(pos) if pos > 0 => self.coefficients[first + pos - 1],
+            _ => 0.0,
+        }
+    }
+
+    /// ln-price effect of a condition relative to the base condition (0 for the base or unknown).
+    #[must_use]
+    pub fn condition_effect(&self, condition: Condition) -> f64 {
+        let first = self.design.miles_column() + self.design.variants.len();
+        match self.design.conditions.iter().position(|c| *c == condition) {
+            Some(pos) if pos > 0 => self.coefficients[first + pos - 1],
+            _ => 0.0,
+        }
+    }
+
+    /// Average annual depreciation over ages 0..`horizon`.
+    #[must_use]
+    pub fn annual_depreciation(&self, horizon_years: u32) -> AnnualDepreciation {
+        let h = f64::from(horizon_years.max(1));
+        let age_only = (self.age_effect(h) - self.age_effect(0.0)) / h;
+        let miles_part = self.miles_slope() * (self.mileage.typical_miles(h) - self.mileage.typical_miles(0.0)) / h;
+        AnnualDepreciation {
+            horizon_years: horizon_years.max(1),
+            age_only_pct: 100.0 * (1.0 - age_only.exp()),
+            with_typical_miles_pct: 100.0 * (1.0 - (age_only + miles_part).exp()),
+        }
+    }
+}

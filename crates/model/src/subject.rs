@@ -1,0 +1,132 @@
+//! The subject vehicle: the one being appraised.
+
+use serde::{Deserialize, Serialize};
+
+use crate::condition::Condition;
+use crate::market::Listing;
+
+/// The vehicle being appraised.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Subject {
+    /// Model year.
+    pub model_year: i32,
+    /// Make.
+    pub make: String,
+    /// Model.
+    pub model: String,
+    /// Variant (trim); `None` when the market has none.
+    pub variant: Option<String>,
+    /// Odometer in miles.
+    pub miles: f64,
+    /// Condition class.
+    pub condition: Condition,
+    /// Options, free text.
+    #[serde(default)]
+    pub options: Option<String>,
+    /// VIN.
+    #[serde(default)]
+    pub vin: Option<String>,
+}
+
+/// Why a subject description could not be read.
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+pub enum SubjectError {
+    /// A required key is absent.
+    #[error("subject: '{0}' is missing (write e.g. \"year=2021,make=Quellmark,model=Tessel,variant=Plus,miles=48000,condition=used\")")]
+    Missing(&'static str),
+    /// A value is unreadable.
+    #[error("subject: {key}='{value}' is not valid: {why}")]
+    BadValue {
+        /// Key.
+        key: String,
+        /// Value.
+        value: String,
+        /// What was expected.
+        why: &'static str,
+    },
+    /// A key is not known.
+    #[error("subject: unknown key '{0}' (known: year, make, model, variant, miles, condition, options, vin)")]
+    UnknownKey(String),
+    /// A part lacks `=`.
+    #[error("subject: '{0}' is not key=value")]
+    NotKeyValue(String),
+}
+
+impl Subject {
+    /// Reads `"year=2021,make=Quellmark,model=Tessel,variant=Plus,miles=48000,condition=used"`.
+    /// Condition defaults to used; variant, options and VIN are optional.
+    pub fn parse(spec: &str) -> Result<Self, SubjectError> {
+        let (mut year, mut make, mut model, mut variant, mut miles) = (None, None, None, None, None);
+        let mut condition = Condition::Used;
+        let (mut options, mut vin) = (None, None);
+        for part in spec.split(',').map(str::trim).filter(|p| !p.is_empty()) {
+            let (key, value) = part
+                .split_once('=')
+                .ok_or_else(|| SubjectError::NotKeyValue(part.to_owned()))?;
+            let (key, value) = (key.trim().to_ascii_lowercase(), value.trim());
+            let bad = |why| SubjectError::BadValue {
+                key: key.clone(),
+                value: value.to_owned(),
+                why,
+            };
+            match key.as_str() {
+                "year" | "model_year" => {
+                    year = Some(crate::import::parse_year(value).filter(|y| (1900..=2200).contains(y)).ok_or_else(|| bad("a model year such as 2021"))? as i32);
+                }
+                "make" => make = Some(value.to_owned()),
+                "model" => model = Some(value.to_owned()),
+                "variant" | "trim" => variant = Some(value.to_owned()).filter(|v| !v.is_empty()),
+                "miles" | "mileage" => {
+                    miles = Some(
+                        crate::import::parse_number(value)
+                            .filter(|m| (0.0..=crate::import::MAX_MILES).contains(m))
+                            .ok_or_else(|| bad("miles between 0 and 1,000,000"))?,
+                    );
+                }
+                "condition" => condition = Condition::parse(value).ok_or_else(|| bad("new, used or certified"))?,
+                "options" => options = Some(value.to_owned()),
+                "vin" => vin = Some(value.to_ascii_uppercase()),
+                _ => return Err(SubjectError::UnknownKey(key)),
+            }
+        }
+        Ok(Self {
+            model_year: year.ok_or(SubjectError::Missing("year"))?,
+            make: make.ok_or(SubjectError::Missing("make"))?,
+            model: model.ok_or(SubjectError::Missing("model"))?,
+            variant,
+            miles: miles.ok_or(SubjectError::Missing("miles"))?,
+            condition,
+            options,
+            vin,
+        })
+    }
+
+    /// A subject with the attributes of a listing (picking a listing as the subject).
+    #[must_use]
+    pub fn from_listing(listing: &Listing) -> Self {
+        Self {
+            model_year: listing.model_year,
+            make: listing.make.clone(),
+            model: listing.model.clone(),
+            variant: listing.variant.clone(),
+            miles: listing.miles,
+            condition: listing.condition,
+            options: listing.options.clone(),
+            vin: listing.vin.clone(),
+        }
+    }
+
+    /// One-line description, e.g. "2021 Quellmark Tessel Plus, 48,000 mi, used".
+    #[must_use]
+    pub fn describe(&self) -> String {
+        format!(
+            "{} {} {}{}, {} mi, {}",
+            self.model_year,
+            self.make,
+            self.model,
+            self.variant.as_deref().map(|v| format!(" {v}")).unwrap_or_default(),
+            crate::format::thousands(self.miles),
+            self.condition
+        )
+    }
+}
