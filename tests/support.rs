@@ -10,13 +10,22 @@ pub fn data_path(name: &str) -> PathBuf {
     PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("data").join(name)
 }
 
-/// Reads a numeric CSV whose first column is the response: returns (X, y) and the header.
+/// Reads a numeric CSV whose first column is the response: returns (X, y).
+///
+/// # Panics
+/// On a missing or malformed reference file: these are fixed test inputs.
+#[must_use]
+pub fn read_reference(name: &str) -> (Array2<f64>, Array1<f64>) {
+    read_reference_with_response(name, 0)
+}
+
+/// Reads a numeric CSV, taking column `response` as y and the others, in order, as X.
 ///
 /// # Panics
 /// On a missing or malformed reference file: these are fixed test inputs.
 #[must_use]
 #[allow(clippy::expect_used)]
-pub fn read_reference(name: &str) -> (Array2<f64>, Array1<f64>) {
+pub fn read_reference_with_response(name: &str, response: usize) -> (Array2<f64>, Array1<f64>) {
     let text = std::fs::read_to_string(data_path(name)).expect("reference file");
     let mut lines = text.lines();
     let header = lines.next().expect("header");
@@ -28,8 +37,13 @@ pub fn read_reference(name: &str) -> (Array2<f64>, Array1<f64>) {
             .split(',')
             .map(|v| v.trim().parse().expect("number"))
             .collect();
-        ys.push(values[0]);
-        xs.extend_from_slice(&values[1..]);
+        for (j, v) in values.into_iter().enumerate() {
+            if j == response {
+                ys.push(v);
+            } else {
+                xs.push(v);
+            }
+        }
     }
     let n = ys.len();
     (

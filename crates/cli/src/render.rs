@@ -61,7 +61,7 @@ pub fn fit(f: &FitSummary) -> String {
     }
     let _ = writeln!(
         o,
-        "\nln(asking price) fit, {:?} age, {}: n = {}, residual SD {:.4}, R² {:.4}, smearing {:.4}",
+        "\nln(asking price) fit, {} age, {}: n = {}, residual SD {:.4}, R² {:.4}, smearing {:.4}",
         f.age_form,
         if f.robust { "Huber robust" } else { "least squares" },
         thousands(f.n as f64),
@@ -73,8 +73,12 @@ pub fn fit(f: &FitSummary) -> String {
     for t in &f.terms {
         let _ = writeln!(
             o,
-            "  {:<26} {:>12.6} {:>11.6} {:>9.2} {:>+10.2}",
-            t.name, t.estimate, t.std_error, t.t_value, t.percent_effect
+            "  {:<26} {:>12.6} {:>11.6} {:>9.2} {:>10}",
+            t.name,
+            t.estimate,
+            t.std_error,
+            t.t_value,
+            t.percent_effect.map(|p| format!("{p:+.2}")).unwrap_or_default()
         );
     }
     let d = &f.annual_depreciation;
@@ -127,7 +131,7 @@ pub fn appraisal(doc: &AppraisalDocument) -> String {
             l.location.as_deref().unwrap_or("unknown place"),
             l.vin.as_deref().unwrap_or("none"),
             l.listed_on.map_or_else(|| "on an unknown date".to_owned(), |d| d.to_string()),
-            c.days_listed.map(|d| format!(" ({d} days)")).unwrap_or_default()
+            c.days_listed.map(|d| format!(" ({d} day{})", if d == 1 { "" } else { "s" })).unwrap_or_default()
         );
         for b in &c.rule_breaks {
             let _ = writeln!(o, "   breaks rule: {b}");
@@ -179,7 +183,7 @@ pub fn appraisal(doc: &AppraisalDocument) -> String {
     if let Some(f) = &doc.forecast {
         let _ = writeln!(
             o,
-            "Forecast after {:.0} months and {} more miles: {} ({} , {:+.1} %), {level:.0} % prediction interval {} to {}{}",
+            "Forecast after {:.0} months and {} more miles: {} ({}, {:+.1} %), {level:.0} % prediction interval {} to {}{}",
             f.months,
             thousands(f.added_miles),
             money(f.then.median),

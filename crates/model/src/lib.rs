@@ -28,3 +28,4 @@ pub mod forecast;
 pub mod gaps;
 pub mod backtest;
 pub mod cautions;
+pub mod supply;

@@ -27,6 +27,16 @@ pub enum AgeForm {
     PerYear,
 }
 
+impl std::fmt::Display for AgeForm {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(match self {
+            AgeForm::Linear => "linear",
+            AgeForm::Quadratic => "quadratic",
+            AgeForm::PerYear => "per-year",
+        })
+    }
+}
+
 impl AgeForm {
     /// Reads "linear", "quadratic" or "per-year".
     #[must_use]

@@ -146,8 +146,9 @@ pub struct Term {
     pub t_value: f64,
     /// Two-sided p-value.
     pub p_value: f64,
-    /// 100 (e^b - 1): the percentage change in price per unit of the term.
-    pub percent_effect: f64,
+    /// 100 (e^b - 1): the percentage change in price per unit of the term (none for the
+    /// intercept, which is a level, not an effect).
+    pub percent_effect: Option<f64>,
 }
 
 /// Average annual depreciation over a horizon, from the fitted curve.
@@ -459,7 +460,7 @@ impl HedonicModel {
                     std_error: se,
                     t_value: t,
                     p_value: stats::t_p_value(t, df),
-                    percent_effect: 100.0 * (b.exp() - 1.0),
+                    percent_effect: (name != "intercept").then(|| 100.0 * (b.exp() - 1.0)),
                 }
             })
             .collect()
