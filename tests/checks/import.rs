@@ -157,3 +157,31 @@ fn a_line_with_too_many_fields_is_an_error_not_a_panic() {
         assert!(e.to_string().contains("test.csv"), "{e}");
     }
 }
+
+#[test]
+fn a_large_file_parsed_on_several_threads_matches_its_lines() {
+    // Large enough for the parallel path; plant bad rows on both sides of the split.
+    let text = String::from_utf8(model::demo::demo_csv_bytes(80_000, 12)).unwrap();
+    let mut lines: Vec<String> = text.lines().map(str::to_owned).collect();
+    for bad in [10_000usize, 45_000, 79_000] {
+        let mut fields: Vec<String> = lines[bad].split(',').map(str::to_owned).collect();
+        fields[4] = "n/a".into();
+        lines[bad] = fields.join(",");
+    }
+    let (market, report) = import(&(lines.join("\n") + "\n")).unwrap();
+    let rejected: Vec<u64> = report.rejected.iter().map(|r| r.line).collect();
+    assert_eq!(rejected, vec![10_001, 45_001, 79_001]);
+    assert_eq!(market.len(), 80_000 - 3);
+    assert!(market.line.windows(2).all(|w| w[0] < w[1]));
+    for row in [0, 39_999, 40_000, 44_998, 60_000, market.len() - 1] {
+        let listing = market.listing(row);
+        let fields: Vec<&str> = lines[(listing.line - 1) as usize].split(',').collect();
+        assert_eq!(listing.model_year.to_string(), fields[0]);
+        assert_eq!(listing.make, fields[1]);
+        assert_eq!(listing.model, fields[2]);
+        assert_eq!(listing.variant.as_deref(), Some(fields[3]));
+        assert_eq!(format!("{:.0}", listing.asking_price), fields[4]);
+        assert_eq!(listing.vin.as_deref(), Some(fields[10]));
+        assert_eq!(listing.seller.as_deref(), Some(fields[11]));
+    }
+}

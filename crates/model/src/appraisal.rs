@@ -8,7 +8,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::adjustment::{model_lines, net_and_gross, user_lines, AdjustmentLine, SubjectTerms, UserAdjustment};
 use crate::clean::{clean_segment, CleaningRules, Overrides, SegmentCleaning};
-use crate::comparables::{choose_comparables, ComparableChoices, ComparableRules, RuleBreak, SubjectKey};
+use crate::comparables::{choose_comparables, CandidateIndex, ComparableChoices, ComparableRules, RuleBreak, SubjectKey};
 use crate::hedonic::{age_years, AgeForm, Attributes, FitError, HedonicModel, HedonicParams, ValueEstimate};
 use crate::market::{Listing, Market, Segment};
 use crate::reconcile::{reconcile, ReconcileInput, Reconciliation};
@@ -98,6 +98,8 @@ pub struct MarketFit {
     pub model: HedonicModel,
     /// Rows used (cleaning's included rows), cached.
     pub included_rows: Vec<usize>,
+    /// Every row of the segment by model year, for the comparable search.
+    pub candidates: CandidateIndex,
 }
 
 /// Finds a segment by name, with an error listing what the market holds.
@@ -138,6 +140,7 @@ pub fn fit_market(
     Ok(MarketFit {
         segment,
         as_of,
+        candidates: CandidateIndex::new(market, &cleaning.rows),
         cleaning,
         model,
         included_rows,
@@ -259,14 +262,14 @@ pub fn subject_terms(market: &Market, fit: &MarketFit, subject: &Subject) -> Res
 
 /// Appraises `request.subject` against a fitted segment.
 pub fn appraise(market: &Market, fit: &MarketFit, request: &AppraisalRequest) -> Result<Appraisal, AppraisalError> {
-    appraise_among(market, fit, &fit.cleaning.rows, request)
+    appraise_among(market, fit, &fit.candidates, request)
 }
 
 /// As [`appraise`], choosing comparables only among `candidates` (the backtest holds rows out).
 pub fn appraise_among(
     market: &Market,
     fit: &MarketFit,
-    candidates: &[usize],
+    candidates: &CandidateIndex,
     request: &AppraisalRequest,
 ) -> Result<Appraisal, AppraisalError> {
     if !(request.level > 0.0 && request.level < 1.0) {

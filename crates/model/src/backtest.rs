@@ -13,7 +13,7 @@ use rand_chacha::ChaCha8Rng;
 use serde::{Deserialize, Serialize};
 
 use crate::appraisal::{appraise_among, AppraisalError, AppraisalRequest, MarketFit};
-use crate::comparables::ComparableRules;
+use crate::comparables::{CandidateIndex, ComparableRules};
 use crate::hedonic::HedonicParams;
 use crate::market::Market;
 use crate::stats;
@@ -102,12 +102,14 @@ pub fn backtest(
             .collect();
         training.sort_unstable();
         let model = params.fit(market, &training)?;
+        let candidates = CandidateIndex::new(market, &training);
         let fold_fit = MarketFit {
             segment: fit.segment,
             as_of: fit.as_of,
             cleaning: fit.cleaning.clone(),
             model,
-            included_rows: training.clone(),
+            included_rows: training,
+            candidates,
         };
         for &row in &held {
             let a = fold_fit.model.attributes_of_row(market, row);
@@ -127,7 +129,7 @@ pub fn backtest(
             let mut request = AppraisalRequest::new(Subject::from_listing(&market.listing(row)));
             request.rules = *rules;
             request.level = settings.level;
-            match appraise_among(market, &fold_fit, &training, &request) {
+            match appraise_among(market, &fold_fit, &fold_fit.candidates, &request) {
                 Ok(a) if !a.comparables.is_empty() => {
                     let price = market.asking_price[row];
                     let v = a.reconciliation.indicated_value;

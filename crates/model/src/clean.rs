@@ -7,7 +7,9 @@
 //! implausibly cheap listings (possible branded title or damage) and high outliers by their
 //! studentized residual.
 
-use std::collections::{BTreeMap, HashMap};
+use std::collections::BTreeMap;
+
+use foldhash::{HashMap, HashMapExt};
 
 use chrono::{Datelike, NaiveDate};
 use linfa::ParamGuard;
@@ -354,26 +356,35 @@ fn mark_outliers(
     }
     // Leverage from the sample's cross-products, rescaled to the number of listings scored.
     let leverage_scale = sample.len() as f64 / clean.len().max(1) as f64;
-    for (i, &r) in rows.iter().enumerate() {
-        if exclusions[i].is_some() {
-            continue;
-        }
+    let score = |r: usize, x: &mut [f64]| {
         let a = model.attributes_of_row(market, r);
-        let resid = market.asking_price[r].ln() - model.log_price(&a);
-        let h = (model.leverage(&a) * leverage_scale).min(0.99);
+        model.design().fill_row(a.age_years, a.miles, a.variant, a.condition, x);
+        let resid = market.asking_price[r].ln() - model.linear_predictor(x);
+        let h = (model.factor_leverage(x) * leverage_scale).min(0.99);
         let studentized = resid / (s * (1.0 - h).sqrt());
         let percent_of_market = 100.0 * resid.exp();
         if resid.exp() < rules.cheap_below_fraction || studentized < -rules.outlier_threshold {
-            exclusions[i] = Some(Exclusion::ImplausiblyCheap {
-                percent_of_market,
-                studentized,
-            });
+            Some(Exclusion::ImplausiblyCheap { percent_of_market, studentized })
         } else if studentized > rules.outlier_threshold {
-            exclusions[i] = Some(Exclusion::HighOutlier {
-                percent_of_market,
-                studentized,
+            Some(Exclusion::HighOutlier { percent_of_market, studentized })
+        } else {
+            None
+        }
+    };
+    let width = model.design().width();
+    let threads = std::thread::available_parallelism().map_or(1, std::num::NonZero::get);
+    let per = rows.len().div_ceil(threads).max(4_096);
+    std::thread::scope(|scope| {
+        for (row_part, exclusion_part) in rows.chunks(per).zip(exclusions.chunks_mut(per)) {
+            scope.spawn(move || {
+                let mut x = vec![0.0; width];
+                for (&r, e) in row_part.iter().zip(exclusion_part.iter_mut()) {
+                    if e.is_none() {
+                        *e = score(r, &mut x);
+                    }
+                }
             });
         }
-    }
+    });
     None
 }

@@ -295,40 +295,109 @@ pub fn filter_breaks(
     breaks
 }
 
-/// Chooses comparables for `subject` among the segment's listings.
+/// Candidate rows grouped by model year, so a search visits only the subject's year window.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct CandidateIndex {
+    by_year: BTreeMap<i32, Vec<usize>>,
+    total: usize,
+}
+
+impl CandidateIndex {
+    /// Indexes `rows` (any order) of `market`.
+    #[must_use]
+    pub fn new(market: &Market, rows: &[usize]) -> Self {
+        let mut by_year: BTreeMap<i32, Vec<usize>> = BTreeMap::new();
+        for &r in rows {
+            by_year.entry(market.model_year[r]).or_default().push(r);
+        }
+        for v in by_year.values_mut() {
+            v.sort_unstable();
+        }
+        Self { by_year, total: rows.len() }
+    }
+
+    /// Number of rows indexed.
+    #[must_use]
+    pub fn len(&self) -> usize {
+        self.total
+    }
+
+    /// Whether no row is indexed.
+    #[must_use]
+    pub fn is_empty(&self) -> bool {
+        self.total == 0
+    }
+
+    /// Whether `row` of `market` is a candidate.
+    #[must_use]
+    pub fn contains(&self, market: &Market, row: usize) -> bool {
+        self.by_year
+            .get(&market.model_year[row])
+            .is_some_and(|v| v.binary_search(&row).is_ok())
+    }
+
+    fn within(&self, first_year: i32, last_year: i32) -> impl Iterator<Item = usize> + '_ {
+        self.by_year.range(first_year..=last_year).flat_map(|(_, rows)| rows.iter().copied())
+    }
+}
+
+/// Chooses comparables for `subject` among the indexed candidates. Filters apply in this order,
+/// and a listing is counted under the first it fails: model-year window, mileage, listing age,
+/// distance, variant, cleaning exclusions, then the appraiser's exclusions.
 #[must_use]
 pub fn choose_comparables(
     market: &Market,
     cleaning: &SegmentCleaning,
-    candidates: &[usize],
+    candidates: &CandidateIndex,
     subject: &SubjectKey,
     rules: &ComparableRules,
     choices: &ComparableChoices,
     as_of: NaiveDate,
 ) -> ComparableSelection {
     let mut stopped_by: BTreeMap<String, usize> = BTreeMap::new();
+    let window = rules.model_year_window.max(0);
+    let (first, last) = (subject.model_year - window, subject.model_year + window);
+    let mut in_window = 0usize;
     let mut passing = Vec::new();
-    let mut forced = Vec::new();
-    for &row in candidates {
+    for row in candidates.within(first, last) {
+        in_window += 1;
         let line = market.line[row];
-        if choices.exclude.contains(&line) {
-            *stopped_by.entry("excluded_by_hand".into()).or_default() += 1;
-            continue;
+        if choices.include.contains(&line) {
+            continue; // handled below with every rule it breaks
         }
         let mut breaks = filter_breaks(market, row, subject, rules, as_of);
-        if !cleaning.is_included(row) {
+        if breaks.is_empty() && !cleaning.is_included(row) {
             if let Some(e) = cleaning.exclusion_of(row) {
-                breaks.insert(0, RuleBreak::Excluded { code: e.code().to_owned() });
+                breaks.push(RuleBreak::Excluded { code: e.code().to_owned() });
             }
         }
-        if choices.include.contains(&line) {
-            forced.push((row, breaks));
-        } else if let Some(first) = breaks.first() {
-            *stopped_by.entry(first.code().into()).or_default() += 1;
+        if let Some(b) = breaks.first() {
+            *stopped_by.entry(b.code().into()).or_default() += 1;
+        } else if choices.exclude.contains(&line) {
+            *stopped_by.entry("excluded_by_hand".into()).or_default() += 1;
         } else {
             passing.push(row);
         }
     }
+    let outside = candidates.len() - in_window;
+    if outside > 0 {
+        stopped_by.insert(RuleBreak::ModelYearOutsideWindow { years_apart: 0, window }.code().into(), outside);
+    }
+    let forced: Vec<(usize, Vec<RuleBreak>)> = choices
+        .include
+        .iter()
+        .filter_map(|line| market.line.binary_search(line).ok())
+        .filter(|&row| candidates.contains(market, row) && !choices.exclude.contains(&market.line[row]))
+        .map(|row| {
+            let mut breaks = filter_breaks(market, row, subject, rules, as_of);
+            if !cleaning.is_included(row) {
+                if let Some(e) = cleaning.exclusion_of(row) {
+                    breaks.push(RuleBreak::Excluded { code: e.code().to_owned() });
+                }
+            }
+            (row, breaks)
+        })
+        .collect();
     let passed = passing.len();
     let pool: Vec<usize> = passing.iter().copied().chain(forced.iter().map(|(r, _)| *r)).collect();
     let ranges = Ranges::over(market, &pool, subject, as_of);

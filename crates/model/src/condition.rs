@@ -21,7 +21,15 @@ impl Condition {
     /// Reads the common spellings found in listing feeds; `None` when unrecognised.
     #[must_use]
     pub fn parse(text: &str) -> Option<Self> {
-        match text.trim().to_ascii_lowercase().as_str() {
+        let t = text.trim();
+        // Exact lower-case spellings first: no allocation on the common path.
+        match t {
+            "used" => return Some(Self::Used),
+            "new" => return Some(Self::New),
+            "certified" => return Some(Self::Certified),
+            _ => {}
+        }
+        match t.to_ascii_lowercase().as_str() {
             "new" | "n" => Some(Self::New),
             "used" | "u" | "pre-owned" | "preowned" | "pre owned" => Some(Self::Used),
             "certified" | "cpo" | "c" | "certified pre-owned" | "certified preowned" => {
@@ -70,10 +78,14 @@ impl TitleStatus {
     /// Reads a title column value; empty text means unknown and returns `None`.
     #[must_use]
     pub fn parse(text: &str) -> Option<Self> {
-        let t = text.trim().to_ascii_lowercase();
+        let t = text.trim();
         if t.is_empty() {
             return None;
         }
+        if t == "clean" {
+            return Some(Self::Clean);
+        }
+        let t = t.to_ascii_lowercase();
         Some(match t.as_str() {
             "clean" | "clear" | "none" => Self::Clean,
             "salvage" => Self::Salvage,

@@ -16,7 +16,7 @@ pub struct MarketSource {
     pub file_name: String,
     /// Data rows in the file, header excluded.
     pub rows_read: usize,
-    /// FNV-1a 64-bit hash of the file's bytes, hex.
+    /// XXH3-64 hash of the file's bytes (see [`content_hash`]).
     pub content_hash: String,
 }
 
@@ -163,7 +163,7 @@ impl Market {
     /// Every segment with its listing count, largest first.
     #[must_use]
     pub fn segments(&self) -> Vec<(Segment, usize)> {
-        let mut counts: std::collections::HashMap<Segment, usize> = std::collections::HashMap::new();
+        let mut counts: foldhash::HashMap<Segment, usize> = foldhash::HashMap::default();
         for i in 0..self.len() {
             *counts.entry(self.segment_of(i)).or_default() += 1;
         }
@@ -239,6 +239,32 @@ impl Market {
         }
     }
 
+    /// Appends another market's rows, re-interning its names into this market's vocabulary.
+    pub fn append(&mut self, other: Market) {
+        let ids: Vec<NameId> = (0..other.names.len() as NameId)
+            .map(|id| self.names.intern(other.names.name(id)))
+            .collect();
+        let map = |id: NameId| if id == NO_NAME { NO_NAME } else { ids[id as usize] };
+        self.line.extend(other.line);
+        self.model_year.extend(other.model_year);
+        self.make.extend(other.make.into_iter().map(map));
+        self.model.extend(other.model.into_iter().map(map));
+        self.variant.extend(other.variant.into_iter().map(map));
+        self.asking_price.extend(other.asking_price);
+        self.miles.extend(other.miles);
+        self.condition.extend(other.condition);
+        self.listed_on.extend(other.listed_on);
+        self.sold_on.extend(other.sold_on);
+        self.sale_price.extend(other.sale_price);
+        self.vin.extend(other.vin);
+        self.seller.extend(other.seller.into_iter().map(map));
+        self.location.extend(other.location.into_iter().map(map));
+        self.coordinates.extend(other.coordinates);
+        self.distance_miles.extend(other.distance_miles);
+        self.title.extend(other.title);
+        self.options.extend(other.options.into_iter().map(map));
+    }
+
     /// Appends an owned listing (used to rebuild a market from saved evidence and in tests).
     pub fn push(&mut self, listing: &Listing) {
         let intern = |names: &mut Vocabulary, v: &Option<String>| {
@@ -271,14 +297,9 @@ impl Market {
     }
 }
 
-/// FNV-1a 64-bit hash of bytes, as 16 hex digits: a content fingerprint for the saved evidence
-/// (not a security hash).
+/// XXH3 64-bit hash of bytes, as 16 hex digits prefixed "xxh3:": a content fingerprint for
+/// the saved evidence, to tell whether a market file changed (not a security hash).
 #[must_use]
 pub fn content_hash(bytes: &[u8]) -> String {
-    let mut h: u64 = 0xcbf2_9ce4_8422_2325;
-    for &b in bytes {
-        h ^= u64::from(b);
-        h = h.wrapping_mul(0x0000_0100_0000_01b3);
-    }
-    format!("{h:016x}")
+    format!("xxh3:{:016x}", xxhash_rust::xxh3::xxh3_64(bytes))
 }

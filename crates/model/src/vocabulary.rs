@@ -1,6 +1,6 @@
 //! Interned names (makes, models, variants, sellers): one copy of each distinct string.
 
-use std::collections::HashMap;
+use foldhash::HashMap;
 
 /// Index of a name in a [`Vocabulary`].
 pub type NameId = u32;

@@ -474,6 +474,18 @@ impl HedonicModel {
         x
     }
 
+    /// `x' b` for a full design row.
+    #[must_use]
+    pub fn linear_predictor(&self, design_row: &[f64]) -> f64 {
+        dot(design_row, &self.coefficients)
+    }
+
+    /// `x'(X'X)^-1 x` for a full design row.
+    #[must_use]
+    pub fn factor_leverage(&self, design_row: &[f64]) -> f64 {
+        self.factor.leverage_of(design_row)
+    }
+
     /// Fitted ln price for `attributes`.
     #[must_use]
     pub fn log_price(&self, a: &Attributes) -> f64 {

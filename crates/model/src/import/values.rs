@@ -6,6 +6,10 @@ use chrono::NaiveDate;
 /// word ("mi", "km", "miles"). Returns `None` for anything else.
 #[must_use]
 pub fn parse_number(text: &str) -> Option<f64> {
+    // Most feeds write plain numbers: parse them without building a cleaned copy.
+    if let Ok(v) = text.trim().parse::<f64>() {
+        return v.is_finite().then_some(v);
+    }
     let mut cleaned = String::with_capacity(text.len());
     let t = text.trim();
     let t = t
@@ -41,11 +45,26 @@ pub fn parse_year(text: &str) -> Option<i64> {
 #[must_use]
 pub fn parse_date(text: &str) -> Option<NaiveDate> {
     let t = text.trim();
+    if let Some(d) = parse_iso_date(t) {
+        return Some(d);
+    }
     let head = t.get(..10).unwrap_or(t);
     NaiveDate::parse_from_str(head, "%Y-%m-%d")
         .or_else(|_| NaiveDate::parse_from_str(head, "%Y/%m/%d"))
         .or_else(|_| NaiveDate::parse_from_str(t, "%m/%d/%Y"))
         .ok()
+}
+
+/// `YYYY-MM-DD` (optionally followed by a time) without going through a format string.
+fn parse_iso_date(t: &str) -> Option<NaiveDate> {
+    let b = t.as_bytes();
+    if b.len() < 10 || b[4] != b'-' || b[7] != b'-' || (b.len() > 10 && !matches!(b[10], b'T' | b' ')) {
+        return None;
+    }
+    let digits = |range: std::ops::Range<usize>| {
+        b[range].iter().try_fold(0u32, |acc, &c| c.is_ascii_digit().then(|| acc * 10 + u32::from(c - b'0')))
+    };
+    NaiveDate::from_ymd_opt(digits(0..4)? as i32, digits(5..7)?, digits(8..10)?)
 }
 
 #[cfg(test)]

@@ -249,8 +249,16 @@ impl QrFactor {
     /// `x' (X'X)^-1 x`, computed as `||R^-T x||²` without forming the inverse.
     #[must_use]
     pub fn leverage_of(&self, x: &[f64]) -> f64 {
+        const STACK: usize = 64;
         let p = self.columns;
-        let mut z = vec![0.0; p];
+        let mut stack = [0.0; STACK];
+        let mut heap = Vec::new();
+        let z: &mut [f64] = if p <= STACK {
+            &mut stack[..p]
+        } else {
+            heap.resize(p, 0.0);
+            &mut heap
+        };
         for i in 0..p {
             let mut s = x[i];
             for k in 0..i {
