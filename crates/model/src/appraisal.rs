@@ -140,7 +140,7 @@ pub fn fit_market(
     Ok(MarketFit {
         segment,
         as_of,
-        candidates: CandidateIndex::new(market, &cleaning.rows),
+        candidates: CandidateIndex::new(market, &cleaning.rows, &cleaning),
         cleaning,
         model,
         included_rows,

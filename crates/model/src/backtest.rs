@@ -102,7 +102,7 @@ pub fn backtest(
             .collect();
         training.sort_unstable();
         let model = params.fit(market, &training)?;
-        let candidates = CandidateIndex::new(market, &training);
+        let candidates = CandidateIndex::new(market, &training, &fit.cleaning);
         let fold_fit = MarketFit {
             segment: fit.segment,
             as_of: fit.as_of,

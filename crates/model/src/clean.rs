@@ -178,6 +178,9 @@ pub struct SegmentCleaning {
     pub included: Vec<bool>,
     /// Why the outlier rules could not run, if they could not.
     pub outlier_check_skipped: Option<String>,
+    /// `included` by market row (false for rows of other segments): a constant-time lookup for
+    /// the comparable search.
+    included_by_row: Vec<bool>,
 }
 
 impl SegmentCleaning {
@@ -205,7 +208,7 @@ impl SegmentCleaning {
     /// Whether `row` is used.
     #[must_use]
     pub fn is_included(&self, row: usize) -> bool {
-        self.position(row).is_some_and(|i| self.included[i])
+        self.included_by_row.get(row).copied().unwrap_or(false)
     }
 
     /// Exclusions in force, counted by rule code.
@@ -247,17 +250,22 @@ pub fn clean_segment(
     }
     let overridden_in = |r: usize| matches!(overrides.get(&market.line[r]), Some(Override::Include { .. }));
     let outlier_check_skipped = mark_outliers(market, &rows, &mut exclusions, rules, age_form, as_of, &overridden_in);
-    let included = rows
+    let included: Vec<bool> = rows
         .iter()
         .zip(&exclusions)
         .map(|(&r, e)| e.is_none() || (overridden_in(r) && !matches!(e, Some(Exclusion::Manual { .. }))))
         .collect();
+    let mut included_by_row = vec![false; market.len()];
+    for (&r, &inc) in rows.iter().zip(&included) {
+        included_by_row[r] = inc;
+    }
     SegmentCleaning {
         segment,
         rows,
         exclusions,
         included,
         outlier_check_skipped,
+        included_by_row,
     }
 }
 

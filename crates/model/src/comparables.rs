@@ -258,6 +258,31 @@ pub struct ComparableSelection {
     pub stopped_by: BTreeMap<String, usize>,
 }
 
+/// The code of the first hard filter a candidate fails (the model-year window is not checked:
+/// the search visits only rows inside it). Allocation-free, for the search loop.
+fn first_failing_filter(c: &CandidateRow, subject: &SubjectKey, rules: &ComparableRules, as_of: NaiveDate) -> Option<&'static str> {
+    if let Some(b) = rules.mileage.check(subject.miles, c.miles) {
+        return Some(b.code());
+    }
+    if let (Some(limit), Some(listed)) = (rules.max_listing_age_days, c.listed_on) {
+        if (as_of - listed).num_days() > i64::from(limit) {
+            return Some("listing_too_old");
+        }
+    }
+    if let (Some(limit), Some(d)) = (rules.max_distance_miles, c.distance_miles) {
+        if f64::from(d) > limit {
+            return Some("too_far");
+        }
+    }
+    if rules.same_variant_only && c.variant != subject.variant {
+        return Some("other_variant");
+    }
+    if !c.included {
+        return Some("excluded_by_cleaning");
+    }
+    None
+}
+
 /// Checks one listing against the hard filters.
 #[must_use]
 pub fn filter_breaks(
@@ -295,23 +320,54 @@ pub fn filter_breaks(
     breaks
 }
 
+/// What the comparable search reads of one candidate, stored contiguously by model year so a
+/// search over a million-listing market reads sequential memory.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CandidateRow {
+    /// Market row.
+    pub row: usize,
+    /// Model year.
+    pub model_year: i32,
+    /// Miles.
+    pub miles: f64,
+    /// Listing date.
+    pub listed_on: Option<NaiveDate>,
+    /// Distance in miles.
+    pub distance_miles: Option<f32>,
+    /// Variant id.
+    pub variant: NameId,
+    /// Condition.
+    pub condition: Condition,
+    /// Whether cleaning kept it.
+    pub included: bool,
+}
+
 /// Candidate rows grouped by model year, so a search visits only the subject's year window.
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct CandidateIndex {
-    by_year: BTreeMap<i32, Vec<usize>>,
+    by_year: BTreeMap<i32, Vec<CandidateRow>>,
     total: usize,
 }
 
 impl CandidateIndex {
-    /// Indexes `rows` (any order) of `market`.
+    /// Indexes `rows` (any order) of `market`, with cleaning's verdict on each.
     #[must_use]
-    pub fn new(market: &Market, rows: &[usize]) -> Self {
-        let mut by_year: BTreeMap<i32, Vec<usize>> = BTreeMap::new();
-        for &r in rows {
-            by_year.entry(market.model_year[r]).or_default().push(r);
+    pub fn new(market: &Market, rows: &[usize], cleaning: &SegmentCleaning) -> Self {
+        let mut by_year: BTreeMap<i32, Vec<CandidateRow>> = BTreeMap::new();
+        for &row in rows {
+            by_year.entry(market.model_year[row]).or_default().push(CandidateRow {
+                row,
+                model_year: market.model_year[row],
+                miles: market.miles[row],
+                listed_on: market.listed_on[row],
+                distance_miles: market.distance_miles[row],
+                variant: market.variant[row],
+                condition: market.condition[row],
+                included: cleaning.is_included(row),
+            });
         }
         for v in by_year.values_mut() {
-            v.sort_unstable();
+            v.sort_unstable_by_key(|c| c.row);
         }
         Self { by_year, total: rows.len() }
     }
@@ -328,16 +384,15 @@ impl CandidateIndex {
         self.total == 0
     }
 
-    /// Whether `row` of `market` is a candidate.
+    /// The candidate record of `row` of `market`, if it is a candidate.
     #[must_use]
-    pub fn contains(&self, market: &Market, row: usize) -> bool {
-        self.by_year
-            .get(&market.model_year[row])
-            .is_some_and(|v| v.binary_search(&row).is_ok())
+    pub fn get(&self, market: &Market, row: usize) -> Option<&CandidateRow> {
+        let rows = self.by_year.get(&market.model_year[row])?;
+        rows.binary_search_by_key(&row, |c| c.row).ok().map(|i| &rows[i])
     }
 
-    fn within(&self, first_year: i32, last_year: i32) -> impl Iterator<Item = usize> + '_ {
-        self.by_year.range(first_year..=last_year).flat_map(|(_, rows)| rows.iter().copied())
+    fn within(&self, first_year: i32, last_year: i32) -> impl Iterator<Item = &CandidateRow> + '_ {
+        self.by_year.range(first_year..=last_year).flat_map(|(_, rows)| rows.iter())
     }
 }
 
@@ -354,72 +409,73 @@ pub fn choose_comparables(
     choices: &ComparableChoices,
     as_of: NaiveDate,
 ) -> ComparableSelection {
-    let mut stopped_by: BTreeMap<String, usize> = BTreeMap::new();
+    let mut stopped: BTreeMap<&'static str, usize> = BTreeMap::new();
     let window = rules.model_year_window.max(0);
     let (first, last) = (subject.model_year - window, subject.model_year + window);
     let mut in_window = 0usize;
-    let mut passing = Vec::new();
-    for row in candidates.within(first, last) {
+    let mut passing: Vec<&CandidateRow> = Vec::new();
+    let hand_picked = !choices.include.is_empty() || !choices.exclude.is_empty();
+    for c in candidates.within(first, last) {
         in_window += 1;
-        let line = market.line[row];
-        if choices.include.contains(&line) {
+        let line = if hand_picked { market.line[c.row] } else { 0 };
+        if hand_picked && choices.include.contains(&line) {
             continue; // handled below with every rule it breaks
         }
-        let mut breaks = filter_breaks(market, row, subject, rules, as_of);
-        if breaks.is_empty() && !cleaning.is_included(row) {
-            if let Some(e) = cleaning.exclusion_of(row) {
-                breaks.push(RuleBreak::Excluded { code: e.code().to_owned() });
-            }
-        }
-        if let Some(b) = breaks.first() {
-            *stopped_by.entry(b.code().into()).or_default() += 1;
-        } else if choices.exclude.contains(&line) {
-            *stopped_by.entry("excluded_by_hand".into()).or_default() += 1;
-        } else {
-            passing.push(row);
+        let failed = first_failing_filter(c, subject, rules, as_of)
+            .or_else(|| (hand_picked && choices.exclude.contains(&line)).then_some("excluded_by_hand"));
+        match failed {
+            Some(code) => *stopped.entry(code).or_default() += 1,
+            None => passing.push(c),
         }
     }
     let outside = candidates.len() - in_window;
     if outside > 0 {
-        stopped_by.insert(RuleBreak::ModelYearOutsideWindow { years_apart: 0, window }.code().into(), outside);
+        stopped.insert("model_year_outside_window", outside);
     }
-    let forced: Vec<(usize, Vec<RuleBreak>)> = choices
+    let stopped_by: BTreeMap<String, usize> = stopped.into_iter().map(|(k, v)| (k.to_owned(), v)).collect();
+    let forced: Vec<(&CandidateRow, Vec<RuleBreak>)> = choices
         .include
         .iter()
         .filter_map(|line| market.line.binary_search(line).ok())
-        .filter(|&row| candidates.contains(market, row) && !choices.exclude.contains(&market.line[row]))
-        .map(|row| {
-            let mut breaks = filter_breaks(market, row, subject, rules, as_of);
-            if !cleaning.is_included(row) {
-                if let Some(e) = cleaning.exclusion_of(row) {
+        .filter(|&row| !choices.exclude.contains(&market.line[row]))
+        .filter_map(|row| candidates.get(market, row))
+        .map(|c| {
+            let mut breaks = filter_breaks(market, c.row, subject, rules, as_of);
+            if !c.included {
+                if let Some(e) = cleaning.exclusion_of(c.row) {
                     breaks.push(RuleBreak::Excluded { code: e.code().to_owned() });
                 }
             }
-            (row, breaks)
+            (c, breaks)
         })
         .collect();
     let passed = passing.len();
-    let pool: Vec<usize> = passing.iter().copied().chain(forced.iter().map(|(r, _)| *r)).collect();
-    let ranges = Ranges::over(market, &pool, subject, as_of);
-    let distance = |row: usize| gower_to_subject(market, row, subject, &rules.weights, &ranges, as_of);
-    let mut ranked: Vec<(usize, f64)> = passing.into_iter().map(|r| (r, distance(r))).collect();
-    ranked.sort_by(|a, b| {
+    let ranges = Ranges::over(passing.iter().copied().chain(forced.iter().map(|(c, _)| *c)), subject, as_of);
+    let distance = |c: &CandidateRow| gower_to_subject(c, subject, &rules.weights, &ranges, as_of);
+    let mut ranked: Vec<(&CandidateRow, f64)> = passing.into_iter().map(|c| (c, distance(c))).collect();
+    // Most similar first; ties to the more recent listing, then file order (rows are in file order).
+    let order = |a: &(&CandidateRow, f64), b: &(&CandidateRow, f64)| {
         a.1.total_cmp(&b.1)
-            .then_with(|| market.listed_on[b.0].cmp(&market.listed_on[a.0]))
-            .then_with(|| market.line[a.0].cmp(&market.line[b.0]))
-    });
+            .then_with(|| b.0.listed_on.cmp(&a.0.listed_on))
+            .then_with(|| a.0.row.cmp(&b.0.row))
+    };
     let slots = rules.count.saturating_sub(forced.len());
+    if ranked.len() > slots && slots > 0 {
+        ranked.select_nth_unstable_by(slots - 1, order);
+        ranked.truncate(slots);
+    }
+    ranked.sort_by(order);
     let mut chosen: Vec<ChosenComparable> = forced
         .into_iter()
-        .map(|(row, breaks)| ChosenComparable {
-            row,
-            gower_distance: distance(row),
+        .map(|(c, breaks)| ChosenComparable {
+            row: c.row,
+            gower_distance: distance(c),
             manual: true,
             breaks,
         })
         .collect();
-    chosen.extend(ranked.into_iter().take(slots).map(|(row, d)| ChosenComparable {
-        row,
+    chosen.extend(ranked.into_iter().take(slots).map(|(c, d)| ChosenComparable {
+        row: c.row,
         gower_distance: d,
         manual: false,
         breaks: Vec::new(),
@@ -443,33 +499,26 @@ struct Ranges {
 }
 
 impl Ranges {
-    fn over(market: &Market, pool: &[usize], subject: &SubjectKey, as_of: NaiveDate) -> Self {
+    fn over<'a>(pool: impl Iterator<Item = &'a CandidateRow> + Clone, subject: &SubjectKey, as_of: NaiveDate) -> Self {
         let span = |values: &mut dyn Iterator<Item = f64>| {
             let (lo, hi) = values.fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| (lo.min(v), hi.max(v)));
             if hi > lo { hi - lo } else { 0.0 }
         };
         Self {
-            model_year: span(&mut pool.iter().map(|&r| f64::from(market.model_year[r])).chain([f64::from(subject.model_year)])),
-            miles: span(&mut pool.iter().map(|&r| market.miles[r]).chain([subject.miles])),
-            distance: span(&mut pool.iter().filter_map(|&r| market.distance_miles[r].map(f64::from)).chain([0.0])),
-            days_listed: span(&mut pool.iter().filter_map(|&r| market.listed_on[r].map(|d| (as_of - d).num_days() as f64)).chain([0.0])),
+            model_year: span(&mut pool.clone().map(|c| f64::from(c.model_year)).chain([f64::from(subject.model_year)])),
+            miles: span(&mut pool.clone().map(|c| c.miles).chain([subject.miles])),
+            distance: span(&mut pool.clone().filter_map(|c| c.distance_miles.map(f64::from)).chain([0.0])),
+            days_listed: span(&mut pool.filter_map(|c| c.listed_on.map(|d| (as_of - d).num_days() as f64)).chain([0.0])),
         }
     }
 }
 
-fn gower_to_subject(
-    market: &Market,
-    row: usize,
-    subject: &SubjectKey,
-    w: &GowerWeights,
-    ranges: &Ranges,
-    as_of: NaiveDate,
-) -> f64 {
+fn gower_to_subject(c: &CandidateRow, subject: &SubjectKey, w: &GowerWeights, ranges: &Ranges, as_of: NaiveDate) -> f64 {
     let parts = [
         (
             GowerPart::Numeric {
                 a: Some(f64::from(subject.model_year)),
-                b: Some(f64::from(market.model_year[row])),
+                b: Some(f64::from(c.model_year)),
                 range: ranges.model_year,
             },
             w.model_year,
@@ -477,18 +526,18 @@ fn gower_to_subject(
         (
             GowerPart::Numeric {
                 a: Some(subject.miles),
-                b: Some(market.miles[row]),
+                b: Some(c.miles),
                 range: ranges.miles,
             },
             w.miles,
         ),
-        (GowerPart::Categorical(Some(subject.variant == market.variant[row])), w.variant),
-        (GowerPart::Categorical(Some(subject.condition == market.condition[row])), w.condition),
+        (GowerPart::Categorical(Some(subject.variant == c.variant)), w.variant),
+        (GowerPart::Categorical(Some(subject.condition == c.condition)), w.condition),
         // The subject sits at distance 0 and is "listed today".
         (
             GowerPart::Numeric {
                 a: Some(0.0),
-                b: market.distance_miles[row].map(f64::from),
+                b: c.distance_miles.map(f64::from),
                 range: ranges.distance,
             },
             w.distance,
@@ -496,7 +545,7 @@ fn gower_to_subject(
         (
             GowerPart::Numeric {
                 a: Some(0.0),
-                b: market.listed_on[row].map(|d| (as_of - d).num_days() as f64),
+                b: c.listed_on.map(|d| (as_of - d).num_days() as f64),
                 range: ranges.days_listed,
             },
             w.days_listed,
