@@ -7,7 +7,9 @@ use ndarray::{Array1, Array2};
 /// Path of a file in `tests/data`.
 #[must_use]
 pub fn data_path(name: &str) -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("data").join(name)
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("data")
+        .join(name)
 }
 
 /// Reads a numeric CSV whose first column is the response: returns (X, y).
@@ -61,7 +63,11 @@ pub fn lre(computed: f64, certified: f64) -> f64 {
     } else {
         ((computed - certified) / certified).abs()
     };
-    if err == 0.0 { 15.0 } else { (-err.log10()).min(15.0) }
+    if err == 0.0 {
+        15.0
+    } else {
+        (-err.log10()).min(15.0)
+    }
 }
 
 /// A demo market of `rows` listings imported through the real CSV path.
@@ -95,5 +101,6 @@ pub fn fit_demo(
 ) -> model::appraisal::MarketFit {
     settings.as_of = Some(model::demo::demo_as_of());
     let segment = model::appraisal::find_segment(market, make, model_name).expect("segment");
-    model::appraisal::fit_market(market, segment, &settings, &model::clean::Overrides::new()).expect("fit")
+    model::appraisal::fit_market(market, segment, &settings, &model::clean::Overrides::new())
+        .expect("fit")
 }

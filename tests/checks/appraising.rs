@@ -2,15 +2,16 @@
 
 use acceptance::{demo_market, fit_demo};
 use model::adjustment::{AdjustmentKind, UserAdjustment};
-use model::appraisal::{appraise, fit_market, AppraisalError, AppraisalRequest, FitSettings};
-use model::backtest::{backtest, BacktestSettings};
+use model::appraisal::{AppraisalError, AppraisalRequest, FitSettings, appraise, fit_market};
+use model::backtest::{BacktestSettings, backtest};
 use model::clean::{Override, Overrides};
 use model::comparables::{ComparableRules, MileageRule};
-use model::gaps::{price_gaps, GapFlag};
+use model::gaps::{GapFlag, price_gaps};
 use model::subject::Subject;
 
 fn subject() -> Subject {
-    Subject::parse("year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used").unwrap()
+    Subject::parse("year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used")
+        .unwrap()
 }
 
 #[test]
@@ -26,16 +27,32 @@ fn comparables_pass_the_filters_and_carry_itemized_adjustments() {
         assert!(c.rule_breaks.is_empty());
         assert!(fit.cleaning.is_included(c.listing.row));
         let kinds: Vec<AdjustmentKind> = c.adjustments.iter().map(|l| l.kind).collect();
-        assert_eq!(kinds, vec![AdjustmentKind::Mileage, AdjustmentKind::ModelYear, AdjustmentKind::Variant, AdjustmentKind::Condition]);
+        assert_eq!(
+            kinds,
+            vec![
+                AdjustmentKind::Mileage,
+                AdjustmentKind::ModelYear,
+                AdjustmentKind::Variant,
+                AdjustmentKind::Condition
+            ]
+        );
         let sum: f64 = c.adjustments.iter().map(|l| l.amount).sum();
         assert!((c.adjusted_price - (c.listing.asking_price + sum)).abs() < 1e-6);
         // A comparable with more miles than the subject is worse, so it is adjusted up.
         let mileage = &c.adjustments[0];
-        assert_eq!(mileage.amount > 0.0, c.listing.miles > 41_000.0, "{mileage:?}");
+        assert_eq!(
+            mileage.amount > 0.0,
+            c.listing.miles > 41_000.0,
+            "{mileage:?}"
+        );
         assert!(c.net_pct <= c.gross_pct + 1e-12);
     }
     // The indicated value and the model agree within a few percent on a clean invented market.
-    assert!(a.reconciliation.model_gap_pct.abs() < 5.0, "{}", a.reconciliation.model_gap_pct);
+    assert!(
+        a.reconciliation.model_gap_pct.abs() < 5.0,
+        "{}",
+        a.reconciliation.model_gap_pct
+    );
 }
 
 #[test]
@@ -48,12 +65,24 @@ fn excluding_a_comparable_changes_the_value_and_a_manual_include_shows_its_broke
     request.choices.exclude.insert(first);
     let after = appraise(&market, &fit, &request).unwrap();
     assert!(after.comparables.iter().all(|c| c.listing.line != first));
-    assert_ne!(before.reconciliation.indicated_value, after.reconciliation.indicated_value);
+    assert_ne!(
+        before.reconciliation.indicated_value,
+        after.reconciliation.indicated_value
+    );
     // Force in a 2018 listing: it is used, and the broken year window is said.
-    let old = fit.included_rows.iter().copied().find(|&r| market.model_year[r] == 2018).unwrap();
+    let old = fit
+        .included_rows
+        .iter()
+        .copied()
+        .find(|&r| market.model_year[r] == 2018)
+        .unwrap();
     request.choices.include.insert(market.line[old]);
     let forced = appraise(&market, &fit, &request).unwrap();
-    let c = forced.comparables.iter().find(|c| c.listing.row == old).unwrap();
+    let c = forced
+        .comparables
+        .iter()
+        .find(|c| c.listing.row == old)
+        .unwrap();
     assert!(c.manual);
     assert_eq!(c.rule_breaks[0].code(), "model_year_outside_window");
 }
@@ -79,10 +108,17 @@ fn user_adjustments_are_itemized_with_their_basis() {
     });
     let a = appraise(&market, &fit, &request).unwrap();
     for c in &a.comparables {
-        let options: Vec<_> = c.adjustments.iter().filter(|l| l.kind == AdjustmentKind::Options).collect();
+        let options: Vec<_> = c
+            .adjustments
+            .iter()
+            .filter(|l| l.kind == AdjustmentKind::Options)
+            .collect();
         assert_eq!(options.len(), 1);
         assert!(options[0].basis.contains("tow package"));
-        let damage = c.adjustments.iter().any(|l| l.kind == AdjustmentKind::PriorDamage);
+        let damage = c
+            .adjustments
+            .iter()
+            .any(|l| l.kind == AdjustmentKind::PriorDamage);
         assert_eq!(damage, c.listing.line == damage_line);
     }
     assert!(a.reconciliation.indicated_value > base.reconciliation.indicated_value + 500.0);
@@ -97,14 +133,33 @@ fn overrides_put_an_excluded_listing_back_and_take_one_out() {
     };
     let segment = market.find_segment("Quellmark", "Tessel").unwrap();
     let fit = fit_market(&market, segment, &settings, &Overrides::new()).unwrap();
-    let excluded = fit.cleaning.rows.iter().copied().find(|&r| !fit.cleaning.is_included(r)).unwrap();
+    let excluded = fit
+        .cleaning
+        .rows
+        .iter()
+        .copied()
+        .find(|&r| !fit.cleaning.is_included(r))
+        .unwrap();
     let kept = fit.included_rows[0];
     let mut overrides = Overrides::new();
-    overrides.insert(market.line[excluded], Override::Include { note: "inspected: clean".into() });
-    overrides.insert(market.line[kept], Override::Exclude { note: "dealer demo unit".into() });
+    overrides.insert(
+        market.line[excluded],
+        Override::Include {
+            note: "inspected: clean".into(),
+        },
+    );
+    overrides.insert(
+        market.line[kept],
+        Override::Exclude {
+            note: "dealer demo unit".into(),
+        },
+    );
     let refit = fit_market(&market, segment, &settings, &overrides).unwrap();
     assert!(refit.cleaning.is_included(excluded));
-    assert!(refit.cleaning.exclusion_of(excluded).is_some(), "the rule stays on record");
+    assert!(
+        refit.cleaning.exclusion_of(excluded).is_some(),
+        "the rule stays on record"
+    );
     assert!(!refit.cleaning.is_included(kept));
     assert_eq!(refit.cleaning.exclusion_of(kept).unwrap().code(), "manual");
     assert_eq!(refit.model.rows(), fit.model.rows());
@@ -134,7 +189,11 @@ fn the_new_york_rule_narrows_the_comparables() {
     };
     let a = appraise(&market, &fit, &request).unwrap();
     for c in &a.comparables {
-        assert!(c.listing.miles - 41_000.0 <= 4_100.0 + 1e-9, "{}", c.listing.miles);
+        assert!(
+            c.listing.miles - 41_000.0 <= 4_100.0 + 1e-9,
+            "{}",
+            c.listing.miles
+        );
     }
 }
 
@@ -156,13 +215,31 @@ fn backtest_bands_cover_about_their_level() {
     // about 80 % of held-out asking prices; the comparables' errors stay in the same range.
     let market = demo_market(12_000, 9);
     let fit = fit_demo(&market, "Quellmark", "Tessel", FitSettings::default());
-    let b = backtest(&market, &fit, &ComparableRules::default(), &BacktestSettings::default()).unwrap();
+    let b = backtest(
+        &market,
+        &fit,
+        &ComparableRules::default(),
+        &BacktestSettings::default(),
+    )
+    .unwrap();
     println!("{b:?}");
-    assert!((75.0..=85.0).contains(&b.model.band_coverage_pct), "{}", b.model.band_coverage_pct);
+    assert!(
+        (75.0..=85.0).contains(&b.model.band_coverage_pct),
+        "{}",
+        b.model.band_coverage_pct
+    );
     assert!(b.model.median_abs_pct_error < 6.0);
     assert!(b.comparables.evaluated > 300);
-    assert!(b.comparables.median_abs_pct_error < 8.0, "{}", b.comparables.median_abs_pct_error);
-    assert!(b.comparables.band_coverage_pct > 65.0, "{}", b.comparables.band_coverage_pct);
+    assert!(
+        b.comparables.median_abs_pct_error < 8.0,
+        "{}",
+        b.comparables.median_abs_pct_error
+    );
+    assert!(
+        b.comparables.band_coverage_pct > 65.0,
+        "{}",
+        b.comparables.band_coverage_pct
+    );
 }
 
 #[test]
@@ -174,13 +251,32 @@ fn robust_fit_resists_contamination_that_moves_least_squares() {
     let segment = market.find_segment("Quellmark", "Tessel").unwrap();
     let rows = market.rows_of(segment);
     let as_of = model::demo::demo_as_of();
-    let ols = HedonicParams::new(as_of).check().unwrap().fit(&market, &rows).unwrap();
-    let huber = HedonicParams::new(as_of).robust(true).check().unwrap().fit(&market, &rows).unwrap();
+    let ols = HedonicParams::new(as_of)
+        .check()
+        .unwrap()
+        .fit(&market, &rows)
+        .unwrap();
+    let huber = HedonicParams::new(as_of)
+        .robust(true)
+        .check()
+        .unwrap()
+        .fit(&market, &rows)
+        .unwrap();
     let truth = model::demo::demo_truth();
     let age = |m: &model::hedonic::HedonicModel| m.coefficients()[1];
-    println!("age: ols {} huber {} truth {}", age(&ols), age(&huber), truth.models[0].age);
+    println!(
+        "age: ols {} huber {} truth {}",
+        age(&ols),
+        age(&huber),
+        truth.models[0].age
+    );
     assert!(huber.iterations() > 1);
-    assert!((age(&huber) - truth.models[0].age).abs() < (age(&ols) - truth.models[0].age).abs() + 1e-4);
-    assert!(huber.residual_sd() < ols.residual_sd(), "robust scale ignores the outliers");
+    assert!(
+        (age(&huber) - truth.models[0].age).abs() < (age(&ols) - truth.models[0].age).abs() + 1e-4
+    );
+    assert!(
+        huber.residual_sd() < ols.residual_sd(),
+        "robust scale ignores the outliers"
+    );
     assert!((huber.residual_sd() - truth.noise_sd).abs() < 0.01);
 }

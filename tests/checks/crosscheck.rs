@@ -12,13 +12,23 @@ use ndarray::{Array1, Array2};
 fn agrees_with_linfa_linear_on_longley() {
     // NIST StRD Longley data; both solvers should agree with each other to many digits.
     let (x, y) = read_reference("longley.csv");
-    let ours = OlsParams::new().check().unwrap().fit(&Dataset::new(x.clone(), y.clone())).unwrap();
+    let ours = OlsParams::new()
+        .check()
+        .unwrap()
+        .fit(&Dataset::new(x.clone(), y.clone()))
+        .unwrap();
     let theirs = LinearRegression::new().fit(&Dataset::new(x, y)).unwrap();
     assert!(lre(ours.coefficients()[0], theirs.intercept()) > 7.0);
     for (k, b) in theirs.params().iter().enumerate() {
         let l = lre(ours.coefficients()[k + 1], *b);
         println!("Longley B{}: ours vs linfa-linear LRE {l:.1}", k + 1);
-        assert!(l > 7.0, "B{}: {} vs {}", k + 1, ours.coefficients()[k + 1], b);
+        assert!(
+            l > 7.0,
+            "B{}: {} vs {}",
+            k + 1,
+            ours.coefficients()[k + 1],
+            b
+        );
     }
 }
 
@@ -31,7 +41,9 @@ fn agrees_with_linfa_linear_on_the_demo_market_design() {
     let mut x = Array2::zeros((rows.len(), p - 1));
     let mut y = Array1::zeros(rows.len());
     for (i, &r) in rows.iter().enumerate() {
-        let design_row = fit.model.design_row(&fit.model.attributes_of_row(&market, r));
+        let design_row = fit
+            .model
+            .design_row(&fit.model.attributes_of_row(&market, r));
         for j in 1..p {
             x[[i, j - 1]] = design_row[j];
         }
@@ -40,6 +52,10 @@ fn agrees_with_linfa_linear_on_the_demo_market_design() {
     let theirs = LinearRegression::new().fit(&Dataset::new(x, y)).unwrap();
     assert!((fit.model.coefficients()[0] - theirs.intercept()).abs() < 1e-9);
     for (k, b) in theirs.params().iter().enumerate() {
-        assert!((fit.model.coefficients()[k + 1] - b).abs() < 1e-9, "{}", fit.model.design().names[k + 1]);
+        assert!(
+            (fit.model.coefficients()[k + 1] - b).abs() < 1e-9,
+            "{}",
+            fit.model.design().names[k + 1]
+        );
     }
 }

@@ -1,7 +1,7 @@
 //! Importing market files: mapping, per-row rejections with their lines, clear errors.
 
 use model::condition::Condition;
-use model::import::{import_csv_bytes, ImportError, ImportOptions, OdometerUnit};
+use model::import::{ImportError, ImportOptions, OdometerUnit, import_csv_bytes};
 
 fn options() -> ImportOptions {
     ImportOptions {
@@ -44,7 +44,11 @@ fn rejects_each_bad_row_with_its_line_and_reason() {
     assert_eq!(market.len(), 2);
     assert_eq!(report.rows_read, 7);
     assert_eq!(report.rows_used, 2);
-    let lines: Vec<(u64, &str)> = report.rejected.iter().map(|r| (r.line, r.reason.code())).collect();
+    let lines: Vec<(u64, &str)> = report
+        .rejected
+        .iter()
+        .map(|r| (r.line, r.reason.code()))
+        .collect();
     assert_eq!(
         lines,
         vec![
@@ -77,7 +81,11 @@ fn optional_values_that_do_not_parse_are_dropped_and_reported() {
     let (market, report) = import(text).unwrap();
     assert_eq!(market.len(), 1);
     assert_eq!(market.listed_on[0], None);
-    assert_eq!(market.condition[0], Condition::Used, "inferred from 40,000 mi");
+    assert_eq!(
+        market.condition[0],
+        Condition::Used,
+        "inferred from 40,000 mi"
+    );
     assert_eq!(report.dropped_values.len(), 2);
     assert_eq!(report.dropped_values[0].line, 2);
     assert_eq!(report.condition_inferred, 1);
@@ -94,14 +102,21 @@ fn kilometres_are_converted_and_said() {
         odometer_unit: OdometerUnit::Kilometres,
         ..options()
     };
-    let (market, _) = import_csv_bytes("t.csv", b"year,make,model,price,mileage\n2021,Q,T,1000,1609.344\n".to_vec(), &opts).unwrap();
+    let (market, _) = import_csv_bytes(
+        "t.csv",
+        b"year,make,model,price,mileage\n2021,Q,T,1000,1609.344\n".to_vec(),
+        &opts,
+    )
+    .unwrap();
     assert!((market.miles[0] - 1_000.0).abs() < 1e-9);
 }
 
 #[test]
 fn semicolon_and_tab_files_are_detected() {
     for sep in [';', '\t', '|'] {
-        let text = format!("model_year{sep}make{sep}model{sep}asking_price{sep}miles\n2021{sep}Q{sep}T{sep}30000{sep}40000\n");
+        let text = format!(
+            "model_year{sep}make{sep}model{sep}asking_price{sep}miles\n2021{sep}Q{sep}T{sep}30000{sep}40000\n"
+        );
         let (market, report) = import(&text).unwrap();
         assert_eq!(market.len(), 1, "separator {sep:?}");
         assert_ne!(report.delimiter, "comma");
@@ -114,7 +129,12 @@ fn a_forced_wrong_delimiter_is_named_in_the_error() {
         delimiter: Some(b','),
         ..options()
     };
-    let err = import_csv_bytes("t.csv", b"model_year;make;model;asking_price;miles\n2021;Q;T;1;2\n".to_vec(), &opts).unwrap_err();
+    let err = import_csv_bytes(
+        "t.csv",
+        b"model_year;make;model;asking_price;miles\n2021;Q;T;1;2\n".to_vec(),
+        &opts,
+    )
+    .unwrap_err();
     let text = err.to_string();
     assert!(text.contains("missing required column"), "{text}");
     assert!(text.contains("semicolon"), "{text}");

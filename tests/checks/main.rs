@@ -1,9 +1,13 @@
 //! comptrail's checks against the outside world and its end-to-end behaviour, in one binary.
 
-mod nist;
-mod properties;
+// Tests may unwrap (a failure is the report) and compare floats exactly where the value is
+// exact by construction (parsed integers, prices written to the cent).
+#![allow(clippy::unwrap_used, clippy::expect_used, clippy::float_cmp)]
+
 mod appraising;
 mod crosscheck;
 mod import;
+mod nist;
+mod properties;
 mod published;
 mod recovery;

@@ -14,7 +14,9 @@ const MIN_LRE: f64 = 9.0;
 fn fit(name: &str, intercept: bool, expand_polynomial: usize) -> OlsFit {
     let (x, y) = read_reference(name);
     let x = if expand_polynomial > 1 {
-        Array2::from_shape_fn((x.nrows(), expand_polynomial), |(i, j)| x[[i, 0]].powi(j as i32 + 1))
+        Array2::from_shape_fn((x.nrows(), expand_polynomial), |(i, j)| {
+            x[[i, 0]].powi(j as i32 + 1)
+        })
     } else {
         x
     };
@@ -25,7 +27,10 @@ fn fit(name: &str, intercept: bool, expand_polynomial: usize) -> OlsFit {
 fn assert_lre(what: &str, computed: f64, certified: f64) {
     let l = lre(computed, certified);
     println!("{what}: computed {computed:e}, certified {certified:e}, LRE {l:.1}");
-    assert!(l >= MIN_LRE, "{what}: LRE {l:.2} < {MIN_LRE} (computed {computed}, certified {certified})");
+    assert!(
+        l >= MIN_LRE,
+        "{what}: LRE {l:.2} < {MIN_LRE} (computed {computed}, certified {certified})"
+    );
 }
 
 #[test]
@@ -99,6 +104,10 @@ fn wampler1_certified_values() {
         assert_lre(&format!("Wampler1 B{k}"), f.coefficients()[k], 1.0);
     }
     // Certified residual SD is exactly 0: judged on absolute size relative to y's scale (~3e6).
-    assert!(f.residual_sd() < 1e-6, "Wampler1 residual SD {}", f.residual_sd());
+    assert!(
+        f.residual_sd() < 1e-6,
+        "Wampler1 residual SD {}",
+        f.residual_sd()
+    );
     assert_lre("Wampler1 R2", f.r_squared(), 1.0);
 }

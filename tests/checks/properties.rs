@@ -4,7 +4,7 @@ use std::sync::OnceLock;
 
 use acceptance::{demo_market, fit_demo};
 use linfa::ParamGuard;
-use model::adjustment::{model_lines, SubjectTerms};
+use model::adjustment::{SubjectTerms, model_lines};
 use model::appraisal::{FitSettings, MarketFit};
 use model::condition::Condition;
 use model::hedonic::{Attributes, HedonicParams};

@@ -4,7 +4,7 @@ use acceptance::read_reference_with_response;
 use linfa::traits::Fit;
 use linfa::{Dataset, ParamGuard};
 use model::comparables::{Allowance, MileageRule, RuleBreak};
-use model::gower::{gower_distance, GowerPart};
+use model::gower::{GowerPart, gower_distance};
 use model::ols::OlsParams;
 use model::stats::{t_quantile, t_two_sided};
 
@@ -15,7 +15,11 @@ fn toluca_intervals_match_the_textbook() {
     // fitted 294.43, s{Ŷh} = 9.92, 90 % CI (277.43, 311.43), 90 % PI (209.04, 379.81).
     // toluca.csv: lot_size, work_hours; work hours is the response.
     let (x, y) = read_reference_with_response("toluca.csv", 1);
-    let fit = OlsParams::new().check().unwrap().fit(&Dataset::new(x, y)).unwrap();
+    let fit = OlsParams::new()
+        .check()
+        .unwrap()
+        .fit(&Dataset::new(x, y))
+        .unwrap();
     assert!((fit.coefficients()[0] - 62.37).abs() < 0.005);
     assert!((fit.coefficients()[1] - 3.5702).abs() < 0.00005);
     assert!((fit.mse() - 2384.0).abs() < 0.5);
@@ -40,7 +44,10 @@ fn student_t_quantiles_match_tables() {
         (0.975, 34.0, 2.032_244_509_3),
     ] {
         let t = t_quantile(p, df);
-        assert!((t - expected).abs() < 1e-8, "t({p}; {df}) = {t}, expected {expected}");
+        assert!(
+            (t - expected).abs() < 1e-8,
+            "t({p}; {df}) = {t}, expected {expected}"
+        );
     }
     assert!((t_two_sided(0.95, 28.0) - 2.048_407_141_8).abs() < 1e-8);
 }
@@ -50,14 +57,38 @@ fn gower_distance_of_the_reference_example() {
     // Gower (1971), Biometrics 27:857-871, by its definition with equal weights: year gap 2 over
     // a range of 10, mileage gap 20,000 over 100,000, trim differs, condition equal → 0.35.
     let parts = [
-        (GowerPart::Numeric { a: Some(2020.0), b: Some(2018.0), range: 10.0 }, 1.0),
-        (GowerPart::Numeric { a: Some(40_000.0), b: Some(60_000.0), range: 100_000.0 }, 1.0),
+        (
+            GowerPart::Numeric {
+                a: Some(2020.0),
+                b: Some(2018.0),
+                range: 10.0,
+            },
+            1.0,
+        ),
+        (
+            GowerPart::Numeric {
+                a: Some(40_000.0),
+                b: Some(60_000.0),
+                range: 100_000.0,
+            },
+            1.0,
+        ),
         (GowerPart::Categorical(Some(false)), 1.0),
         (GowerPart::Categorical(Some(true)), 1.0),
     ];
     assert!((gower_distance(&parts).unwrap() - 0.35).abs() < 1e-12);
     // A part missing on either side is skipped, not counted as a match.
-    let with_missing = [parts[0], (GowerPart::Numeric { a: Some(1.0), b: None, range: 5.0 }, 1.0)];
+    let with_missing = [
+        parts[0],
+        (
+            GowerPart::Numeric {
+                a: Some(1.0),
+                b: None,
+                range: 5.0,
+            },
+            1.0,
+        ),
+    ];
     assert!((gower_distance(&with_missing).unwrap() - 0.2).abs() < 1e-12);
 }
 
@@ -68,12 +99,23 @@ fn new_york_mileage_rule_on_both_sides_of_its_boundary() {
     let rule = MileageRule::new_york();
     // Subject 30,000 mi: 10 % is 3,000, so 4,000 governs.
     assert_eq!(rule.check(30_000.0, 34_000.0), None);
-    assert!(matches!(rule.check(30_000.0, 34_001.0), Some(RuleBreak::MilesOver { limit, .. }) if limit == 4_000.0));
+    assert!(
+        matches!(rule.check(30_000.0, 34_001.0), Some(RuleBreak::MilesOver { limit, .. }) if limit == 4_000.0)
+    );
     // Subject 60,000 mi: 10 % is 6,000, which governs.
     assert_eq!(rule.check(60_000.0, 66_000.0), None);
-    assert!(matches!(rule.check(60_000.0, 66_001.0), Some(RuleBreak::MilesOver { limit, .. }) if limit == 6_000.0));
+    assert!(
+        matches!(rule.check(60_000.0, 66_001.0), Some(RuleBreak::MilesOver { limit, .. }) if limit == 6_000.0)
+    );
     // Exactly at the crossover (40,000 mi) both give 4,000.
-    assert_eq!(Allowance { miles: 4_000.0, percent: 10.0 }.limit_for(40_000.0), 4_000.0);
+    assert_eq!(
+        Allowance {
+            miles: 4_000.0,
+            percent: 10.0
+        }
+        .limit_for(40_000.0),
+        4_000.0
+    );
     // Lower mileage is not limited by this rule.
     assert_eq!(rule.check(60_000.0, 1_000.0), None);
 }
@@ -92,7 +134,7 @@ fn exponential_depreciation_worked_example() {
     // HELM workbook 6.5 (Loughborough University): D = 10500 e^(-0.25 A) gives D(2) = 6368.5719,
     // D(6) = 2342.8667; the equivalent annual rate is 1 - e^(-0.25) = 22.1199 %. Fitted through
     // the real market path with a linear age form on exact data.
-    use model::appraisal::{fit_market, FitSettings};
+    use model::appraisal::{FitSettings, fit_market};
     use model::clean::{CleaningRules, Overrides};
     use model::condition::Condition;
     use model::hedonic::{AgeForm, Attributes};
@@ -103,7 +145,11 @@ fn exponential_depreciation_worked_example() {
     for (i, age) in (0..=10).flat_map(|a| [a, a]).enumerate() {
         // Two listings per age with different odometers (mileage has no effect in this example),
         // so age and mileage are not collinear.
-        let miles = if i % 2 == 0 { 1_000.0 * f64::from(age) } else { 3_000.0 + 500.0 * f64::from(age) };
+        let miles = if i % 2 == 0 {
+            1_000.0 * f64::from(age)
+        } else {
+            3_000.0 + 500.0 * f64::from(age)
+        };
         market.push(&Listing {
             row: i,
             line: i as u64 + 2,
@@ -140,11 +186,27 @@ fn exponential_depreciation_worked_example() {
     let fit = fit_market(&market, segment, &settings, &Overrides::new()).unwrap();
     let value_at = |age: f64| {
         fit.model
-            .estimate(&Attributes { age_years: age, miles: 0.0, variant: model::vocabulary::NO_NAME, condition: Condition::Used }, 0.8)
+            .estimate(
+                &Attributes {
+                    age_years: age,
+                    miles: 0.0,
+                    variant: model::vocabulary::NO_NAME,
+                    condition: Condition::Used,
+                },
+                0.8,
+            )
             .median
     };
-    assert!((value_at(2.0) - 6_368.571_9).abs() < 1e-4, "{}", value_at(2.0));
-    assert!((value_at(6.0) - 2_342.866_7).abs() < 1e-4, "{}", value_at(6.0));
+    assert!(
+        (value_at(2.0) - 6_368.571_9).abs() < 1e-4,
+        "{}",
+        value_at(2.0)
+    );
+    assert!(
+        (value_at(6.0) - 2_342.866_7).abs() < 1e-4,
+        "{}",
+        value_at(6.0)
+    );
     let rate = fit.model.annual_depreciation(5).age_only_pct;
     assert!((rate - 22.119_9).abs() < 1e-4, "{rate}");
 }

@@ -8,7 +8,12 @@ use model::depreciation::depreciation_table;
 use model::hedonic::AgeForm;
 
 fn term(fit: &model::appraisal::MarketFit, name: &str) -> (f64, f64) {
-    let t = fit.model.terms().into_iter().find(|t| t.name == name).unwrap();
+    let t = fit
+        .model
+        .terms()
+        .into_iter()
+        .find(|t| t.name == name)
+        .unwrap();
     (t.estimate, t.std_error)
 }
 
@@ -30,9 +35,16 @@ fn quadratic_fit_recovers_the_generating_parameters() {
     ] {
         let (b, se) = term(&fit, name);
         println!("{name}: {b:.5} (se {se:.5}) vs truth {expected}");
-        assert!((b - expected).abs() < tolerance, "{name}: {b} vs {expected}");
+        assert!(
+            (b - expected).abs() < tolerance,
+            "{name}: {b} vs {expected}"
+        );
     }
-    assert!((fit.model.residual_sd() - truth.noise_sd).abs() < 0.006, "residual sd {}", fit.model.residual_sd());
+    assert!(
+        (fit.model.residual_sd() - truth.noise_sd).abs() < 0.006,
+        "residual sd {}",
+        fit.model.residual_sd()
+    );
 }
 
 #[test]
@@ -41,13 +53,27 @@ fn cleaning_removes_the_planted_defects() {
     let fit = fit_demo(&market, "Quellmark", "Tessel", FitSettings::default());
     let counts = fit.cleaning.counts();
     println!("{counts:?}");
-    for code in ["duplicate_vin", "stale_listing", "old_stock_listed_as_new", "branded_title", "implausibly_cheap", "high_outlier"] {
-        assert!(counts.get(code).copied().unwrap_or(0) > 0, "no {code} found: {counts:?}");
+    for code in [
+        "duplicate_vin",
+        "stale_listing",
+        "old_stock_listed_as_new",
+        "branded_title",
+        "implausibly_cheap",
+        "high_outlier",
+    ] {
+        assert!(
+            counts.get(code).copied().unwrap_or(0) > 0,
+            "no {code} found: {counts:?}"
+        );
     }
     // Planted: ~0.6 % cheap (half with a salvage/rebuilt title), ~0.4 % high. Exclusions stay a
     // small share; a rule that ate the market would show here.
     let excluded: usize = counts.values().sum();
-    assert!(excluded < fit.cleaning.rows.len() / 6, "{excluded} of {}", fit.cleaning.rows.len());
+    assert!(
+        excluded < fit.cleaning.rows.len() / 6,
+        "{excluded} of {}",
+        fit.cleaning.rows.len()
+    );
 }
 
 #[test]
@@ -55,7 +81,15 @@ fn demo_market_depreciates_like_the_trade_says() {
     // Facts of the trade (common practice, no source): a new vehicle loses ~10-25 % in its first
     // year and 40-60 % over five years.
     let market = demo_market(40_000, 3);
-    let fit = fit_demo(&market, "Quellmark", "Tessel", FitSettings { age_form: AgeForm::PerYear, ..FitSettings::default() });
+    let fit = fit_demo(
+        &market,
+        "Quellmark",
+        "Tessel",
+        FitSettings {
+            age_form: AgeForm::PerYear,
+            ..FitSettings::default()
+        },
+    );
     let table = depreciation_table(&fit.model, &market, 8);
     let core = &table.curves[0];
     assert_eq!(core.rows[0].age_years, None, "first row is the new row");
@@ -63,11 +97,21 @@ fn demo_market_depreciates_like_the_trade_says() {
     let first_year = at(1).cumulative_loss_pct;
     let five_years = at(5).cumulative_loss_pct;
     println!("first-year loss {first_year:.1} %, five-year loss {five_years:.1} %");
-    assert!((10.0..=25.0).contains(&first_year), "first-year loss {first_year}");
-    assert!((40.0..=60.0).contains(&five_years), "five-year loss {five_years}");
+    assert!(
+        (10.0..=25.0).contains(&first_year),
+        "first-year loss {first_year}"
+    );
+    assert!(
+        (40.0..=60.0).contains(&five_years),
+        "five-year loss {five_years}"
+    );
     // Later years lose less in currency than earlier ones.
     assert!(at(7).loss < at(2).loss);
     // Higher variants lose more in currency, so the premium shrinks with age.
-    let summit = table.premiums.iter().find(|p| p.variant == "Summit").unwrap();
+    let summit = table
+        .premiums
+        .iter()
+        .find(|p| p.variant == "Summit")
+        .unwrap();
     assert!(summit.by_age[6].premium < summit.by_age[0].premium);
 }

@@ -1,11 +1,11 @@
 //! Reading the market and building the fit from the shared options.
 
-use anyhow::{anyhow, bail, Context, Result};
+use anyhow::{Context, Result, anyhow, bail};
 use chrono::NaiveDate;
-use model::appraisal::{find_segment, fit_market, segment_list, FitSettings, MarketFit};
+use model::appraisal::{FitSettings, MarketFit, find_segment, fit_market, segment_list};
 use model::clean::{Override, Overrides};
 use model::hedonic::AgeForm;
-use model::import::{import_csv_bytes, import_csv_file, ImportOptions, ImportReport, OdometerUnit};
+use model::import::{ImportOptions, ImportReport, OdometerUnit, import_csv_bytes, import_csv_file};
 use model::market::{Market, Segment};
 
 use crate::args::{AgeFormArg, MarketArgs, OdometerArg};
@@ -30,16 +30,15 @@ pub fn load_market(args: &MarketArgs) -> Result<Loaded> {
         use chrono::Datelike;
         options.latest_model_year = options.latest_model_year.max(as_of.year() + 1);
     }
-    let (market, report) = match &args.file {
-        Some(path) => import_csv_file(path, &options)?,
-        None => {
-            if args.demo_rows == 0 || args.demo_rows > 10_000_000 {
-                bail!("--demo-rows must be between 1 and 10,000,000");
-            }
-            options.latest_model_year = options.latest_model_year.max(2027);
-            let bytes = model::demo::demo_csv_bytes(args.demo_rows, 1);
-            import_csv_bytes("demo market (seed 1)", bytes, &options)?
+    let (market, report) = if let Some(path) = &args.file {
+        import_csv_file(path, &options)?
+    } else {
+        if args.demo_rows == 0 || args.demo_rows > 10_000_000 {
+            bail!("--demo-rows must be between 1 and 10,000,000");
         }
+        options.latest_model_year = options.latest_model_year.max(2027);
+        let bytes = model::demo::demo_csv_bytes(args.demo_rows, 1);
+        import_csv_bytes("demo market (seed 1)", bytes, &options)?
     };
     Ok(Loaded { market, report })
 }
@@ -48,7 +47,8 @@ fn parse_as_of(args: &MarketArgs) -> Result<Option<NaiveDate>> {
     args.as_of
         .as_deref()
         .map(|t| {
-            model::import::parse_date(t).ok_or_else(|| anyhow!("--as-of '{t}' is not a date (use YYYY-MM-DD)"))
+            model::import::parse_date(t)
+                .ok_or_else(|| anyhow!("--as-of '{t}' is not a date (use YYYY-MM-DD)"))
         })
         .transpose()
 }
@@ -76,18 +76,34 @@ pub fn fit_settings(args: &MarketArgs) -> Result<FitSettings> {
 pub fn overrides(args: &MarketArgs) -> Overrides {
     let mut o = Overrides::new();
     for &line in &args.keep {
-        o.insert(line, Override::Include { note: "kept from the command line".into() });
+        o.insert(
+            line,
+            Override::Include {
+                note: "kept from the command line".into(),
+            },
+        );
     }
     for &line in &args.drop {
-        o.insert(line, Override::Exclude { note: "dropped from the command line".into() });
+        o.insert(
+            line,
+            Override::Exclude {
+                note: "dropped from the command line".into(),
+            },
+        );
     }
     o
 }
 
 /// The segment named by `--make/--model`, the subject's, or the file's only one.
-pub fn choose_segment(market: &Market, args: &MarketArgs, subject: Option<(&str, &str)>) -> Result<Segment> {
+pub fn choose_segment(
+    market: &Market,
+    args: &MarketArgs,
+    subject: Option<(&str, &str)>,
+) -> Result<Segment> {
     match (args.make.as_deref(), args.model.as_deref(), subject) {
-        (Some(make), Some(model), _) | (_, _, Some((make, model))) => Ok(find_segment(market, make, model)?),
+        (Some(make), Some(model), _) | (_, _, Some((make, model))) => {
+            Ok(find_segment(market, make, model)?)
+        }
         (Some(_), None, _) | (None, Some(_), _) => bail!("give both --make and --model"),
         (None, None, None) => {
             let segments = market.segments();

@@ -8,11 +8,11 @@ mod render;
 use std::io::Write;
 use std::process::ExitCode;
 
-use anyhow::{bail, Context, Result};
+use anyhow::{Context, Result, bail};
 use clap::Parser;
 use model::adjustment::{AdjustmentKind, UserAdjustment};
-use model::appraisal::{appraise, AppraisalRequest};
-use model::backtest::{backtest, BacktestSettings};
+use model::appraisal::{AppraisalRequest, appraise};
+use model::backtest::{BacktestSettings, backtest};
 use model::comparables::{ComparableRules, MileageRule};
 use model::depreciation::{depreciation_table, rank_segments};
 use model::forecast::forecast;
@@ -21,10 +21,14 @@ use model::subject::Subject;
 use serde::Serialize;
 
 use crate::args::{AppraiseArgs, Cli, Command, MarketArgs, MileageRuleArg};
-use crate::output::{AppraisalDocument, BacktestDocument, DepreciationDocument, FitDocument, FitSummary, GapsDocument, ImportSummary};
+use crate::output::{
+    AppraisalDocument, BacktestDocument, DepreciationDocument, FitDocument, FitSummary,
+    GapsDocument, ImportSummary,
+};
 
 /// The subject appraised when none is given on the demo market.
-const DEMO_SUBJECT: &str = "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used";
+const DEMO_SUBJECT: &str =
+    "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used";
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
@@ -106,11 +110,18 @@ fn demo_market(rows: usize, seed: u64, out: &std::path::Path) -> Result<()> {
     if rows == 0 || rows > 10_000_000 {
         bail!("--rows must be between 1 and 10,000,000");
     }
-    let file = std::fs::File::create(out).with_context(|| format!("cannot create {}", out.display()))?;
+    let file =
+        std::fs::File::create(out).with_context(|| format!("cannot create {}", out.display()))?;
     let mut writer = std::io::BufWriter::new(file);
-    model::demo::write_demo_csv(rows, seed, &mut writer).with_context(|| format!("writing {}", out.display()))?;
+    model::demo::write_demo_csv(rows, seed, &mut writer)
+        .with_context(|| format!("writing {}", out.display()))?;
     writer.flush()?;
-    eprintln!("wrote {} invented listings to {} (seed {seed}, as of {})", rows, out.display(), model::demo::demo_as_of());
+    eprintln!(
+        "wrote {} invented listings to {} (seed {seed}, as of {})",
+        rows,
+        out.display(),
+        model::demo::demo_as_of()
+    );
     Ok(())
 }
 
@@ -122,23 +133,33 @@ fn fit(args: &MarketArgs) -> Result<()> {
         import: ImportSummary::from_report(&loaded.report),
         fit: FitSummary::new(&loaded.market, &fit),
     };
-    print(args.json, &doc, || format!("{}{}", render::import(&doc.import), render::fit(&doc.fit)))
+    print(args.json, &doc, || {
+        format!("{}{}", render::import(&doc.import), render::fit(&doc.fit))
+    })
 }
 
 fn parse_adjustment(spec: &str) -> Result<UserAdjustment> {
     let parts: Vec<&str> = spec.splitn(4, ':').collect();
     let [kind, amount, basis, rest @ ..] = parts.as_slice() else {
-        bail!("--adjust '{spec}': write KIND:AMOUNT:BASIS[:LINE], e.g. \"options:600:tow package the comparables lack\"");
+        bail!(
+            "--adjust '{spec}': write KIND:AMOUNT:BASIS[:LINE], e.g. \"options:600:tow package the comparables lack\""
+        );
     };
-    let kind = AdjustmentKind::parse_user(kind)
-        .with_context(|| format!("--adjust '{spec}': kind '{kind}' is not options, prior-damage, condition or other"))?;
-    let amount = model::import::parse_number(amount).with_context(|| format!("--adjust '{spec}': amount '{amount}' is not a number"))?;
+    let kind = AdjustmentKind::parse_user(kind).with_context(|| {
+        format!("--adjust '{spec}': kind '{kind}' is not options, prior-damage, condition or other")
+    })?;
+    let amount = model::import::parse_number(amount)
+        .with_context(|| format!("--adjust '{spec}': amount '{amount}' is not a number"))?;
     if basis.trim().is_empty() {
         bail!("--adjust '{spec}': every adjustment needs its basis");
     }
     let line = rest
         .first()
-        .map(|l| l.trim().parse::<u64>().with_context(|| format!("--adjust '{spec}': line '{l}' is not a line number")))
+        .map(|l| {
+            l.trim()
+                .parse::<u64>()
+                .with_context(|| format!("--adjust '{spec}': line '{l}' is not a line number"))
+        })
         .transpose()?;
     Ok(UserAdjustment {
         line,
@@ -174,22 +195,41 @@ fn appraise_command(args: &AppraiseArgs) -> Result<()> {
     let subject_text = match (&args.subject, &args.market.file) {
         (Some(s), _) => s.clone(),
         (None, None) => DEMO_SUBJECT.to_owned(),
-        (None, Some(_)) => bail!("--subject is required with a market file, e.g. --subject \"{DEMO_SUBJECT}\""),
+        (None, Some(_)) => {
+            bail!("--subject is required with a market file, e.g. --subject \"{DEMO_SUBJECT}\"")
+        }
     };
     let subject = Subject::parse(&subject_text)?;
     let loaded = load::load_market(&args.market)?;
-    let segment = load::choose_segment(&loaded.market, &args.market, Some((&subject.make, &subject.model)))?;
+    let segment = load::choose_segment(
+        &loaded.market,
+        &args.market,
+        Some((&subject.make, &subject.model)),
+    )?;
     let fit = load::fit(&loaded, &args.market, segment)?;
     let mut request = AppraisalRequest::new(subject.clone());
     request.rules = comparable_rules(args)?;
     request.level = args.level;
     request.choices.include = args.include_comp.iter().copied().collect();
     request.choices.exclude = args.exclude_comp.iter().copied().collect();
-    request.user_adjustments = args.adjust.iter().map(|s| parse_adjustment(s)).collect::<Result<_>>()?;
+    request.user_adjustments = args
+        .adjust
+        .iter()
+        .map(|s| parse_adjustment(s))
+        .collect::<Result<_>>()?;
     let appraisal = appraise(&loaded.market, &fit, &request)?;
     let forecast = args
         .hold_months
-        .map(|months| forecast(&loaded.market, &fit, &subject, months, args.hold_miles, args.level))
+        .map(|months| {
+            forecast(
+                &loaded.market,
+                &fit,
+                &subject,
+                months,
+                args.hold_miles,
+                args.level,
+            )
+        })
         .transpose()?;
     let doc = AppraisalDocument {
         import: ImportSummary::from_report(&loaded.report),
@@ -236,7 +276,12 @@ fn gaps(args: &MarketArgs, level: f64, top: usize) -> Result<()> {
     print(args.json, &doc, || render::gaps(&doc, top))
 }
 
-fn backtest_command(args: &MarketArgs, folds: usize, level: f64, comparable_subjects: usize) -> Result<()> {
+fn backtest_command(
+    args: &MarketArgs,
+    folds: usize,
+    level: f64,
+    comparable_subjects: usize,
+) -> Result<()> {
     let loaded = load::load_market(args)?;
     let segment = load::choose_segment(&loaded.market, args, None)?;
     let fit = load::fit(&loaded, args, segment)?;

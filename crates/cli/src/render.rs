@@ -5,7 +5,10 @@ use std::fmt::Write;
 use model::adjustment::describe;
 use model::format::{money, signed_money, thousands};
 
-use crate::output::{AppraisalDocument, BacktestDocument, DepreciationDocument, FitSummary, GapsDocument, ImportSummary};
+use crate::output::{
+    AppraisalDocument, BacktestDocument, DepreciationDocument, FitSummary, GapsDocument,
+    ImportSummary,
+};
 
 pub fn import(s: &ImportSummary) -> String {
     let mut o = String::new();
@@ -26,16 +29,28 @@ pub fn import(s: &ImportSummary) -> String {
         let _ = writeln!(o, "    line {}: {}", r.line, r.reason);
     }
     if s.rows_rejected > 5 {
-        let _ = writeln!(o, "    … {} more (all listed with --json)", s.rows_rejected - 5);
+        let _ = writeln!(
+            o,
+            "    … {} more (all listed with --json)",
+            s.rows_rejected - 5
+        );
     }
     if s.dropped_values_count > 0 {
         let _ = writeln!(o, "  values dropped, row kept: {}", s.dropped_values_count);
         for d in s.dropped_values.iter().take(3) {
-            let _ = writeln!(o, "    line {}: {} = '{}': {}", d.line, d.column, d.value, d.note);
+            let _ = writeln!(
+                o,
+                "    line {}: {} = '{}': {}",
+                d.line, d.column, d.value, d.note
+            );
         }
     }
     if s.condition_inferred > 0 {
-        let _ = writeln!(o, "  condition missing on {} rows: taken as used (≥ 1,000 mi) or new", s.condition_inferred);
+        let _ = writeln!(
+            o,
+            "  condition missing on {} rows: taken as used (≥ 1,000 mi) or new",
+            s.condition_inferred
+        );
     }
     if !s.ignored_columns.is_empty() {
         let _ = writeln!(o, "  ignored columns: {}", s.ignored_columns.join(", "));
@@ -63,13 +78,21 @@ pub fn fit(f: &FitSummary) -> String {
         o,
         "\nln(asking price) fit, {} age, {}: n = {}, residual SD {:.4}, R² {:.4}, smearing {:.4}",
         f.age_form,
-        if f.robust { "Huber robust" } else { "least squares" },
+        if f.robust {
+            "Huber robust"
+        } else {
+            "least squares"
+        },
         thousands(f.n as f64),
         f.residual_sd,
         f.r_squared,
         f.smearing_factor
     );
-    let _ = writeln!(o, "  {:<26} {:>12} {:>11} {:>9} {:>10}", "term", "estimate", "std error", "t", "effect %");
+    let _ = writeln!(
+        o,
+        "  {:<26} {:>12} {:>11} {:>9} {:>10}",
+        "term", "estimate", "std error", "t", "effect %"
+    );
     for t in &f.terms {
         let _ = writeln!(
             o,
@@ -78,7 +101,9 @@ pub fn fit(f: &FitSummary) -> String {
             t.estimate,
             t.std_error,
             t.t_value,
-            t.percent_effect.map(|p| format!("{p:+.2}")).unwrap_or_default()
+            t.percent_effect
+                .map(|p| format!("{p:+.2}"))
+                .unwrap_or_default()
         );
     }
     let d = &f.annual_depreciation;
@@ -110,46 +135,7 @@ pub fn appraisal(doc: &AppraisalDocument) -> String {
         let _ = writeln!(o, "  stopped by {code}: {}", thousands(*n as f64));
     }
     for (i, c) in a.comparables.iter().enumerate() {
-        let l = &c.listing;
-        let _ = writeln!(
-            o,
-            "\n#{} line {}: {} {} {}, {} mi, {}, asking {}{}",
-            i + 1,
-            l.line,
-            l.model_year,
-            l.model,
-            l.variant.as_deref().unwrap_or("(no variant)"),
-            thousands(l.miles),
-            l.condition,
-            money(l.asking_price),
-            if c.manual { "  [included by hand]" } else { "" }
-        );
-        let _ = writeln!(
-            o,
-            "   source: {}, {}, VIN {}, listed {}{}",
-            l.seller.as_deref().unwrap_or("unknown seller"),
-            l.location.as_deref().unwrap_or("unknown place"),
-            l.vin.as_deref().unwrap_or("none"),
-            l.listed_on.map_or_else(|| "on an unknown date".to_owned(), |d| d.to_string()),
-            c.days_listed.map(|d| format!(" ({d} day{})", if d == 1 { "" } else { "s" })).unwrap_or_default()
-        );
-        for b in &c.rule_breaks {
-            let _ = writeln!(o, "   breaks rule: {b}");
-        }
-        for line in &c.adjustments {
-            let _ = writeln!(o, "   {}", describe(line));
-        }
-        let _ = writeln!(
-            o,
-            "   net {} ({:.1} %), gross {} ({:.1} %) → adjusted {}; similarity {:.2}, weight {:.1} %",
-            signed_money(c.net_adjustment),
-            c.net_pct,
-            money(c.gross_adjustment),
-            c.gross_pct,
-            money(c.adjusted_price),
-            c.similarity,
-            100.0 * c.weight
-        );
+        comparable(&mut o, i + 1, c);
     }
     let r = &a.reconciliation;
     let m = &a.model_estimate;
@@ -162,7 +148,8 @@ pub fn appraisal(doc: &AppraisalDocument) -> String {
         match r.band_source {
             model::reconcile::BandSource::Comparables => "spread of the adjusted comparables",
             model::reconcile::BandSource::Model => "model's prediction interval",
-            model::reconcile::BandSource::ModelOnly => "model alone: no comparables passed the filters",
+            model::reconcile::BandSource::ModelOnly =>
+                "model alone: no comparables passed the filters",
         }
     );
     let _ = writeln!(
@@ -191,7 +178,11 @@ pub fn appraisal(doc: &AppraisalDocument) -> String {
             f.change_pct,
             money(f.then.prediction_interval.lower),
             money(f.then.prediction_interval.upper),
-            if f.extrapolated { " (beyond the oldest age in the market: an extrapolation)" } else { "" }
+            if f.extrapolated {
+                " (beyond the oldest age in the market: an extrapolation)"
+            } else {
+                ""
+            }
         );
     }
     let _ = writeln!(o);
@@ -201,17 +192,73 @@ pub fn appraisal(doc: &AppraisalDocument) -> String {
     o
 }
 
+/// One comparable: identity and source, broken rules, every adjustment line, totals and weight.
+fn comparable(o: &mut String, number: usize, c: &model::appraisal::AdjustedComparable) {
+    let l = &c.listing;
+    let _ = writeln!(
+        o,
+        "\n#{} line {}: {} {} {}, {} mi, {}, asking {}{}",
+        number,
+        l.line,
+        l.model_year,
+        l.model,
+        l.variant.as_deref().unwrap_or("(no variant)"),
+        thousands(l.miles),
+        l.condition,
+        money(l.asking_price),
+        if c.manual { "  [included by hand]" } else { "" }
+    );
+    let _ = writeln!(
+        o,
+        "   source: {}, {}, VIN {}, listed {}{}",
+        l.seller.as_deref().unwrap_or("unknown seller"),
+        l.location.as_deref().unwrap_or("unknown place"),
+        l.vin.as_deref().unwrap_or("none"),
+        l.listed_on
+            .map_or_else(|| "on an unknown date".to_owned(), |d| d.to_string()),
+        c.days_listed
+            .map(|d| format!(" ({d} day{})", if d == 1 { "" } else { "s" }))
+            .unwrap_or_default()
+    );
+    for b in &c.rule_breaks {
+        let _ = writeln!(o, "   breaks rule: {b}");
+    }
+    for line in &c.adjustments {
+        let _ = writeln!(o, "   {}", describe(line));
+    }
+    let _ = writeln!(
+        o,
+        "   net {} ({:.1} %), gross {} ({:.1} %) → adjusted {}; similarity {:.2}, weight {:.1} %",
+        signed_money(c.net_adjustment),
+        c.net_pct,
+        money(c.gross_adjustment),
+        c.gross_pct,
+        money(c.adjusted_price),
+        c.similarity,
+        100.0 * c.weight
+    );
+}
+
 pub fn depreciation(doc: &DepreciationDocument) -> String {
     let mut o = import(&doc.import);
     o.push_str(&fit(&doc.fit));
     for curve in &doc.table.curves {
-        let _ = writeln!(o, "\n{}: value at typical mileage (used unless marked new)", curve.variant);
-        let _ = writeln!(o, "  {:>5} {:>10} {:>10} {:>10} {:>7} {:>11} {:>7}", "age", "miles", "value", "loss", "loss %", "cumulative", "cum %");
+        let _ = writeln!(
+            o,
+            "\n{}: value at typical mileage (used unless marked new)",
+            curve.variant
+        );
+        let _ = writeln!(
+            o,
+            "  {:>5} {:>10} {:>10} {:>10} {:>7} {:>11} {:>7}",
+            "age", "miles", "value", "loss", "loss %", "cumulative", "cum %"
+        );
         for r in &curve.rows {
             let _ = writeln!(
                 o,
                 "  {:>5} {:>10} {:>10} {:>10} {:>7.1} {:>11} {:>7.1}",
-                r.age_years.map_or_else(|| "new".to_owned(), |a| a.to_string()),
+                r.age_years
+                    .map_or_else(|| "new".to_owned(), |a| a.to_string()),
                 thousands(r.typical_miles),
                 money(r.value),
                 money(r.loss),
@@ -224,10 +271,19 @@ pub fn depreciation(doc: &DepreciationDocument) -> String {
     for p in &doc.table.premiums {
         let _ = writeln!(o, "\nPremium of {} over {} by age:", p.variant, p.base);
         for r in &p.by_age {
-            let _ = writeln!(o, "  age {:>2}: {:>9} ({:.1} %)", r.age_years, money(r.premium), r.premium_pct);
+            let _ = writeln!(
+                o,
+                "  age {:>2}: {:>9} ({:.1} %)",
+                r.age_years,
+                money(r.premium),
+                r.premium_pct
+            );
         }
     }
-    let _ = writeln!(o, "\nModels in the file by fitted annual decline (linear age, 5 years):");
+    let _ = writeln!(
+        o,
+        "\nModels in the file by fitted annual decline (linear age, 5 years):"
+    );
     for r in &doc.ranking {
         match &r.skipped {
             None => {
@@ -262,10 +318,16 @@ pub fn gaps(doc: &GapsDocument, top: usize) -> String {
             signed_money(g.gap),
             g.gap_pct,
             g.flag,
-            g.exclusion.as_deref().map(|e| format!(" [excluded: {e}]")).unwrap_or_default()
+            g.exclusion
+                .as_deref()
+                .map(|e| format!(" [excluded: {e}]"))
+                .unwrap_or_default()
         );
     };
-    let _ = writeln!(o, "\nFurthest below the market (possible deals or possible problems: look before use):");
+    let _ = writeln!(
+        o,
+        "\nFurthest below the market (possible deals or possible problems: look before use):"
+    );
     for g in doc.gaps.iter().take(top) {
         line(&mut o, g);
     }
@@ -280,7 +342,11 @@ pub fn backtest(doc: &BacktestDocument) -> String {
     let mut o = import(&doc.import);
     o.push_str(&fit(&doc.fit));
     let b = &doc.backtest;
-    let _ = writeln!(o, "\n{}-fold backtest (asking prices stand in for values):", b.folds);
+    let _ = writeln!(
+        o,
+        "\n{}-fold backtest (asking prices stand in for values):",
+        b.folds
+    );
     for (name, m) in [("model", &b.model), ("comparables", &b.comparables)] {
         let _ = writeln!(
             o,
@@ -293,7 +359,11 @@ pub fn backtest(doc: &BacktestDocument) -> String {
         );
     }
     if b.not_valued > 0 {
-        let _ = writeln!(o, "  not valued: {} (variant or condition missing from the training part, or no comparables)", b.not_valued);
+        let _ = writeln!(
+            o,
+            "  not valued: {} (variant or condition missing from the training part, or no comparables)",
+            b.not_valued
+        );
     }
     o
 }

@@ -1,5 +1,8 @@
 //! The command line as a user runs it: exit codes, one-line errors, stable JSON keys.
 
+// Tests may unwrap: a failure is the report.
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
 use std::path::PathBuf;
 use std::process::{Command, Output};
 
@@ -18,17 +21,41 @@ fn asset() -> String {
 }
 
 fn json(out: &Output) -> serde_json::Value {
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     serde_json::from_slice(&out.stdout).expect("valid JSON")
 }
 
-const SUBJECT: &str = "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used";
+const SUBJECT: &str =
+    "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used";
 
 #[test]
 fn appraise_json_has_the_documented_keys() {
-    let out = comptrail(&["appraise", &asset(), "--subject", SUBJECT, "--as-of", "2026-11-30", "--json"]);
+    let out = comptrail(&[
+        "appraise",
+        &asset(),
+        "--subject",
+        SUBJECT,
+        "--as-of",
+        "2026-11-30",
+        "--json",
+    ]);
     let v = json(&out);
-    for key in ["import", "fit", "subject", "as_of", "model_estimate", "comparables", "reconciliation", "indicated_value", "value_band", "cautions"] {
+    for key in [
+        "import",
+        "fit",
+        "subject",
+        "as_of",
+        "model_estimate",
+        "comparables",
+        "reconciliation",
+        "indicated_value",
+        "value_band",
+        "cautions",
+    ] {
         assert!(v.get(key).is_some(), "missing key {key}");
     }
     for key in ["lower", "upper", "level"] {
@@ -39,10 +66,23 @@ fn appraise_json_has_the_documented_keys() {
     let comps = v["comparables"].as_array().unwrap();
     assert!(!comps.is_empty());
     for c in comps {
-        for key in ["listing", "adjustments", "net_pct", "gross_pct", "adjusted_price", "weight", "similarity"] {
+        for key in [
+            "listing",
+            "adjustments",
+            "net_pct",
+            "gross_pct",
+            "adjusted_price",
+            "weight",
+            "similarity",
+        ] {
             assert!(c.get(key).is_some(), "comparable lacks {key}");
         }
-        assert!(c["adjustments"][0]["basis"].as_str().unwrap().contains("per 10,000 mi"));
+        assert!(
+            c["adjustments"][0]["basis"]
+                .as_str()
+                .unwrap()
+                .contains("per 10,000 mi")
+        );
     }
     let lower = v["value_band"]["lower"].as_f64().unwrap();
     let upper = v["value_band"]["upper"].as_f64().unwrap();
@@ -52,14 +92,30 @@ fn appraise_json_has_the_documented_keys() {
 
 #[test]
 fn fit_json_reports_terms_and_depreciation() {
-    let v = json(&comptrail(&["fit", &asset(), "--make", "Quellmark", "--model", "Tessel", "--json"]));
+    let v = json(&comptrail(&[
+        "fit",
+        &asset(),
+        "--make",
+        "Quellmark",
+        "--model",
+        "Tessel",
+        "--json",
+    ]));
     let terms = v["fit"]["terms"].as_array().unwrap();
     let names: Vec<&str> = terms.iter().map(|t| t["name"].as_str().unwrap()).collect();
-    assert_eq!(&names[..4], &["intercept", "age_years", "age_years_squared", "miles_10k"]);
+    assert_eq!(
+        &names[..4],
+        &["intercept", "age_years", "age_years_squared", "miles_10k"]
+    );
     for t in terms {
         assert!(t["std_error"].as_f64().unwrap() > 0.0);
     }
-    assert!(v["fit"]["annual_depreciation"]["age_only_pct"].as_f64().unwrap() > 0.0);
+    assert!(
+        v["fit"]["annual_depreciation"]["age_only_pct"]
+            .as_f64()
+            .unwrap()
+            > 0.0
+    );
     assert_eq!(v["import"]["rows_read"].as_u64(), Some(2000));
 }
 
@@ -68,13 +124,54 @@ fn every_command_runs_on_the_asset() {
     let file = asset();
     let file = file.as_str();
     for args in [
-        vec!["depreciation", file, "--make", "Quellmark", "--model", "Tessel"],
-        vec!["gaps", file, "--make", "Quellmark", "--model", "Tessel", "--top", "3"],
-        vec!["backtest", file, "--make", "Quellmark", "--model", "Tessel", "--folds", "3", "--comparable-subjects", "10"],
-        vec!["fit", file, "--make", "Orvane", "--model", "Kestrel", "--robust", "--age-form", "per-year"],
+        vec![
+            "depreciation",
+            file,
+            "--make",
+            "Quellmark",
+            "--model",
+            "Tessel",
+        ],
+        vec![
+            "gaps",
+            file,
+            "--make",
+            "Quellmark",
+            "--model",
+            "Tessel",
+            "--top",
+            "3",
+        ],
+        vec![
+            "backtest",
+            file,
+            "--make",
+            "Quellmark",
+            "--model",
+            "Tessel",
+            "--folds",
+            "3",
+            "--comparable-subjects",
+            "10",
+        ],
+        vec![
+            "fit",
+            file,
+            "--make",
+            "Orvane",
+            "--model",
+            "Kestrel",
+            "--robust",
+            "--age-form",
+            "per-year",
+        ],
     ] {
         let out = comptrail(&args);
-        assert!(out.status.success(), "{args:?}: {}", String::from_utf8_lossy(&out.stderr));
+        assert!(
+            out.status.success(),
+            "{args:?}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
         assert!(!out.stdout.is_empty());
     }
 }
@@ -88,10 +185,27 @@ fn bad_input_gives_a_non_zero_exit_and_one_line() {
     let cases: Vec<Vec<String>> = vec![
         vec!["fit".into(), bad.display().to_string()],
         vec!["fit".into(), dir.join("missing.csv").display().to_string()],
-        vec!["appraise".into(), asset(), "--subject".into(), "year=2022,make=Quellmark".into()],
-        vec!["appraise".into(), asset(), "--subject".into(), "year=2022,make=Quellmark,model=Tessel,variant=Grand,miles=1".into()],
+        vec![
+            "appraise".into(),
+            asset(),
+            "--subject".into(),
+            "year=2022,make=Quellmark".into(),
+        ],
+        vec![
+            "appraise".into(),
+            asset(),
+            "--subject".into(),
+            "year=2022,make=Quellmark,model=Tessel,variant=Grand,miles=1".into(),
+        ],
         vec!["fit".into(), asset()],
-        vec!["appraise".into(), asset(), "--subject".into(), SUBJECT.into(), "--adjust".into(), "options:lots:no basis".into()],
+        vec![
+            "appraise".into(),
+            asset(),
+            "--subject".into(),
+            SUBJECT.into(),
+            "--adjust".into(),
+            "options:lots:no basis".into(),
+        ],
     ];
     for args in cases {
         let out = comptrail(&args.iter().map(String::as_str).collect::<Vec<_>>());
@@ -110,7 +224,15 @@ fn demo_market_is_reproducible_from_its_seed() {
     let a = dir.join("a.csv");
     let b = dir.join("b.csv");
     for p in [&a, &b] {
-        let out = comptrail(&["demo-market", "--rows", "500", "--seed", "9", "--out", p.to_str().unwrap()]);
+        let out = comptrail(&[
+            "demo-market",
+            "--rows",
+            "500",
+            "--seed",
+            "9",
+            "--out",
+            p.to_str().unwrap(),
+        ]);
         assert!(out.status.success());
     }
     assert_eq!(std::fs::read(&a).unwrap(), std::fs::read(&b).unwrap());
@@ -120,7 +242,11 @@ fn demo_market_is_reproducible_from_its_seed() {
 #[test]
 fn default_run_appraises_the_demo() {
     let out = comptrail(&[]);
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let text = String::from_utf8_lossy(&out.stdout);
     assert!(text.contains("Indicated value: $"));
     assert!(text.contains("Value band (80 %)"));

@@ -4,20 +4,24 @@
 //! Run: `cargo bench -p model --bench appraise` (set `COMPTRAIL_BENCH_SIZES=10000,100000` to
 //! choose sizes).
 
+// A benchmark's fixed inputs cannot fail; unwrapping keeps the timed code plain. The
+// criterion macros generate undocumented functions.
+#![allow(clippy::unwrap_used, missing_docs)]
+
 use std::hint::black_box;
 use std::time::Duration;
 
-use criterion::{criterion_group, criterion_main, BenchmarkId, Criterion};
-use model::appraisal::{appraise, find_segment, fit_market, AppraisalRequest, FitSettings};
+use criterion::{BenchmarkId, Criterion, criterion_group, criterion_main};
+use model::appraisal::{AppraisalRequest, FitSettings, appraise, find_segment, fit_market};
 use model::clean::Overrides;
-use model::import::{import_csv_bytes, ImportOptions};
+use model::import::{ImportOptions, import_csv_bytes};
 use model::subject::Subject;
 
 fn sizes() -> Vec<usize> {
-    std::env::var("COMPTRAIL_BENCH_SIZES")
-        .ok()
-        .map(|s| s.split(',').filter_map(|v| v.trim().parse().ok()).collect())
-        .unwrap_or_else(|| vec![10_000, 100_000, 1_000_000])
+    std::env::var("COMPTRAIL_BENCH_SIZES").ok().map_or_else(
+        || vec![10_000, 100_000, 1_000_000],
+        |s| s.split(',').filter_map(|v| v.trim().parse().ok()).collect(),
+    )
 }
 
 fn options() -> ImportOptions {
@@ -35,12 +39,18 @@ fn settings() -> FitSettings {
 }
 
 fn subject(miles: f64) -> Subject {
-    Subject::parse(&format!("year=2022,make=Quellmark,model=Tessel,variant=Plus,miles={miles},condition=used")).unwrap()
+    Subject::parse(&format!(
+        "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles={miles},condition=used"
+    ))
+    .unwrap()
 }
 
 fn bench(c: &mut Criterion) {
     let mut group = c.benchmark_group("appraise");
-    group.sample_size(10).measurement_time(Duration::from_secs(8)).warm_up_time(Duration::from_secs(1));
+    group
+        .sample_size(10)
+        .measurement_time(Duration::from_secs(8))
+        .warm_up_time(Duration::from_secs(1));
     for rows in sizes() {
         let bytes = model::demo::demo_csv_bytes(rows, 3);
         group.bench_with_input(BenchmarkId::new("import", rows), &bytes, |b, bytes| {
@@ -48,9 +58,13 @@ fn bench(c: &mut Criterion) {
         });
         let (market, _) = import_csv_bytes("bench.csv", bytes.clone(), &options()).unwrap();
         let segment = find_segment(&market, "Quellmark", "Tessel").unwrap();
-        group.bench_with_input(BenchmarkId::new("clean_and_fit", rows), &market, |b, market| {
-            b.iter(|| fit_market(market, segment, &settings(), &Overrides::new()).unwrap());
-        });
+        group.bench_with_input(
+            BenchmarkId::new("clean_and_fit", rows),
+            &market,
+            |b, market| {
+                b.iter(|| fit_market(market, segment, &settings(), &Overrides::new()).unwrap());
+            },
+        );
         group.bench_with_input(BenchmarkId::new("full_path", rows), &bytes, |b, bytes| {
             b.iter(|| {
                 let (market, _) = import_csv_bytes("bench.csv", bytes.clone(), &options()).unwrap();
@@ -61,12 +75,22 @@ fn bench(c: &mut Criterion) {
         });
         let fit = fit_market(&market, segment, &settings(), &Overrides::new()).unwrap();
         let mut miles = 30_000.0;
-        group.bench_with_input(BenchmarkId::new("reappraise_changed_subject", rows), &fit, |b, fit| {
-            b.iter(|| {
-                miles = if miles > 60_000.0 { 30_000.0 } else { miles + 997.0 };
-                black_box(appraise(&market, fit, &AppraisalRequest::new(subject(miles))).unwrap())
-            });
-        });
+        group.bench_with_input(
+            BenchmarkId::new("reappraise_changed_subject", rows),
+            &fit,
+            |b, fit| {
+                b.iter(|| {
+                    miles = if miles > 60_000.0 {
+                        30_000.0
+                    } else {
+                        miles + 997.0
+                    };
+                    black_box(
+                        appraise(&market, fit, &AppraisalRequest::new(subject(miles))).unwrap(),
+                    )
+                });
+            },
+        );
     }
     group.finish();
 }

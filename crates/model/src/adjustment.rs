@@ -10,7 +10,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::condition::Condition;
 use crate::format::{signed_money, thousands};
-use crate::hedonic::{age_years, HedonicModel};
+use crate::hedonic::{HedonicModel, age_years};
 use crate::market::Market;
 use crate::vocabulary::NameId;
 
@@ -102,7 +102,12 @@ pub struct SubjectTerms {
 /// The model-derived adjustment lines for comparable `row` (zero lines are kept, so the grid
 /// shows every attribute was considered).
 #[must_use]
-pub fn model_lines(model: &HedonicModel, market: &Market, row: usize, subject: &SubjectTerms) -> Vec<AdjustmentLine> {
+pub fn model_lines(
+    model: &HedonicModel,
+    market: &Market,
+    row: usize,
+    subject: &SubjectTerms,
+) -> Vec<AdjustmentLine> {
     let price = market.asking_price[row];
     let as_of_year = model.as_of_year();
     let line = |kind, log_change: f64, basis: String| AdjustmentLine {
@@ -125,7 +130,10 @@ pub fn model_lines(model: &HedonicModel, market: &Market, row: usize, subject: &
         ),
     ));
 
-    let (age_s, age_c) = (age_years(subject.model_year, as_of_year), age_years(market.model_year[row], as_of_year));
+    let (age_s, age_c) = (
+        age_years(subject.model_year, as_of_year),
+        age_years(market.model_year[row], as_of_year),
+    );
     let d_age = model.age_effect(age_s) - model.age_effect(age_c);
     lines.push(line(
         AdjustmentKind::ModelYear,
@@ -138,7 +146,8 @@ pub fn model_lines(model: &HedonicModel, market: &Market, row: usize, subject: &
         ),
     ));
 
-    let d_variant = model.variant_effect(subject.variant) - model.variant_effect(market.variant[row]);
+    let d_variant =
+        model.variant_effect(subject.variant) - model.variant_effect(market.variant[row]);
     lines.push(line(
         AdjustmentKind::Variant,
         d_variant,
@@ -150,7 +159,8 @@ pub fn model_lines(model: &HedonicModel, market: &Market, row: usize, subject: &
         ),
     ));
 
-    let d_condition = model.condition_effect(subject.condition) - model.condition_effect(market.condition[row]);
+    let d_condition =
+        model.condition_effect(subject.condition) - model.condition_effect(market.condition[row]);
     lines.push(line(
         AdjustmentKind::Condition,
         d_condition,
@@ -180,7 +190,15 @@ pub fn user_lines(user: &[UserAdjustment], line: u64) -> Vec<AdjustmentLine> {
         .map(|u| AdjustmentLine {
             kind: u.kind,
             amount: u.amount,
-            basis: format!("{} ({})", u.basis, if u.line.is_some() { "this comparable" } else { "every comparable" }),
+            basis: format!(
+                "{} ({})",
+                u.basis,
+                if u.line.is_some() {
+                    "this comparable"
+                } else {
+                    "every comparable"
+                }
+            ),
         })
         .collect()
 }
@@ -188,13 +206,18 @@ pub fn user_lines(user: &[UserAdjustment], line: u64) -> Vec<AdjustmentLine> {
 /// Net and gross adjustment of a grid: (sum, sum of absolute values).
 #[must_use]
 pub fn net_and_gross(lines: &[AdjustmentLine]) -> (f64, f64) {
-    lines
-        .iter()
-        .fold((0.0, 0.0), |(net, gross), l| (net + l.amount, gross + l.amount.abs()))
+    lines.iter().fold((0.0, 0.0), |(net, gross), l| {
+        (net + l.amount, gross + l.amount.abs())
+    })
 }
 
 /// Formats a line for a table: "+$812  mileage: fitted ...".
 #[must_use]
 pub fn describe(line: &AdjustmentLine) -> String {
-    format!("{:>9}  {}: {}", signed_money(line.amount), line.kind.label(), line.basis)
+    format!(
+        "{:>9}  {}: {}",
+        signed_money(line.amount),
+        line.kind.label(),
+        line.basis
+    )
 }

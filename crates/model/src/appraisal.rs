@@ -6,12 +6,18 @@ use chrono::NaiveDate;
 use linfa::ParamGuard;
 use serde::{Deserialize, Serialize};
 
-use crate::adjustment::{model_lines, net_and_gross, user_lines, AdjustmentLine, SubjectTerms, UserAdjustment};
-use crate::clean::{clean_segment, CleaningRules, Overrides, SegmentCleaning};
-use crate::comparables::{choose_comparables, CandidateIndex, ComparableChoices, ComparableRules, RuleBreak, SubjectKey};
-use crate::hedonic::{age_years, AgeForm, Attributes, FitError, HedonicModel, HedonicParams, ValueEstimate};
+use crate::adjustment::{
+    AdjustmentLine, SubjectTerms, UserAdjustment, model_lines, net_and_gross, user_lines,
+};
+use crate::clean::{CleaningRules, Overrides, SegmentCleaning, clean_segment};
+use crate::comparables::{
+    CandidateIndex, ComparableChoices, ComparableRules, RuleBreak, SubjectKey, choose_comparables,
+};
+use crate::hedonic::{
+    AgeForm, Attributes, FitError, HedonicModel, HedonicParams, ValueEstimate, age_years,
+};
 use crate::market::{Listing, Market, Segment};
-use crate::reconcile::{reconcile, ReconcileInput, Reconciliation};
+use crate::reconcile::{ReconcileInput, Reconciliation, reconcile};
 use crate::subject::Subject;
 use crate::vocabulary::NO_NAME;
 
@@ -37,7 +43,9 @@ pub enum AppraisalError {
         known: String,
     },
     /// The subject's condition class has no listing in the fitted market.
-    #[error("no usable {condition} listings for this model, so the market cannot price that condition")]
+    #[error(
+        "no usable {condition} listings for this model, so the market cannot price that condition"
+    )]
     UnknownCondition {
         /// Condition asked for.
         condition: String,
@@ -51,7 +59,7 @@ pub enum AppraisalError {
 }
 
 /// Settings of the market fit.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize, Default)]
 pub struct FitSettings {
     /// Age form.
     pub age_form: AgeForm,
@@ -61,17 +69,6 @@ pub struct FitSettings {
     pub as_of: Option<NaiveDate>,
     /// Cleaning rules.
     pub cleaning: CleaningRules,
-}
-
-impl Default for FitSettings {
-    fn default() -> Self {
-        Self {
-            age_form: AgeForm::default(),
-            robust: false,
-            as_of: None,
-            cleaning: CleaningRules::default(),
-        }
-    }
 }
 
 impl FitSettings {
@@ -104,11 +101,13 @@ pub struct MarketFit {
 
 /// Finds a segment by name, with an error listing what the market holds.
 pub fn find_segment(market: &Market, make: &str, model: &str) -> Result<Segment, AppraisalError> {
-    market.find_segment(make, model).ok_or_else(|| AppraisalError::UnknownSegment {
-        make: make.to_owned(),
-        model: model.to_owned(),
-        available: segment_list(market),
-    })
+    market
+        .find_segment(make, model)
+        .ok_or_else(|| AppraisalError::UnknownSegment {
+            make: make.to_owned(),
+            model: model.to_owned(),
+            available: segment_list(market),
+        })
 }
 
 /// "Quellmark Tessel (5,012), ..." for messages.
@@ -117,7 +116,13 @@ pub fn segment_list(market: &Market) -> String {
     market
         .segments()
         .iter()
-        .map(|(s, n)| format!("{} ({})", market.segment_name(*s), crate::format::thousands(*n as f64)))
+        .map(|(s, n)| {
+            format!(
+                "{} ({})",
+                market.segment_name(*s),
+                crate::format::thousands(*n as f64)
+            )
+        })
         .collect::<Vec<_>>()
         .join(", ")
 }
@@ -130,7 +135,14 @@ pub fn fit_market(
     overrides: &Overrides,
 ) -> Result<MarketFit, AppraisalError> {
     let as_of = settings.as_of_for(market);
-    let cleaning = clean_segment(market, segment, &settings.cleaning, settings.age_form, as_of, overrides);
+    let cleaning = clean_segment(
+        market,
+        segment,
+        &settings.cleaning,
+        settings.age_form,
+        as_of,
+        overrides,
+    );
     let included_rows = cleaning.included_rows();
     let params = HedonicParams::new(as_of)
         .age_form(settings.age_form)
@@ -230,7 +242,11 @@ pub struct Appraisal {
 
 /// The subject's attributes in the fitted market's terms, checking that the market can price
 /// them.
-pub fn subject_terms(market: &Market, fit: &MarketFit, subject: &Subject) -> Result<SubjectTerms, AppraisalError> {
+pub fn subject_terms(
+    market: &Market,
+    fit: &MarketFit,
+    subject: &Subject,
+) -> Result<SubjectTerms, AppraisalError> {
     let design = fit.model.design();
     let variant = match &subject.variant {
         Some(v) => market.names.id_ignore_case(v),
@@ -242,7 +258,13 @@ pub fn subject_terms(market: &Market, fit: &MarketFit, subject: &Subject) -> Res
             known: design
                 .variants
                 .iter()
-                .map(|&v| if v == NO_NAME { "(none)".to_owned() } else { market.names.name(v).to_owned() })
+                .map(|&v| {
+                    if v == NO_NAME {
+                        "(none)".to_owned()
+                    } else {
+                        market.names.name(v).to_owned()
+                    }
+                })
                 .collect::<Vec<_>>()
                 .join(", "),
         });
@@ -261,7 +283,11 @@ pub fn subject_terms(market: &Market, fit: &MarketFit, subject: &Subject) -> Res
 }
 
 /// Appraises `request.subject` against a fitted segment.
-pub fn appraise(market: &Market, fit: &MarketFit, request: &AppraisalRequest) -> Result<Appraisal, AppraisalError> {
+pub fn appraise(
+    market: &Market,
+    fit: &MarketFit,
+    request: &AppraisalRequest,
+) -> Result<Appraisal, AppraisalError> {
     appraise_among(market, fit, &fit.candidates, request)
 }
 
@@ -289,7 +315,15 @@ pub fn appraise_among(
         variant: terms.variant,
         condition: terms.condition,
     };
-    let selection = choose_comparables(market, &fit.cleaning, candidates, &key, &request.rules, &request.choices, fit.as_of);
+    let selection = choose_comparables(
+        market,
+        &fit.cleaning,
+        candidates,
+        &key,
+        &request.rules,
+        &request.choices,
+        fit.as_of,
+    );
     let mut comparables: Vec<AdjustedComparable> = selection
         .chosen
         .iter()
@@ -323,7 +357,12 @@ pub fn appraise_among(
             gross_fraction: c.gross_pct / 100.0,
         })
         .collect();
-    let reconciliation = reconcile(&inputs, &model_estimate, fit.model.df_residual() as f64, request.level);
+    let reconciliation = reconcile(
+        &inputs,
+        &model_estimate,
+        fit.model.df_residual() as f64,
+        request.level,
+    );
     for (c, w) in comparables.iter_mut().zip(&reconciliation.weights) {
         c.weight = *w;
     }

@@ -7,12 +7,12 @@
 //! in for values, so the errors include the noise of asking prices themselves.
 
 use linfa::ParamGuard;
-use rand::seq::SliceRandom;
 use rand::SeedableRng;
+use rand::seq::SliceRandom;
 use rand_chacha::ChaCha8Rng;
 use serde::{Deserialize, Serialize};
 
-use crate::appraisal::{appraise_among, AppraisalError, AppraisalRequest, MarketFit};
+use crate::appraisal::{AppraisalError, AppraisalRequest, MarketFit, appraise_among};
 use crate::comparables::{CandidateIndex, ComparableRules};
 use crate::hedonic::HedonicParams;
 use crate::market::Market;
@@ -113,7 +113,9 @@ pub fn backtest(
         };
         for &row in &held {
             let a = fold_fit.model.attributes_of_row(market, row);
-            if !fold_fit.model.design().knows_variant(a.variant) || !fold_fit.model.design().knows_condition(a.condition) {
+            if !fold_fit.model.design().knows_variant(a.variant)
+                || !fold_fit.model.design().knows_condition(a.condition)
+            {
                 not_valued += 1;
                 continue;
             }
@@ -124,7 +126,10 @@ pub fn backtest(
                 model_inside += 1;
             }
         }
-        let step = held.len().div_ceil(settings.comparable_subjects_per_fold.max(1)).max(1);
+        let step = held
+            .len()
+            .div_ceil(settings.comparable_subjects_per_fold.max(1))
+            .max(1);
         for &row in held.iter().step_by(step) {
             let mut request = AppraisalRequest::new(Subject::from_listing(&market.listing(row)));
             request.rules = *rules;
@@ -146,7 +151,11 @@ pub fn backtest(
     let accuracy = |errors: &[f64], inside: usize| MethodAccuracy {
         evaluated: errors.len(),
         median_abs_pct_error: stats::median(errors).unwrap_or(f64::NAN),
-        band_coverage_pct: if errors.is_empty() { f64::NAN } else { 100.0 * inside as f64 / errors.len() as f64 },
+        band_coverage_pct: if errors.is_empty() {
+            f64::NAN
+        } else {
+            100.0 * inside as f64 / errors.len() as f64
+        },
         level: settings.level,
     };
     Ok(Backtest {

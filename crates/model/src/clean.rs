@@ -92,19 +92,36 @@ impl std::fmt::Display for Exclusion {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {
             Exclusion::DuplicateVin { of_line } => write!(f, "same VIN as line {of_line}"),
-            Exclusion::DuplicateListing { of_line } => write!(f, "same vehicle and price as line {of_line}"),
-            Exclusion::StaleListing { days_listed, limit_days } => {
-                write!(f, "listed {days_listed} days ago and unsold (limit {limit_days})")
+            Exclusion::DuplicateListing { of_line } => {
+                write!(f, "same vehicle and price as line {of_line}")
+            }
+            Exclusion::StaleListing {
+                days_listed,
+                limit_days,
+            } => {
+                write!(
+                    f,
+                    "listed {days_listed} days ago and unsold (limit {limit_days})"
+                )
             }
             Exclusion::OldStockListedAsNew { model_year } => {
-                write!(f, "model year {model_year} still listed as new: priced as new, not by age")
+                write!(
+                    f,
+                    "model year {model_year} still listed as new: priced as new, not by age"
+                )
             }
             Exclusion::BrandedTitle { title } => write!(f, "{} title", title.as_str()),
-            Exclusion::ImplausiblyCheap { percent_of_market, studentized } => write!(
+            Exclusion::ImplausiblyCheap {
+                percent_of_market,
+                studentized,
+            } => write!(
                 f,
                 "asks {percent_of_market:.0} % of the market for its attributes (studentized residual {studentized:.1}): possible branded title or damage; check before use"
             ),
-            Exclusion::HighOutlier { percent_of_market, studentized } => write!(
+            Exclusion::HighOutlier {
+                percent_of_market,
+                studentized,
+            } => write!(
                 f,
                 "asks {percent_of_market:.0} % of the market for its attributes (studentized residual {studentized:.1})"
             ),
@@ -248,12 +265,27 @@ pub fn clean_segment(
     if rules.drop_duplicates {
         mark_duplicates(market, &rows, &mut exclusions);
     }
-    let overridden_in = |r: usize| matches!(overrides.get(&market.line[r]), Some(Override::Include { .. }));
-    let outlier_check_skipped = mark_outliers(market, &rows, &mut exclusions, rules, age_form, as_of, &overridden_in);
+    let overridden_in = |r: usize| {
+        matches!(
+            overrides.get(&market.line[r]),
+            Some(Override::Include { .. })
+        )
+    };
+    let outlier_check_skipped = mark_outliers(
+        market,
+        &rows,
+        &mut exclusions,
+        rules,
+        age_form,
+        as_of,
+        &overridden_in,
+    );
     let included: Vec<bool> = rows
         .iter()
         .zip(&exclusions)
-        .map(|(&r, e)| e.is_none() || (overridden_in(r) && !matches!(e, Some(Exclusion::Manual { .. }))))
+        .map(|(&r, e)| {
+            e.is_none() || (overridden_in(r) && !matches!(e, Some(Exclusion::Manual { .. })))
+        })
         .collect();
     let mut included_by_row = vec![false; market.len()];
     for (&r, &inc) in rows.iter().zip(&included) {
@@ -269,8 +301,17 @@ pub fn clean_segment(
     }
 }
 
-fn stock_rules(market: &Market, r: usize, rules: &CleaningRules, as_of: NaiveDate) -> Option<Exclusion> {
-    if let (Some(limit), Some(listed), None) = (rules.stale_after_days, market.listed_on[r], market.sold_on[r]) {
+fn stock_rules(
+    market: &Market,
+    r: usize,
+    rules: &CleaningRules,
+    as_of: NaiveDate,
+) -> Option<Exclusion> {
+    if let (Some(limit), Some(listed), None) = (
+        rules.stale_after_days,
+        market.listed_on[r],
+        market.sold_on[r],
+    ) {
         let days = (as_of - listed).num_days();
         if days > i64::from(limit) {
             return Some(Exclusion::StaleListing {
@@ -301,13 +342,8 @@ fn mark_duplicates(market: &Market, rows: &[usize], exclusions: &mut [Option<Exc
     for (i, &r) in rows.iter().enumerate() {
         let line = market.line[r];
         let duplicate = if let Some(vin) = market.vin[r].as_deref() {
-            match by_vin.get(vin) {
-                Some(&of_line) => Some(Exclusion::DuplicateVin { of_line }),
-                None => {
-                    by_vin.insert(vin, line);
-                    None
-                }
-            }
+            let first = *by_vin.entry(vin).or_insert(line);
+            (first != line).then_some(Exclusion::DuplicateVin { of_line: first })
         } else {
             let key = (
                 market.model_year[r],
@@ -316,13 +352,8 @@ fn mark_duplicates(market: &Market, rows: &[usize], exclusions: &mut [Option<Exc
                 (market.asking_price[r] * 100.0).round() as u64,
                 market.seller[r],
             );
-            match by_attributes.get(&key) {
-                Some(&of_line) => Some(Exclusion::DuplicateListing { of_line }),
-                None => {
-                    by_attributes.insert(key, line);
-                    None
-                }
-            }
+            let first = *by_attributes.entry(key).or_insert(line);
+            (first != line).then_some(Exclusion::DuplicateListing { of_line: first })
         };
         if exclusions[i].is_none() {
             exclusions[i] = duplicate;
@@ -348,9 +379,16 @@ fn mark_outliers(
         .map(|(r, _)| *r)
         .collect();
     // An evenly spaced sample is enough to place the market; every listing is then scored.
-    let step = clean.len().div_ceil(rules.robust_sample_limit.max(1)).max(1);
+    let step = clean
+        .len()
+        .div_ceil(rules.robust_sample_limit.max(1))
+        .max(1);
     let sample: Vec<usize> = clean.iter().copied().step_by(step).collect();
-    let params = match HedonicParams::new(as_of).age_form(age_form).robust(true).check() {
+    let params = match HedonicParams::new(as_of)
+        .age_form(age_form)
+        .robust(true)
+        .check()
+    {
         Ok(p) => p,
         Err(e) => return Some(e.to_string()),
     };
@@ -366,15 +404,23 @@ fn mark_outliers(
     let leverage_scale = sample.len() as f64 / clean.len().max(1) as f64;
     let score = |r: usize, x: &mut [f64]| {
         let a = model.attributes_of_row(market, r);
-        model.design().fill_row(a.age_years, a.miles, a.variant, a.condition, x);
+        model
+            .design()
+            .fill_row(a.age_years, a.miles, a.variant, a.condition, x);
         let resid = market.asking_price[r].ln() - model.linear_predictor(x);
         let h = (model.factor_leverage(x) * leverage_scale).min(0.99);
         let studentized = resid / (s * (1.0 - h).sqrt());
         let percent_of_market = 100.0 * resid.exp();
         if resid.exp() < rules.cheap_below_fraction || studentized < -rules.outlier_threshold {
-            Some(Exclusion::ImplausiblyCheap { percent_of_market, studentized })
+            Some(Exclusion::ImplausiblyCheap {
+                percent_of_market,
+                studentized,
+            })
         } else if studentized > rules.outlier_threshold {
-            Some(Exclusion::HighOutlier { percent_of_market, studentized })
+            Some(Exclusion::HighOutlier {
+                percent_of_market,
+                studentized,
+            })
         } else {
             None
         }

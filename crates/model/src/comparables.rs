@@ -8,7 +8,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::clean::SegmentCleaning;
 use crate::condition::Condition;
-use crate::gower::{gower_distance, GowerPart, GowerWeights};
+use crate::gower::{GowerPart, GowerWeights, gower_distance};
 use crate::market::Market;
 use crate::vocabulary::NameId;
 
@@ -44,7 +44,10 @@ impl MileageRule {
     #[must_use]
     pub fn new_york() -> Self {
         Self {
-            max_over: Some(Allowance { miles: 4_000.0, percent: 10.0 }),
+            max_over: Some(Allowance {
+                miles: 4_000.0,
+                percent: 10.0,
+            }),
             max_under: None,
         }
     }
@@ -53,7 +56,10 @@ impl MileageRule {
     /// of ours, common practice, no source).
     #[must_use]
     pub fn default_pricing() -> Self {
-        let a = Allowance { miles: 15_000.0, percent: 30.0 };
+        let a = Allowance {
+            miles: 15_000.0,
+            percent: 30.0,
+        };
         Self {
             max_over: Some(a),
             max_under: Some(a),
@@ -187,7 +193,10 @@ impl std::fmt::Display for RuleBreak {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         use crate::format::thousands;
         match self {
-            RuleBreak::ModelYearOutsideWindow { years_apart, window } => {
+            RuleBreak::ModelYearOutsideWindow {
+                years_apart,
+                window,
+            } => {
                 write!(f, "model year {years_apart} apart (window ±{window})")
             }
             RuleBreak::MilesOver { over_by, limit } => write!(
@@ -202,8 +211,12 @@ impl std::fmt::Display for RuleBreak {
                 thousands(*under_by),
                 thousands(*limit)
             ),
-            RuleBreak::ListingTooOld { days, limit } => write!(f, "listed {days} days ago (limit {limit})"),
-            RuleBreak::TooFar { miles, limit } => write!(f, "{miles:.0} mi away (limit {limit:.0})"),
+            RuleBreak::ListingTooOld { days, limit } => {
+                write!(f, "listed {days} days ago (limit {limit})")
+            }
+            RuleBreak::TooFar { miles, limit } => {
+                write!(f, "{miles:.0} mi away (limit {limit:.0})")
+            }
             RuleBreak::OtherVariant => write!(f, "another variant"),
             RuleBreak::Excluded { code } => write!(f, "excluded by cleaning ({code})"),
         }
@@ -260,7 +273,12 @@ pub struct ComparableSelection {
 
 /// The code of the first hard filter a candidate fails (the model-year window is not checked:
 /// the search visits only rows inside it). Allocation-free, for the search loop.
-fn first_failing_filter(c: &CandidateRow, subject: &SubjectKey, rules: &ComparableRules, as_of: NaiveDate) -> Option<&'static str> {
+fn first_failing_filter(
+    c: &CandidateRow,
+    subject: &SubjectKey,
+    rules: &ComparableRules,
+    as_of: NaiveDate,
+) -> Option<&'static str> {
     if let Some(b) = rules.mileage.check(subject.miles, c.miles) {
         return Some(b.code());
     }
@@ -311,7 +329,10 @@ pub fn filter_breaks(
     }
     if let (Some(limit), Some(d)) = (rules.max_distance_miles, market.distance_miles[row]) {
         if f64::from(d) > limit {
-            breaks.push(RuleBreak::TooFar { miles: f64::from(d), limit });
+            breaks.push(RuleBreak::TooFar {
+                miles: f64::from(d),
+                limit,
+            });
         }
     }
     if rules.same_variant_only && market.variant[row] != subject.variant {
@@ -355,21 +376,27 @@ impl CandidateIndex {
     pub fn new(market: &Market, rows: &[usize], cleaning: &SegmentCleaning) -> Self {
         let mut by_year: BTreeMap<i32, Vec<CandidateRow>> = BTreeMap::new();
         for &row in rows {
-            by_year.entry(market.model_year[row]).or_default().push(CandidateRow {
-                row,
-                model_year: market.model_year[row],
-                miles: market.miles[row],
-                listed_on: market.listed_on[row],
-                distance_miles: market.distance_miles[row],
-                variant: market.variant[row],
-                condition: market.condition[row],
-                included: cleaning.is_included(row),
-            });
+            by_year
+                .entry(market.model_year[row])
+                .or_default()
+                .push(CandidateRow {
+                    row,
+                    model_year: market.model_year[row],
+                    miles: market.miles[row],
+                    listed_on: market.listed_on[row],
+                    distance_miles: market.distance_miles[row],
+                    variant: market.variant[row],
+                    condition: market.condition[row],
+                    included: cleaning.is_included(row),
+                });
         }
         for v in by_year.values_mut() {
             v.sort_unstable_by_key(|c| c.row);
         }
-        Self { by_year, total: rows.len() }
+        Self {
+            by_year,
+            total: rows.len(),
+        }
     }
 
     /// Number of rows indexed.
@@ -388,11 +415,15 @@ impl CandidateIndex {
     #[must_use]
     pub fn get(&self, market: &Market, row: usize) -> Option<&CandidateRow> {
         let rows = self.by_year.get(&market.model_year[row])?;
-        rows.binary_search_by_key(&row, |c| c.row).ok().map(|i| &rows[i])
+        rows.binary_search_by_key(&row, |c| c.row)
+            .ok()
+            .map(|i| &rows[i])
     }
 
     fn within(&self, first_year: i32, last_year: i32) -> impl Iterator<Item = &CandidateRow> + '_ {
-        self.by_year.range(first_year..=last_year).flat_map(|(_, rows)| rows.iter())
+        self.by_year
+            .range(first_year..=last_year)
+            .flat_map(|(_, rows)| rows.iter())
     }
 }
 
@@ -421,8 +452,9 @@ pub fn choose_comparables(
         if hand_picked && choices.include.contains(&line) {
             continue; // handled below with every rule it breaks
         }
-        let failed = first_failing_filter(c, subject, rules, as_of)
-            .or_else(|| (hand_picked && choices.exclude.contains(&line)).then_some("excluded_by_hand"));
+        let failed = first_failing_filter(c, subject, rules, as_of).or_else(|| {
+            (hand_picked && choices.exclude.contains(&line)).then_some("excluded_by_hand")
+        });
         match failed {
             Some(code) => *stopped.entry(code).or_default() += 1,
             None => passing.push(c),
@@ -432,7 +464,10 @@ pub fn choose_comparables(
     if outside > 0 {
         stopped.insert("model_year_outside_window", outside);
     }
-    let stopped_by: BTreeMap<String, usize> = stopped.into_iter().map(|(k, v)| (k.to_owned(), v)).collect();
+    let stopped_by: BTreeMap<String, usize> = stopped
+        .into_iter()
+        .map(|(k, v)| (k.to_owned(), v))
+        .collect();
     let forced: Vec<(&CandidateRow, Vec<RuleBreak>)> = choices
         .include
         .iter()
@@ -443,16 +478,26 @@ pub fn choose_comparables(
             let mut breaks = filter_breaks(market, c.row, subject, rules, as_of);
             if !c.included {
                 if let Some(e) = cleaning.exclusion_of(c.row) {
-                    breaks.push(RuleBreak::Excluded { code: e.code().to_owned() });
+                    breaks.push(RuleBreak::Excluded {
+                        code: e.code().to_owned(),
+                    });
                 }
             }
             (c, breaks)
         })
         .collect();
     let passed = passing.len();
-    let ranges = Ranges::over(passing.iter().copied().chain(forced.iter().map(|(c, _)| *c)), subject, as_of);
+    let ranges = Ranges::over(
+        passing
+            .iter()
+            .copied()
+            .chain(forced.iter().map(|(c, _)| *c)),
+        subject,
+        as_of,
+    );
     let distance = |c: &CandidateRow| gower_to_subject(c, subject, &rules.weights, &ranges, as_of);
-    let mut ranked: Vec<(&CandidateRow, f64)> = passing.into_iter().map(|c| (c, distance(c))).collect();
+    let mut ranked: Vec<(&CandidateRow, f64)> =
+        passing.into_iter().map(|c| (c, distance(c))).collect();
     // Most similar first; ties to the more recent listing, then file order (rows are in file order).
     let order = |a: &(&CandidateRow, f64), b: &(&CandidateRow, f64)| {
         a.1.total_cmp(&b.1)
@@ -474,12 +519,17 @@ pub fn choose_comparables(
             breaks,
         })
         .collect();
-    chosen.extend(ranked.into_iter().take(slots).map(|(c, d)| ChosenComparable {
-        row: c.row,
-        gower_distance: d,
-        manual: false,
-        breaks: Vec::new(),
-    }));
+    chosen.extend(
+        ranked
+            .into_iter()
+            .take(slots)
+            .map(|(c, d)| ChosenComparable {
+                row: c.row,
+                gower_distance: d,
+                manual: false,
+                breaks: Vec::new(),
+            }),
+    );
     chosen.sort_by(|a, b| a.gower_distance.total_cmp(&b.gower_distance));
     ComparableSelection {
         chosen,
@@ -499,21 +549,47 @@ struct Ranges {
 }
 
 impl Ranges {
-    fn over<'a>(pool: impl Iterator<Item = &'a CandidateRow> + Clone, subject: &SubjectKey, as_of: NaiveDate) -> Self {
+    fn over<'a>(
+        pool: impl Iterator<Item = &'a CandidateRow> + Clone,
+        subject: &SubjectKey,
+        as_of: NaiveDate,
+    ) -> Self {
         let span = |values: &mut dyn Iterator<Item = f64>| {
-            let (lo, hi) = values.fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| (lo.min(v), hi.max(v)));
+            let (lo, hi) = values.fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
+                (lo.min(v), hi.max(v))
+            });
             if hi > lo { hi - lo } else { 0.0 }
         };
         Self {
-            model_year: span(&mut pool.clone().map(|c| f64::from(c.model_year)).chain([f64::from(subject.model_year)])),
+            model_year: span(
+                &mut pool
+                    .clone()
+                    .map(|c| f64::from(c.model_year))
+                    .chain([f64::from(subject.model_year)]),
+            ),
             miles: span(&mut pool.clone().map(|c| c.miles).chain([subject.miles])),
-            distance: span(&mut pool.clone().filter_map(|c| c.distance_miles.map(f64::from)).chain([0.0])),
-            days_listed: span(&mut pool.filter_map(|c| c.listed_on.map(|d| (as_of - d).num_days() as f64)).chain([0.0])),
+            distance: span(
+                &mut pool
+                    .clone()
+                    .filter_map(|c| c.distance_miles.map(f64::from))
+                    .chain([0.0]),
+            ),
+            days_listed: span(
+                &mut pool
+                    .filter_map(|c| c.listed_on.map(|d| (as_of - d).num_days() as f64))
+                    .chain([0.0]),
+            ),
         }
     }
 }
 
-fn gower_to_subject(c: &CandidateRow, subject: &SubjectKey, w: &GowerWeights, ranges: &Ranges, as_of: NaiveDate) -> f64 {
+fn gower_to_subject(
+    c: &CandidateRow,
+    subject: &SubjectKey,
+    w: &GowerWeights,
+    ranges: &Ranges,
+    as_of: NaiveDate,
+) -> f64 {
     let parts = [
         (
             GowerPart::Numeric {
@@ -531,8 +607,14 @@ fn gower_to_subject(c: &CandidateRow, subject: &SubjectKey, w: &GowerWeights, ra
             },
             w.miles,
         ),
-        (GowerPart::Categorical(Some(subject.variant == c.variant)), w.variant),
-        (GowerPart::Categorical(Some(subject.condition == c.condition)), w.condition),
+        (
+            GowerPart::Categorical(Some(subject.variant == c.variant)),
+            w.variant,
+        ),
+        (
+            GowerPart::Categorical(Some(subject.condition == c.condition)),
+            w.condition,
+        ),
         // The subject sits at distance 0 and is "listed today".
         (
             GowerPart::Numeric {

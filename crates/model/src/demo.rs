@@ -111,7 +111,13 @@ const PLACES: [&str; 10] = [
     "Sable Point",
     "Tamsin Wells",
 ];
-const OPTIONS: [&str; 5] = ["sunroof", "tow package", "premium audio", "driver assist", "cold weather"];
+const OPTIONS: [&str; 5] = [
+    "sunroof",
+    "tow package",
+    "premium audio",
+    "driver assist",
+    "cold weather",
+];
 const VIN_CHARS: &[u8] = b"ABCDEFGHJKLMNPRSTUVWXYZ0123456789";
 
 /// Writes a demo market of `rows` listings drawn with `seed` as CSV.
@@ -158,7 +164,13 @@ fn pick_model<'a>(truth: &'a DemoTruth, rng: &mut ChaCha8Rng) -> &'a ModelTruth 
     &truth.models[0]
 }
 
-fn demo_row(truth: &DemoTruth, as_of: NaiveDate, rng: &mut ChaCha8Rng, noise: &Normal<f64>, spread: &Normal<f64>) -> String {
+fn demo_row(
+    truth: &DemoTruth,
+    as_of: NaiveDate,
+    rng: &mut ChaCha8Rng,
+    noise: &Normal<f64>,
+    spread: &Normal<f64>,
+) -> String {
     let m = pick_model(truth, rng);
     let (variant, premium) = m.variants[match rng.random::<f64>() {
         u if u < 0.45 => 0,
@@ -178,18 +190,30 @@ fn demo_row(truth: &DemoTruth, as_of: NaiveDate, rng: &mut ChaCha8Rng, noise: &N
         };
         // Old stock is priced as new, with a small discount.
         let discount = if old_stock { -0.03 } else { 0.0 };
-        ("new", model_year, f64::from(rng.random_range(3..60)), m.base_price.ln() + truth.new + discount)
+        (
+            "new",
+            model_year,
+            f64::from(rng.random_range(3..60)),
+            m.base_price.ln() + truth.new + discount,
+        )
     } else {
         let age = draw_age(rng);
         let certified = age <= 6 && rng.random::<f64>() < 0.12;
-        let miles = (truth.annual_miles * (f64::from(age) + 0.5) * spread.sample(rng).exp()).min(300_000.0).round();
+        let miles = (truth.annual_miles * (f64::from(age) + 0.5) * spread.sample(rng).exp())
+            .min(300_000.0)
+            .round();
         let a = f64::from(age);
         let log_price = m.base_price.ln()
             + m.age * a
             + m.age_squared * a * a
             + truth.miles_10k * miles / 10_000.0
             + if certified { truth.certified } else { 0.0 };
-        (if certified { "certified" } else { "used" }, as_of_year - age, miles, log_price)
+        (
+            if certified { "certified" } else { "used" },
+            as_of_year - age,
+            miles,
+            log_price,
+        )
     };
     log_price += premium + noise.sample(rng);
     let mut title = "clean";
@@ -217,7 +241,10 @@ fn demo_row(truth: &DemoTruth, as_of: NaiveDate, rng: &mut ChaCha8Rng, noise: &N
         let sold = listed_on + TimeDelta::days(days_to_sell);
         if sold <= as_of {
             let ratio = rng.random_range(0.94..0.99);
-            (sold.to_string(), format!("{:.0}", (price * ratio / 50.0).round() * 50.0))
+            (
+                sold.to_string(),
+                format!("{:.0}", (price * ratio / 50.0).round() * 50.0),
+            )
         } else {
             (String::new(), String::new())
         }
@@ -230,7 +257,11 @@ fn demo_row(truth: &DemoTruth, as_of: NaiveDate, rng: &mut ChaCha8Rng, noise: &N
         .chain(m.model[..1].chars())
         .chain((0..14).map(|_| VIN_CHARS[rng.random_range(0..VIN_CHARS.len())] as char))
         .collect();
-    let options: Vec<&str> = OPTIONS.iter().copied().filter(|_| rng.random::<f64>() < 0.3).collect();
+    let options: Vec<&str> = OPTIONS
+        .iter()
+        .copied()
+        .filter(|_| rng.random::<f64>() < 0.3)
+        .collect();
     format!(
         "{model_year},{},{},{variant},{price:.0},{miles:.0},{condition},{listed_on},{sold_on},{sale_price},{vin},Seller {:03},{},{:.1},{title},{}",
         m.make,

@@ -4,7 +4,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::appraisal::{fit_market, FitSettings};
+use crate::appraisal::{FitSettings, fit_market};
 use crate::clean::Overrides;
 use crate::condition::Condition;
 use crate::hedonic::{AgeForm, Attributes, HedonicModel};
@@ -73,14 +73,36 @@ pub struct DepreciationTable {
 /// Value by age for every variant, ages 0..=`max_age`, used condition at typical miles; a first
 /// "new" row when the market has new listings.
 #[must_use]
-pub fn depreciation_table(model: &HedonicModel, market: &Market, max_age: u32) -> DepreciationTable {
+pub fn depreciation_table(
+    model: &HedonicModel,
+    market: &Market,
+    max_age: u32,
+) -> DepreciationTable {
     let design = model.design();
     let has_new = design.knows_condition(Condition::New);
-    let used = if design.knows_condition(Condition::Used) { Condition::Used } else { design.conditions[0] };
-    let name = |v| if v == NO_NAME { "(no variant)".to_owned() } else { market.names.name(v).to_owned() };
+    let used = if design.knows_condition(Condition::Used) {
+        Condition::Used
+    } else {
+        design.conditions[0]
+    };
+    let name = |v| {
+        if v == NO_NAME {
+            "(no variant)".to_owned()
+        } else {
+            market.names.name(v).to_owned()
+        }
+    };
     let value = |variant, age: u32, condition, miles| {
         model
-            .estimate(&Attributes { age_years: f64::from(age), miles, variant, condition }, 0.8)
+            .estimate(
+                &Attributes {
+                    age_years: f64::from(age),
+                    miles,
+                    variant,
+                    condition,
+                },
+                0.8,
+            )
             .median
     };
     let curves = design
@@ -166,7 +188,11 @@ pub struct DeclineRank {
 /// Ranks every segment of at least `min_listings` by fitted annual decline (steepest first),
 /// each fitted with a linear age term so the rates compare like for like.
 #[must_use]
-pub fn rank_segments(market: &Market, settings: &FitSettings, min_listings: usize) -> Vec<DeclineRank> {
+pub fn rank_segments(
+    market: &Market,
+    settings: &FitSettings,
+    min_listings: usize,
+) -> Vec<DeclineRank> {
     let linear = FitSettings {
         age_form: AgeForm::Linear,
         ..*settings
@@ -207,10 +233,10 @@ pub fn rank_segments(market: &Market, settings: &FitSettings, min_listings: usiz
         })
         .collect();
     ranks.sort_by(|a, b| {
-        a.skipped
-            .is_some()
-            .cmp(&b.skipped.is_some())
-            .then(b.with_typical_miles_pct.total_cmp(&a.with_typical_miles_pct))
+        a.skipped.is_some().cmp(&b.skipped.is_some()).then(
+            b.with_typical_miles_pct
+                .total_cmp(&a.with_typical_miles_pct),
+        )
     });
     ranks
 }

@@ -2,8 +2,8 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::appraisal::{subject_terms, AppraisalError, MarketFit};
-use crate::hedonic::{age_years, Attributes, ValueEstimate};
+use crate::appraisal::{AppraisalError, MarketFit, subject_terms};
+use crate::hedonic::{Attributes, ValueEstimate, age_years};
 use crate::market::Market;
 use crate::subject::Subject;
 

@@ -29,7 +29,11 @@ pub fn money(value: f64) -> String {
 /// 812 → "+$812", -812 → "-$812": for adjustments, whose sign matters.
 #[must_use]
 pub fn signed_money(value: f64) -> String {
-    if value.round() > 0.0 { format!("+{}", money(value)) } else { money(value) }
+    if value.round() > 0.0 {
+        format!("+{}", money(value))
+    } else {
+        money(value)
+    }
 }
 
 #[cfg(test)]

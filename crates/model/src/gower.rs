@@ -32,11 +32,23 @@ pub fn gower_distance(parts: &[(GowerPart, f64)]) -> Option<f64> {
             continue;
         }
         let d = match part {
-            GowerPart::Numeric { a: Some(a), b: Some(b), range } => {
-                if range > 0.0 { ((a - b).abs() / range).min(1.0) } else { 0.0 }
+            GowerPart::Numeric {
+                a: Some(a),
+                b: Some(b),
+                range,
+            } => {
+                if range > 0.0 {
+                    ((a - b).abs() / range).min(1.0)
+                } else {
+                    0.0
+                }
             }
             GowerPart::Categorical(Some(equal)) => {
-                if equal { 0.0 } else { 1.0 }
+                if equal {
+                    0.0
+                } else {
+                    1.0
+                }
             }
             _ => continue,
         };

@@ -6,26 +6,26 @@
 //! the market supports that value. The command line and the desktop workbench call these same
 //! functions.
 
+pub mod adjustment;
+pub mod appraisal;
+pub mod backtest;
+pub mod cautions;
+pub mod clean;
+pub mod comparables;
 pub mod condition;
+pub mod demo;
+pub mod depreciation;
+pub mod forecast;
+pub mod format;
+pub mod gaps;
+pub mod gower;
+pub mod hedonic;
 pub mod import;
 pub mod linalg;
 pub mod market;
 pub mod ols;
-pub mod stats;
-pub mod vocabulary;
-pub mod hedonic;
-pub mod demo;
-pub mod clean;
-pub mod adjustment;
-pub mod comparables;
-pub mod format;
-pub mod gower;
 pub mod reconcile;
+pub mod stats;
 pub mod subject;
-pub mod appraisal;
-pub mod depreciation;
-pub mod forecast;
-pub mod gaps;
-pub mod backtest;
-pub mod cautions;
 pub mod supply;
+pub mod vocabulary;

@@ -7,7 +7,7 @@ use chrono::NaiveDate;
 use serde::{Deserialize, Serialize};
 
 use crate::condition::{Condition, TitleStatus};
-use crate::vocabulary::{NameId, Vocabulary, NO_NAME};
+use crate::vocabulary::{NO_NAME, NameId, Vocabulary};
 
 /// Where a market came from, kept with every appraisal so the evidence can be traced.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize, Default)]
@@ -169,10 +169,8 @@ impl Market {
         }
         let mut list: Vec<(Segment, usize)> = counts.into_iter().collect();
         list.sort_by(|a, b| {
-            b.1.cmp(&a.1).then_with(|| {
-                self.segment_name(a.0)
-                    .cmp(&self.segment_name(b.0))
-            })
+            b.1.cmp(&a.1)
+                .then_with(|| self.segment_name(a.0).cmp(&self.segment_name(b.0)))
         });
         list
     }
@@ -244,7 +242,13 @@ impl Market {
         let ids: Vec<NameId> = (0..other.names.len() as NameId)
             .map(|id| self.names.intern(other.names.name(id)))
             .collect();
-        let map = |id: NameId| if id == NO_NAME { NO_NAME } else { ids[id as usize] };
+        let map = |id: NameId| {
+            if id == NO_NAME {
+                NO_NAME
+            } else {
+                ids[id as usize]
+            }
+        };
         self.line.extend(other.line);
         self.model_year.extend(other.model_year);
         self.make.extend(other.make.into_iter().map(map));

@@ -4,9 +4,9 @@
 //! [`linfa::traits::Fit`] implementation returns a separate fitted type, [`OlsFit`]. The
 //! hedonic market fit streams its rows into the same QR machinery ([`OlsFit::from_factor`]).
 
+use linfa::ParamGuard;
 use linfa::dataset::{AsSingleTargets, DatasetBase};
 use linfa::traits::Fit;
-use linfa::ParamGuard;
 use ndarray::{ArrayBase, Data, Ix1, Ix2};
 use serde::{Deserialize, Serialize};
 
@@ -17,7 +17,9 @@ use crate::stats;
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum OlsError {
     /// Fewer observations than coefficients leaves no degrees of freedom for the error.
-    #[error("{rows} observations cannot estimate {coefficients} coefficients and an error variance")]
+    #[error(
+        "{rows} observations cannot estimate {coefficients} coefficients and an error variance"
+    )]
     TooFewRows {
         /// Observations supplied.
         rows: usize,
@@ -205,9 +207,9 @@ impl OlsFit {
                 coefficients: p,
             });
         }
-        let coefficients = factor.solve().map_err(|RankError::Deficient { column }| {
-            OlsError::Collinear { column }
-        })?;
+        let coefficients = factor
+            .solve()
+            .map_err(|RankError::Deficient { column }| OlsError::Collinear { column })?;
         let tss = total_sum_of_squares(ys, intercept);
         let mut fit = Self {
             coefficients,
@@ -318,7 +320,11 @@ impl OlsFit {
 
     /// Fitted value with its confidence and prediction intervals at `level`, for a full design
     /// row. Kutner et al. (2005), eqs. 2.33 and 2.38 (simple) and 6.58-6.63 (multiple).
-    pub fn predict_interval(&self, design_row: &[f64], level: f64) -> Result<OlsPrediction, OlsError> {
+    pub fn predict_interval(
+        &self,
+        design_row: &[f64],
+        level: f64,
+    ) -> Result<OlsPrediction, OlsError> {
         self.predict_interval_with_sd(design_row, level, self.residual_sd())
     }
 

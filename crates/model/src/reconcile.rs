@@ -98,13 +98,19 @@ pub fn reconcile(
     } else {
         vec![1.0 / comparables.len() as f64; comparables.len()]
     };
-    let indicated_value: f64 = comparables.iter().zip(&weights).map(|(c, w)| w * c.adjusted_price).sum();
+    let indicated_value: f64 = comparables
+        .iter()
+        .zip(&weights)
+        .map(|(c, w)| w * c.adjusted_price)
+        .sum();
     let effective_count = 1.0 / weights.iter().map(|w| w * w).sum::<f64>();
     let logs: Vec<f64> = comparables.iter().map(|c| c.adjusted_price.ln()).collect();
     let (_, comparables_log_sd) = stats::weighted_mean_sd(&logs, &weights);
     let comparables_sigma = comparables_log_sd.map(|s| s * (1.0 + 1.0 / effective_count).sqrt());
     let (sigma, df, band_source) = match comparables_sigma {
-        Some(sc) if sc > model_sigma && effective_count > 1.5 => (sc, effective_count - 1.0, BandSource::Comparables),
+        Some(sc) if sc > model_sigma && effective_count > 1.5 => {
+            (sc, effective_count - 1.0, BandSource::Comparables)
+        }
         _ => (model_sigma, model_df, BandSource::Model),
     };
     let t = stats::t_two_sided(level, df);

@@ -32,7 +32,9 @@ pub struct Subject {
 #[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
 pub enum SubjectError {
     /// A required key is absent.
-    #[error("subject: '{0}' is missing (write e.g. \"year=2021,make=Quellmark,model=Tessel,variant=Plus,miles=48000,condition=used\")")]
+    #[error(
+        "subject: '{0}' is missing (write e.g. \"year=2021,make=Quellmark,model=Tessel,variant=Plus,miles=48000,condition=used\")"
+    )]
     Missing(&'static str),
     /// A value is unreadable.
     #[error("subject: {key}='{value}' is not valid: {why}")]
@@ -45,7 +47,9 @@ pub enum SubjectError {
         why: &'static str,
     },
     /// A key is not known.
-    #[error("subject: unknown key '{0}' (known: year, make, model, variant, miles, condition, options, vin)")]
+    #[error(
+        "subject: unknown key '{0}' (known: year, make, model, variant, miles, condition, options, vin)"
+    )]
     UnknownKey(String),
     /// A part lacks `=`.
     #[error("subject: '{0}' is not key=value")]
@@ -56,7 +60,8 @@ impl Subject {
     /// Reads `"year=2021,make=Quellmark,model=Tessel,variant=Plus,miles=48000,condition=used"`.
     /// Condition defaults to used; variant, options and VIN are optional.
     pub fn parse(spec: &str) -> Result<Self, SubjectError> {
-        let (mut year, mut make, mut model, mut variant, mut miles) = (None, None, None, None, None);
+        let (mut year, mut make, mut model, mut variant, mut miles) =
+            (None, None, None, None, None);
         let mut condition = Condition::Used;
         let (mut options, mut vin) = (None, None);
         for part in spec.split(',').map(str::trim).filter(|p| !p.is_empty()) {
@@ -71,7 +76,12 @@ impl Subject {
             };
             match key.as_str() {
                 "year" | "model_year" => {
-                    year = Some(crate::import::parse_year(value).filter(|y| (1900..=2200).contains(y)).ok_or_else(|| bad("a model year such as 2021"))? as i32);
+                    year = Some(
+                        crate::import::parse_year(value)
+                            .filter(|y| (1900..=2200).contains(y))
+                            .ok_or_else(|| bad("a model year such as 2021"))?
+                            as i32,
+                    );
                 }
                 "make" => make = Some(value.to_owned()),
                 "model" => model = Some(value.to_owned()),
@@ -83,7 +93,10 @@ impl Subject {
                             .ok_or_else(|| bad("miles between 0 and 1,000,000"))?,
                     );
                 }
-                "condition" => condition = Condition::parse(value).ok_or_else(|| bad("new, used or certified"))?,
+                "condition" => {
+                    condition =
+                        Condition::parse(value).ok_or_else(|| bad("new, used or certified"))?;
+                }
                 "options" => options = Some(value.to_owned()),
                 "vin" => vin = Some(value.to_ascii_uppercase()),
                 _ => return Err(SubjectError::UnknownKey(key)),
@@ -124,7 +137,10 @@ impl Subject {
             self.model_year,
             self.make,
             self.model,
-            self.variant.as_deref().map(|v| format!(" {v}")).unwrap_or_default(),
+            self.variant
+                .as_deref()
+                .map(|v| format!(" {v}"))
+                .unwrap_or_default(),
             crate::format::thousands(self.miles),
             self.condition
         )

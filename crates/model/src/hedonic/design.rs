@@ -4,7 +4,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::condition::Condition;
 use crate::market::Market;
-use crate::vocabulary::{NameId, NO_NAME};
+use crate::vocabulary::{NO_NAME, NameId};
 
 /// Age in model years at the appraisal date: the appraisal year minus the model year, so 0 for
 /// the appraisal year's model year. Next year's models, on sale early, also count as age 0: they
@@ -73,13 +73,20 @@ impl Design {
     /// youngest age, the variant with the lowest median asking price, and `used` when present.
     #[must_use]
     pub fn for_rows(market: &Market, rows: &[usize], age_form: AgeForm, as_of_year: i32) -> Self {
-        let mut ages: Vec<i32> = rows.iter().map(|&r| (as_of_year - market.model_year[r]).max(0)).collect();
+        let mut ages: Vec<i32> = rows
+            .iter()
+            .map(|&r| (as_of_year - market.model_year[r]).max(0))
+            .collect();
         ages.sort_unstable();
         ages.dedup();
 
-        let mut by_variant: std::collections::HashMap<NameId, Vec<f64>> = std::collections::HashMap::new();
+        let mut by_variant: std::collections::HashMap<NameId, Vec<f64>> =
+            std::collections::HashMap::new();
         for &r in rows {
-            by_variant.entry(market.variant[r]).or_default().push(market.asking_price[r]);
+            by_variant
+                .entry(market.variant[r])
+                .or_default()
+                .push(market.asking_price[r]);
         }
         let mut variants: Vec<(NameId, f64)> = by_variant
             .into_iter()
@@ -113,7 +120,11 @@ impl Design {
         }
         names.push("miles_10k".into());
         for &v in variants.iter().skip(1) {
-            let label = if v == NO_NAME { "(no variant)" } else { market.names.name(v) };
+            let label = if v == NO_NAME {
+                "(no variant)"
+            } else {
+                market.names.name(v)
+            };
             names.push(format!("variant={label}"));
         }
         for c in conditions.iter().skip(1) {
@@ -163,7 +174,14 @@ impl Design {
     /// Fills `out` (length [`Self::width`]) with the design row. An unknown variant or condition
     /// contributes as the base level; callers check with [`Self::knows_variant`] first where it
     /// matters. Ages between per-year levels are interpolated linearly; beyond them, clamped.
-    pub fn fill_row(&self, age: f64, miles: f64, variant: NameId, condition: Condition, out: &mut [f64]) {
+    pub fn fill_row(
+        &self,
+        age: f64,
+        miles: f64,
+        variant: NameId,
+        condition: Condition,
+        out: &mut [f64],
+    ) {
         out.fill(0.0);
         out[0] = 1.0;
         match self.age_form {
@@ -202,7 +220,8 @@ impl Design {
             }
         };
         let upper = levels.partition_point(|&l| f64::from(l) < age);
-        if upper < levels.len() && f64::from(levels[upper]) == age {
+        // Exactly on a level (ages are whole years in the data, so this is an exact match).
+        if upper < levels.len() && (f64::from(levels[upper]) - age).abs() < 1e-12 {
             set(out, upper, 1.0);
             return;
         }

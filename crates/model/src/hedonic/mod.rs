@@ -21,7 +21,7 @@ use crate::ols::{Interval, OlsError, OlsFit};
 use crate::stats;
 use crate::vocabulary::NameId;
 
-pub use design::{age_years, AgeForm, Design, MILES_UNIT};
+pub use design::{AgeForm, Design, MILES_UNIT, age_years};
 pub use mileage::MileageProfile;
 
 /// Why a market fit could not be made.
@@ -31,7 +31,9 @@ pub enum FitError {
     #[error("invalid fit setting: {0}")]
     InvalidParams(String),
     /// Too few listings for the terms requested.
-    #[error("{rows} usable listings cannot support {terms} terms ({names}); widen the market or use a simpler age form")]
+    #[error(
+        "{rows} usable listings cannot support {terms} terms ({names}); widen the market or use a simpler age form"
+    )]
     TooFewRows {
         /// Listings available.
         rows: usize,
@@ -41,7 +43,9 @@ pub enum FitError {
         names: String,
     },
     /// A term cannot be separated from the others.
-    #[error("term '{term}' cannot be separated from the terms before it (for example every listing of that variant is also of one condition or one age); drop it or widen the market")]
+    #[error(
+        "term '{term}' cannot be separated from the terms before it (for example every listing of that variant is also of one condition or one age); drop it or widen the market"
+    )]
     Collinear {
         /// Term name.
         term: String,
@@ -119,10 +123,15 @@ impl ParamGuard for HedonicParams {
     fn check_ref(&self) -> Result<&Self::Checked, Self::Error> {
         let p = &self.0;
         if !(p.huber_k.is_finite() && p.huber_k > 0.0) {
-            return Err(FitError::InvalidParams(format!("Huber k must be positive, got {}", p.huber_k)));
+            return Err(FitError::InvalidParams(format!(
+                "Huber k must be positive, got {}",
+                p.huber_k
+            )));
         }
         if p.max_iterations == 0 {
-            return Err(FitError::InvalidParams("the robust fit needs at least one iteration".into()));
+            return Err(FitError::InvalidParams(
+                "the robust fit needs at least one iteration".into(),
+            ));
         }
         Ok(p)
     }
@@ -326,7 +335,9 @@ pub(crate) fn accumulate(
             let mut y = market.asking_price[r].ln();
             if let Some(w) = weights {
                 let s = w[i].sqrt();
-                x.iter_mut().for_each(|v| *v *= s);
+                for v in &mut x {
+                    *v *= s;
+                }
                 y *= s;
             }
             acc.push_row(&x, y);
@@ -470,7 +481,8 @@ impl HedonicModel {
     #[must_use]
     pub fn design_row(&self, a: &Attributes) -> Vec<f64> {
         let mut x = vec![0.0; self.design.width()];
-        self.design.fill_row(a.age_years, a.miles, a.variant, a.condition, &mut x);
+        self.design
+            .fill_row(a.age_years, a.miles, a.variant, a.condition, &mut x);
         x
     }
 
@@ -547,9 +559,20 @@ impl HedonicModel {
     #[must_use]
     pub fn age_effect(&self, age: f64) -> f64 {
         let mut x = vec![0.0; self.design.width()];
-        let base_variant = self.design.variants.first().copied().unwrap_or(crate::vocabulary::NO_NAME);
-        let base_condition = self.design.conditions.first().copied().unwrap_or(Condition::Used);
-        self.design.fill_row(age, 0.0, base_variant, base_condition, &mut x);
+        let base_variant = self
+            .design
+            .variants
+            .first()
+            .copied()
+            .unwrap_or(crate::vocabulary::NO_NAME);
+        let base_condition = self
+            .design
+            .conditions
+            .first()
+            .copied()
+            .unwrap_or(Condition::Used);
+        self.design
+            .fill_row(age, 0.0, base_variant, base_condition, &mut x);
         dot(&x, &self.coefficients) - self.coefficients[0]
     }
 
@@ -584,7 +607,9 @@ impl HedonicModel {
     pub fn annual_depreciation(&self, horizon_years: u32) -> AnnualDepreciation {
         let h = f64::from(horizon_years.max(1));
         let age_only = (self.age_effect(h) - self.age_effect(0.0)) / h;
-        let miles_part = self.miles_slope() * (self.mileage.typical_miles(h) - self.mileage.typical_miles(0.0)) / h;
+        let miles_part = self.miles_slope()
+            * (self.mileage.typical_miles(h) - self.mileage.typical_miles(0.0))
+            / h;
         AnnualDepreciation {
             horizon_years: horizon_years.max(1),
             age_only_pct: 100.0 * (1.0 - age_only.exp()),

@@ -8,7 +8,7 @@
 
 use chrono::Datelike;
 
-use super::{accumulate, residuals, Design, FitError, ValidHedonicParams};
+use super::{Design, FitError, ValidHedonicParams, accumulate, residuals};
 use crate::market::Market;
 
 /// MAD to normal-SD factor.
@@ -52,9 +52,11 @@ pub(super) fn huber(
         let factor = accumulate(market, rows, design, as_of_year, Some(&weights));
         let next = factor
             .solve()
-            .map_err(|crate::linalg::RankError::Deficient { column }| FitError::Collinear {
-                term: design.names.get(column).cloned().unwrap_or_default(),
-            })?;
+            .map_err(
+                |crate::linalg::RankError::Deficient { column }| FitError::Collinear {
+                    term: design.names.get(column).cloned().unwrap_or_default(),
+                },
+            )?;
         let change = next
             .iter()
             .zip(&coefficients)

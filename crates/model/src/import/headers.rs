@@ -59,7 +59,14 @@ impl Field {
     #[must_use]
     pub fn spellings(self) -> &'static [&'static str] {
         match self {
-            Field::ModelYear => &["model_year", "year", "modelyear", "my", "yr", "vehicle_year"],
+            Field::ModelYear => &[
+                "model_year",
+                "year",
+                "modelyear",
+                "my",
+                "yr",
+                "vehicle_year",
+            ],
             Field::Make => &["make", "manufacturer", "maker", "brand", "marque"],
             Field::Model => &["model", "model_name", "vehicle_model"],
             Field::AskingPrice => &[
@@ -71,7 +78,14 @@ impl Field {
                 "price_usd",
                 "retail_price",
             ],
-            Field::Miles => &["miles", "mileage", "odometer", "odometer_miles", "mileage_mi", "mi"],
+            Field::Miles => &[
+                "miles",
+                "mileage",
+                "odometer",
+                "odometer_miles",
+                "mileage_mi",
+                "mi",
+            ],
             Field::Kilometres => &[
                 "kilometres",
                 "kilometers",
@@ -80,7 +94,14 @@ impl Field {
                 "mileage_km",
                 "kms",
             ],
-            Field::Variant => &["variant", "trim", "trim_level", "series", "grade", "edition"],
+            Field::Variant => &[
+                "variant",
+                "trim",
+                "trim_level",
+                "series",
+                "grade",
+                "edition",
+            ],
             Field::Condition => &[
                 "condition",
                 "condition_class",
@@ -98,10 +119,22 @@ impl Field {
                 "listed",
             ],
             Field::SoldOn => &["sold_on", "sale_date", "date_sold", "sold_date"],
-            Field::SalePrice => &["sale_price", "sold_price", "selling_price", "transaction_price"],
+            Field::SalePrice => &[
+                "sale_price",
+                "sold_price",
+                "selling_price",
+                "transaction_price",
+            ],
             Field::Vin => &["vin", "vehicle_id", "vin_number"],
             Field::Seller => &["seller", "dealer", "source", "seller_name", "dealer_name"],
-            Field::Location => &["location", "postal_code", "zip", "zip_code", "postcode", "city"],
+            Field::Location => &[
+                "location",
+                "postal_code",
+                "zip",
+                "zip_code",
+                "postcode",
+                "city",
+            ],
             Field::Latitude => &["latitude", "lat"],
             Field::Longitude => &["longitude", "lon", "lng", "long"],
             Field::DistanceMiles => &["distance_mi", "distance", "distance_miles", "miles_away"],

@@ -9,6 +9,7 @@ mod report;
 mod values;
 
 use std::collections::HashMap;
+use std::fmt::Write as _;
 use std::io::Cursor;
 use std::path::Path;
 
@@ -16,10 +17,10 @@ use chrono::{Datelike, NaiveDate};
 use polars::prelude::{CsvReadOptions, DataFrame, SerReader, StringChunked};
 
 use crate::condition::{Condition, TitleStatus};
-use crate::market::{content_hash, Market, MarketSource};
-use crate::vocabulary::{NameId, Vocabulary, NO_NAME};
+use crate::market::{Market, MarketSource, content_hash};
+use crate::vocabulary::{NO_NAME, NameId, Vocabulary};
 
-pub use headers::{field_for, normalise_header, Field};
+pub use headers::{Field, field_for, normalise_header};
 pub use report::{DroppedValue, ImportReport, RejectReason, RejectedRow};
 pub use values::{parse_date, parse_number, parse_year};
 
@@ -91,7 +92,9 @@ pub enum ImportError {
         file: String,
     },
     /// The file is not UTF-8 text.
-    #[error("{file}: line {line}, byte {column}: the file is not UTF-8 text (save it as UTF-8 CSV)")]
+    #[error(
+        "{file}: line {line}, byte {column}: the file is not UTF-8 text (save it as UTF-8 CSV)"
+    )]
     NotUtf8 {
         /// File name.
         file: String,
@@ -145,19 +148,23 @@ pub enum ImportError {
 fn summary_of(report: &ImportReport) -> String {
     let mut s = String::new();
     for (code, n) in &report.rejected_by_reason {
-        s.push_str(&format!("; {n} {code}"));
+        let _ = write!(s, "; {n} {code}");
     }
     if let Some(first) = report.rejected.first() {
-        s.push_str(&format!(" (first: line {}: {})", first.line, first.reason));
+        let _ = write!(s, " (first: line {}: {})", first.line, first.reason);
     }
     s
 }
 
 /// Reads and imports a CSV file.
-pub fn import_csv_file(path: &Path, options: &ImportOptions) -> Result<(Market, ImportReport), ImportError> {
-    let file = path
-        .file_name()
-        .map_or_else(|| path.display().to_string(), |n| n.to_string_lossy().into_owned());
+pub fn import_csv_file(
+    path: &Path,
+    options: &ImportOptions,
+) -> Result<(Market, ImportReport), ImportError> {
+    let file = path.file_name().map_or_else(
+        || path.display().to_string(),
+        |n| n.to_string_lossy().into_owned(),
+    );
     let bytes = std::fs::read(path).map_err(|source| ImportError::Io {
         file: file.clone(),
         source,
@@ -180,8 +187,10 @@ pub fn import_csv_bytes(
         return Err(ImportError::NotUtf8 { file, line, column });
     }
     let header_line = first_line(&bytes);
-    let delimiter = options.delimiter.unwrap_or_else(|| sniff_delimiter(header_line));
-    let mapping = map_header(&file, header_line, delimiter, options)?;
+    let delimiter = options
+        .delimiter
+        .unwrap_or_else(|| sniff_delimiter(header_line));
+    let mapping = map_header(&file, header_line, delimiter, *options)?;
     let hash = content_hash(&bytes);
     let record_lines = record_start_lines(&bytes);
 
@@ -203,10 +212,12 @@ pub fn import_csv_bytes(
         ..ImportReport::default()
     };
     let line_of = |row: usize| record_lines.get(row).copied().unwrap_or(row as u64 + 2);
-    let mut market = parse_rows(&df, &mapping, options, &mut report, &line_of)
-        .map_err(|message| ImportError::Malformed {
-            file: file.clone(),
-            message,
+    let mut market =
+        parse_rows(&df, &mapping, *options, &mut report, &line_of).map_err(|message| {
+            ImportError::Malformed {
+                file: file.clone(),
+                message,
+            }
         })?;
     report.rows_used = market.len();
     if market.is_empty() {
@@ -234,14 +245,22 @@ fn delimiter_name(d: u8) -> String {
 }
 
 fn first_line(bytes: &[u8]) -> &str {
-    let end = bytes.iter().position(|&b| b == b'\n').unwrap_or(bytes.len());
-    std::str::from_utf8(&bytes[..end]).unwrap_or("").trim_end_matches('\r')
+    let end = bytes
+        .iter()
+        .position(|&b| b == b'\n')
+        .unwrap_or(bytes.len());
+    std::str::from_utf8(&bytes[..end])
+        .unwrap_or("")
+        .trim_end_matches('\r')
 }
 
 fn line_and_column(bytes: &[u8], offset: usize) -> (u64, usize) {
     let before = &bytes[..offset];
-    let line = before.iter().filter(|&&b| b == b'\n').count() as u64 + 1;
-    let line_start = before.iter().rposition(|&b| b == b'\n').map_or(0, |p| p + 1);
+    let line = memchr::memchr_iter(b'\n', before).count() as u64 + 1;
+    let line_start = before
+        .iter()
+        .rposition(|&b| b == b'\n')
+        .map_or(0, |p| p + 1);
     (line, offset - line_start + 1)
 }
 
@@ -287,13 +306,18 @@ impl HeaderMapping {
     }
 }
 
-const REQUIRED: [Field; 4] = [Field::ModelYear, Field::Make, Field::Model, Field::AskingPrice];
+const REQUIRED: [Field; 4] = [
+    Field::ModelYear,
+    Field::Make,
+    Field::Model,
+    Field::AskingPrice,
+];
 
 fn map_header(
     file: &str,
     header: &str,
     delimiter: u8,
-    options: &ImportOptions,
+    options: ImportOptions,
 ) -> Result<HeaderMapping, ImportError> {
     let mapping = try_map_header(file, header, delimiter, options)?;
     let missing = missing_fields(&mapping);
@@ -305,16 +329,24 @@ fn map_header(
         .into_iter()
         .filter(|&d| d != delimiter)
         .find(|&d| {
-            try_map_header(file, header, d, options)
-                .map(|m| missing_fields(&m).is_empty())
-                .unwrap_or(false)
+            try_map_header(file, header, d, options).is_ok_and(|m| missing_fields(&m).is_empty())
         })
-        .map(|d| format!(" (the file looks separated by {}, not {})", delimiter_name(d), delimiter_name(delimiter)))
+        .map(|d| {
+            format!(
+                " (the file looks separated by {}, not {})",
+                delimiter_name(d),
+                delimiter_name(delimiter)
+            )
+        })
         .unwrap_or_default();
     Err(ImportError::MissingColumns {
         file: file.to_owned(),
         missing: missing.join(", "),
-        found: found.iter().map(|h| format!("'{h}'")).collect::<Vec<_>>().join(", "),
+        found: found
+            .iter()
+            .map(|h| format!("'{h}'"))
+            .collect::<Vec<_>>()
+            .join(", "),
         hint,
     })
 }
@@ -325,7 +357,9 @@ fn missing_fields(mapping: &HeaderMapping) -> Vec<&'static str> {
         .filter(|f| !mapping.columns.contains_key(f))
         .map(Field::canonical)
         .collect();
-    if !mapping.columns.contains_key(&Field::Miles) && !mapping.columns.contains_key(&Field::Kilometres) {
+    if !mapping.columns.contains_key(&Field::Miles)
+        && !mapping.columns.contains_key(&Field::Kilometres)
+    {
         missing.push("miles (or kilometres)");
     }
     missing
@@ -335,7 +369,7 @@ fn try_map_header(
     file: &str,
     header: &str,
     delimiter: u8,
-    options: &ImportOptions,
+    options: ImportOptions,
 ) -> Result<HeaderMapping, ImportError> {
     let mut columns: HashMap<Field, (usize, String)> = HashMap::new();
     let mut ignored = Vec::new();
@@ -428,14 +462,20 @@ fn record_start_lines(bytes: &[u8]) -> Vec<u64> {
     starts
 }
 
-fn text_column<'a>(df: &'a DataFrame, mapping: &HeaderMapping, field: Field) -> Result<Option<&'a StringChunked>, String> {
+fn text_column<'a>(
+    df: &'a DataFrame,
+    mapping: &HeaderMapping,
+    field: Field,
+) -> Result<Option<&'a StringChunked>, String> {
     let Some(index) = mapping.index(field) else {
         return Ok(None);
     };
-    let column = df
-        .columns()
-        .get(index)
-        .ok_or_else(|| format!("column {} of the header is missing from the data", index + 1))?;
+    let column = df.columns().get(index).ok_or_else(|| {
+        format!(
+            "column {} of the header is missing from the data",
+            index + 1
+        )
+    })?;
     column.str().map(Some).map_err(|e| e.to_string())
 }
 
@@ -480,7 +520,7 @@ const OPTIONAL_FIELDS: [Field; 14] = [
 fn parse_rows(
     df: &DataFrame,
     mapping: &HeaderMapping,
-    options: &ImportOptions,
+    options: ImportOptions,
     report: &mut ImportReport,
     line_of: &(dyn Fn(usize) -> u64 + Sync),
 ) -> Result<Market, String> {
@@ -489,7 +529,13 @@ fn parse_rows(
         OdometerUnit::Miles => Field::Miles,
         OdometerUnit::Kilometres => Field::Kilometres,
     };
-    let required = (col(Field::ModelYear)?, col(Field::Make)?, col(Field::Model)?, col(Field::AskingPrice)?, col(odometer_field)?);
+    let required = (
+        col(Field::ModelYear)?,
+        col(Field::Make)?,
+        col(Field::Model)?,
+        col(Field::AskingPrice)?,
+        col(odometer_field)?,
+    );
     let (Some(year), Some(make), Some(model), Some(price), Some(odometer)) = required else {
         return Err("a required column vanished after mapping".into());
     };
@@ -518,14 +564,24 @@ fn parse_rows(
         })
         .collect();
     let parts: Vec<(Market, ChunkIssues)> = if chunks.len() == 1 {
-        chunks.iter().map(|(start, c)| parse_chunk(c, *start, mapping, odometer_field, options, line_of)).collect()
+        chunks
+            .iter()
+            .map(|(start, c)| parse_chunk(c, *start, mapping, odometer_field, options, line_of))
+            .collect()
     } else {
         std::thread::scope(|scope| {
             let handles: Vec<_> = chunks
                 .iter()
-                .map(|(start, c)| scope.spawn(move || parse_chunk(c, *start, mapping, odometer_field, options, line_of)))
+                .map(|(start, c)| {
+                    scope.spawn(move || {
+                        parse_chunk(c, *start, mapping, odometer_field, options, line_of)
+                    })
+                })
                 .collect();
-            handles.into_iter().map(|h| h.join().map_err(|_| "a parsing thread failed".to_owned())).collect::<Result<_, _>>()
+            handles
+                .into_iter()
+                .map(|h| h.join().map_err(|_| "a parsing thread failed".to_owned()))
+                .collect::<Result<_, _>>()
         })?
     };
     let mut market = Market::default();
@@ -545,7 +601,7 @@ fn parse_chunk(
     first_row: usize,
     mapping: &HeaderMapping,
     odometer_field: Field,
-    options: &ImportOptions,
+    options: ImportOptions,
     line_of: &(dyn Fn(usize) -> u64 + Sync),
 ) -> (Market, ChunkIssues) {
     let km = mapping.odometer == OdometerUnit::Kilometres;
@@ -561,22 +617,38 @@ fn parse_chunk(
     let mut rest = OptionalIterators::new(&c.optional);
     for i in 0..c.year.len() {
         let line = line_of(first_row + i);
-        let values = (years.next().flatten(), makes.next().flatten(), models.next().flatten(), prices.next().flatten(), odometers.next().flatten());
+        let values = (
+            years.next().flatten(),
+            makes.next().flatten(),
+            models.next().flatten(),
+            prices.next().flatten(),
+            odometers.next().flatten(),
+        );
         let extra = rest.next_row();
-        let (model_year, make_text, model_text, asking_price, miles) = match read_required(values, mapping, odometer_field, km, options) {
-            Ok(v) => v,
-            Err(reason) => {
-                issues.rejected.push((line, reason));
-                continue;
-            }
-        };
+        let (model_year, make_text, model_text, asking_price, miles) =
+            match read_required(values, mapping, odometer_field, km, options) {
+                Ok(v) => v,
+                Err(reason) => {
+                    issues.rejected.push((line, reason));
+                    continue;
+                }
+            };
         market.line.push(line);
         market.model_year.push(model_year);
         market.make.push(cache.make.get(&mut names, make_text));
         market.model.push(cache.model.get(&mut names, model_text));
         market.asking_price.push(asking_price);
         market.miles.push(miles);
-        push_optional(&mut market, &mut names, &mut cache, extra, mapping, line, miles, &mut issues);
+        push_optional(
+            &mut market,
+            &mut names,
+            &mut cache,
+            extra,
+            mapping,
+            line,
+            miles,
+            &mut issues,
+        );
     }
     market.names = names;
     (market, issues)
@@ -584,17 +656,28 @@ fn parse_chunk(
 
 type RequiredValues<'a> = (i32, &'a str, &'a str, f64, f64);
 
+/// The five required texts of a row: year, make, model, price, odometer.
+type RequiredTexts<'a> = (
+    Option<&'a str>,
+    Option<&'a str>,
+    Option<&'a str>,
+    Option<&'a str>,
+    Option<&'a str>,
+);
+
 fn read_required<'a>(
-    (year, make, model, price, odometer): (Option<&'a str>, Option<&'a str>, Option<&'a str>, Option<&'a str>, Option<&'a str>),
+    (year, make, model, price, odometer): RequiredTexts<'a>,
     mapping: &HeaderMapping,
     odometer_field: Field,
     km: bool,
-    options: &ImportOptions,
+    options: ImportOptions,
 ) -> Result<RequiredValues<'a>, RejectReason> {
     let need = |v: Option<&'a str>, f: Field| {
-        v.map(str::trim).filter(|s| !s.is_empty()).ok_or_else(|| RejectReason::MissingValue {
-            column: mapping.header(f).to_owned(),
-        })
+        v.map(str::trim)
+            .filter(|s| !s.is_empty())
+            .ok_or_else(|| RejectReason::MissingValue {
+                column: mapping.header(f).to_owned(),
+            })
     };
     let not_number = |f: Field, v: &str| RejectReason::NotANumber {
         column: mapping.header(f).to_owned(),
@@ -605,16 +688,20 @@ fn read_required<'a>(
     let model = need(model, Field::Model)?;
     let price_text = need(price, Field::AskingPrice)?;
     let odo_text = need(odometer, odometer_field)?;
-    let model_year = parse_year(year_text).ok_or_else(|| not_number(Field::ModelYear, year_text))?;
+    let model_year =
+        parse_year(year_text).ok_or_else(|| not_number(Field::ModelYear, year_text))?;
     if !(1900..=i64::from(options.latest_model_year)).contains(&model_year) {
         return Err(RejectReason::ModelYearOutOfRange {
             value: model_year,
             latest_allowed: options.latest_model_year,
         });
     }
-    let asking_price = parse_number(price_text).ok_or_else(|| not_number(Field::AskingPrice, price_text))?;
+    let asking_price =
+        parse_number(price_text).ok_or_else(|| not_number(Field::AskingPrice, price_text))?;
     if !(1.0..=MAX_PRICE).contains(&asking_price) {
-        return Err(RejectReason::PriceOutOfRange { value: asking_price });
+        return Err(RejectReason::PriceOutOfRange {
+            value: asking_price,
+        });
     }
     let reading = parse_number(odo_text).ok_or_else(|| not_number(odometer_field, odo_text))?;
     let miles = if km { reading / KM_PER_MILE } else { reading };
@@ -695,7 +782,22 @@ fn push_optional(
     market: &mut Market,
     names: &mut Vocabulary,
     cache: &mut InternCache,
-    [variant, condition, listed_on, sold_on, sale_price, vin, seller, location, latitude, longitude, distance_mi, distance_km, title, options]: OptionalRow<'_>,
+    [
+        variant,
+        condition,
+        listed_on,
+        sold_on,
+        sale_price,
+        vin,
+        seller,
+        location,
+        latitude,
+        longitude,
+        distance_mi,
+        distance_km,
+        title,
+        options,
+    ]: OptionalRow<'_>,
     mapping: &HeaderMapping,
     line: u64,
     miles: f64,
@@ -710,17 +812,27 @@ fn push_optional(
             note: note.to_owned(),
         });
     };
-    market.variant.push(cache.variant.get_optional(names, variant));
+    market
+        .variant
+        .push(cache.variant.get_optional(names, variant));
     let parsed_condition = condition.and_then(|c| {
         let parsed = Condition::parse(c);
         if parsed.is_none() {
-            drop(Field::Condition, c, "unknown condition class; inferred from mileage");
+            drop(
+                Field::Condition,
+                c,
+                "unknown condition class; inferred from mileage",
+            );
         }
         parsed
     });
     market.condition.push(parsed_condition.unwrap_or_else(|| {
         inferred = true;
-        if miles < 1_000.0 { Condition::New } else { Condition::Used }
+        if miles < 1_000.0 {
+            Condition::New
+        } else {
+            Condition::Used
+        }
     }));
     let mut date = |field: Field, text: Option<&str>| {
         text.and_then(|t| {
@@ -742,22 +854,32 @@ fn push_optional(
             v
         })
     };
-    market.sale_price.push(number(Field::SalePrice, sale_price).filter(|p| *p > 0.0));
+    market
+        .sale_price
+        .push(number(Field::SalePrice, sale_price).filter(|p| *p > 0.0));
     let lat = number(Field::Latitude, latitude);
     let lon = number(Field::Longitude, longitude);
     let distance = number(Field::DistanceMiles, distance_mi)
         .or_else(|| number(Field::DistanceKilometres, distance_km).map(|km| km / KM_PER_MILE));
-    market.vin.push(vin.map(|v| v.to_ascii_uppercase().into_boxed_str()));
+    market
+        .vin
+        .push(vin.map(|v| v.to_ascii_uppercase().into_boxed_str()));
     market.seller.push(cache.seller.get_optional(names, seller));
-    market.location.push(cache.location.get_optional(names, location));
+    market
+        .location
+        .push(cache.location.get_optional(names, location));
     market.coordinates.push(match (lat, lon) {
         (Some(la), Some(lo)) if (-90.0..=90.0).contains(&la) && (-180.0..=180.0).contains(&lo) => {
             Some((la as f32, lo as f32))
         }
         _ => None,
     });
-    market.distance_miles.push(distance.filter(|d| *d >= 0.0).map(|d| d as f32));
+    market
+        .distance_miles
+        .push(distance.filter(|d| *d >= 0.0).map(|d| d as f32));
     market.title.push(title.and_then(TitleStatus::parse));
-    market.options.push(cache.options.get_optional(names, options));
+    market
+        .options
+        .push(cache.options.get_optional(names, options));
     issues.condition_inferred += usize::from(inferred);
 }

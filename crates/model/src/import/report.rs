@@ -66,10 +66,7 @@ impl std::fmt::Display for RejectReason {
             RejectReason::ModelYearOutOfRange {
                 value,
                 latest_allowed,
-            } => write!(
-                f,
-                "model year {value} is outside 1900..={latest_allowed}"
-            ),
+            } => write!(f, "model year {value} is outside 1900..={latest_allowed}"),
             RejectReason::MileageOutOfRange { value } => {
                 write!(f, "mileage {value:.0} mi is outside 0..=1,000,000")
             }

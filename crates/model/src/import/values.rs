@@ -58,11 +58,17 @@ pub fn parse_date(text: &str) -> Option<NaiveDate> {
 /// `YYYY-MM-DD` (optionally followed by a time) without going through a format string.
 fn parse_iso_date(t: &str) -> Option<NaiveDate> {
     let b = t.as_bytes();
-    if b.len() < 10 || b[4] != b'-' || b[7] != b'-' || (b.len() > 10 && !matches!(b[10], b'T' | b' ')) {
+    if b.len() < 10
+        || b[4] != b'-'
+        || b[7] != b'-'
+        || (b.len() > 10 && !matches!(b[10], b'T' | b' '))
+    {
         return None;
     }
     let digits = |range: std::ops::Range<usize>| {
-        b[range].iter().try_fold(0u32, |acc, &c| c.is_ascii_digit().then(|| acc * 10 + u32::from(c - b'0')))
+        b[range].iter().try_fold(0u32, |acc, &c| {
+            c.is_ascii_digit().then(|| acc * 10 + u32::from(c - b'0'))
+        })
     };
     NaiveDate::from_ymd_opt(digits(0..4)? as i32, digits(5..7)?, digits(8..10)?)
 }

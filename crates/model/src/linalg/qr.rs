@@ -237,11 +237,9 @@ impl QrFactor {
         let p = self.columns;
         let mut b = rhs.to_vec();
         for k in (0..p).rev() {
-            let mut s = b[k];
-            for j in (k + 1)..p {
-                s -= self.r[k * p + j] * b[j];
-            }
-            b[k] = s / self.r[k * p + k];
+            let row = &self.r[k * p..(k + 1) * p];
+            let s = b[k] - dot(&row[k + 1..], &b[k + 1..]);
+            b[k] = s / row[k];
         }
         b
     }
@@ -259,10 +257,11 @@ impl QrFactor {
             heap.resize(p, 0.0);
             &mut heap
         };
+        // Forward substitution with R' (column i of R holds row i of R').
         for i in 0..p {
             let mut s = x[i];
-            for k in 0..i {
-                s -= self.r[k * p + i] * z[k];
+            for (k, zk) in z[..i].iter().enumerate() {
+                s -= self.r[k * p + i] * zk;
             }
             z[i] = s / self.r[i * p + i];
         }
