@@ -310,14 +310,18 @@ pub fn gaps(doc: &GapsDocument, top: usize) -> String {
     let line = |o: &mut String, g: &model::gaps::PriceGap| {
         let _ = writeln!(
             o,
-            "  line {:>8}  {:<34} asking {:>9}  market {:>9}  gap {:>9} ({:+6.1} %)  {:?}{}",
+            "  line {:>8}  {:<34} asking {:>9}  market {:>9}  gap {:>9} ({:+6.1} %)  {}{}",
             g.line,
             g.description,
             money(g.asking_price),
             money(g.expected),
             signed_money(g.gap),
             g.gap_pct,
-            g.flag,
+            match g.flag {
+                model::gaps::GapFlag::Within => "within the band",
+                model::gaps::GapFlag::BelowMarket => "below the band",
+                model::gaps::GapFlag::AboveMarket => "above the band",
+            },
             g.exclusion
                 .as_deref()
                 .map(|e| format!(" [excluded: {e}]"))

@@ -77,8 +77,8 @@ pub fn today() -> NaiveDate {
 /// Why a file could not be imported at all.
 #[derive(Debug, thiserror::Error)]
 pub enum ImportError {
-    /// The file could not be read.
-    #[error("{file}: cannot read the file: {source}")]
+    /// The file could not be read (the operating system's reason follows in the error chain).
+    #[error("{file}: cannot read the file")]
     Io {
         /// File name.
         file: String,
