@@ -1,0 +1,85 @@
+//! What panes ask for, and the one function that changes the document.
+
+use std::path::PathBuf;
+
+use model::condition::Condition;
+use model::subject::Subject;
+
+use crate::document::{AppraisalDocument, MarketSource};
+
+/// A user intent emitted by a pane.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Command {
+    /// Replace the subject (edited in the subject pane, or a listing picked in a chart).
+    SetSubject(Subject),
+    /// Change the subject's odometer.
+    SetSubjectMiles(f64),
+    /// Change the subject's model year.
+    SetSubjectYear(i32),
+    /// Change the subject's variant.
+    SetSubjectVariant(Option<String>),
+    /// Change the subject's condition.
+    SetSubjectCondition(Condition),
+    /// Never use the listing on this file line as a comparable.
+    ExcludeComparable(u64),
+    /// Always use the listing on this file line as a comparable.
+    IncludeComparable(u64),
+    /// Drop any manual choice on this file line.
+    ClearComparableChoice(u64),
+    /// Set the interval level.
+    SetLevel(f64),
+    /// Set how many comparables to keep.
+    SetComparableCount(usize),
+    /// Open another market.
+    OpenMarket(PathBuf),
+}
+
+impl Command {
+    /// Whether the command comes from a drag or slider, where many arrive in a row and settle
+    /// into one undo step.
+    #[must_use]
+    pub fn is_continuous(&self) -> bool {
+        matches!(
+            self,
+            Command::SetSubjectMiles(_) | Command::SetLevel(_) | Command::SetComparableCount(_)
+        )
+    }
+}
+
+/// Applies `command` to `document`. Returns whether the document changed.
+pub fn apply(document: &mut AppraisalDocument, command: Command) -> bool {
+    let before = document.clone();
+    match command {
+        Command::SetSubject(subject) => document.subject = subject,
+        Command::SetSubjectMiles(miles) => {
+            document.subject.miles = miles.clamp(0.0, model::import::MAX_MILES)
+        }
+        Command::SetSubjectYear(year) => document.subject.model_year = year,
+        Command::SetSubjectVariant(variant) => document.subject.variant = variant,
+        Command::SetSubjectCondition(condition) => document.subject.condition = condition,
+        Command::ExcludeComparable(line) => {
+            document.choices.include.remove(&line);
+            document.choices.exclude.insert(line);
+        }
+        Command::IncludeComparable(line) => {
+            document.choices.exclude.remove(&line);
+            document.choices.include.insert(line);
+        }
+        Command::ClearComparableChoice(line) => {
+            document.choices.include.remove(&line);
+            document.choices.exclude.remove(&line);
+        }
+        Command::SetLevel(level) => document.level = level.clamp(0.5, 0.99),
+        Command::SetComparableCount(count) => document.rules.count = count.clamp(1, 30),
+        Command::OpenMarket(path) => {
+            document.market = MarketSource::File(path);
+            // Manual choices and overrides name lines of the old file.
+            document.choices = model::comparables::ComparableChoices::default();
+            document.overrides.clear();
+            if document.fit.as_of == Some(model::demo::demo_as_of()) {
+                document.fit.as_of = None;
+            }
+        }
+    }
+    *document != before
+}

@@ -1,0 +1,93 @@
+//! The appraisal document: everything that defines one appraisal and nothing that can be
+//! recomputed. Cloned into the undo history on every change.
+
+use std::path::PathBuf;
+
+use model::adjustment::UserAdjustment;
+use model::appraisal::FitSettings;
+use model::clean::Overrides;
+use model::comparables::{ComparableChoices, ComparableRules};
+use model::subject::Subject;
+use serde::{Deserialize, Serialize};
+
+/// Where the market comes from.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub enum MarketSource {
+    /// The built-in invented market with this many listings (seed 1).
+    Demo {
+        /// Listings.
+        rows: usize,
+    },
+    /// A CSV file.
+    File(PathBuf),
+}
+
+impl MarketSource {
+    /// Short description for the title bar and status line.
+    #[must_use]
+    pub fn describe(&self) -> String {
+        match self {
+            MarketSource::Demo { rows } => format!(
+                "demo market ({} invented listings)",
+                model::format::thousands(*rows as f64)
+            ),
+            MarketSource::File(path) => path.display().to_string(),
+        }
+    }
+}
+
+/// One appraisal.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct AppraisalDocument {
+    /// The market.
+    pub market: MarketSource,
+    /// The subject vehicle.
+    pub subject: Subject,
+    /// Fit and cleaning settings.
+    pub fit: FitSettings,
+    /// Manual overrides of the cleaning rules, by file line.
+    pub overrides: Overrides,
+    /// Comparable filters and ranking.
+    pub rules: ComparableRules,
+    /// Manual comparable includes and excludes.
+    pub choices: ComparableChoices,
+    /// The appraiser's own adjustment lines.
+    pub user_adjustments: Vec<UserAdjustment>,
+    /// Level of the intervals and the value band.
+    pub level: f64,
+}
+
+/// The subject shown when the workbench starts on the demo market.
+#[must_use]
+pub fn demo_subject() -> Subject {
+    Subject {
+        model_year: 2022,
+        make: "Quellmark".into(),
+        model: "Tessel".into(),
+        variant: Some("Plus".into()),
+        miles: 41_000.0,
+        condition: model::condition::Condition::Used,
+        options: None,
+        vin: None,
+    }
+}
+
+impl AppraisalDocument {
+    /// The demo appraisal the workbench opens with.
+    #[must_use]
+    pub fn demo(rows: usize) -> Self {
+        Self {
+            market: MarketSource::Demo { rows },
+            subject: demo_subject(),
+            fit: FitSettings {
+                as_of: Some(model::demo::demo_as_of()),
+                ..FitSettings::default()
+            },
+            overrides: Overrides::new(),
+            rules: ComparableRules::default(),
+            choices: ComparableChoices::default(),
+            user_adjustments: Vec::new(),
+            level: 0.8,
+        }
+    }
+}

@@ -1,0 +1,185 @@
+//! Background work: importing a market and fitting a segment run on a worker thread, so the
+//! window never freezes on a large file. Results come back over a channel.
+
+use std::sync::Arc;
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::mpsc::{Receiver, Sender, channel};
+
+use model::appraisal::{AppraisalError, FitSettings, MarketFit, find_segment, fit_market};
+use model::clean::Overrides;
+use model::import::{ImportError, ImportOptions, ImportReport, import_csv_bytes, import_csv_file};
+use model::market::Market;
+
+use crate::document::MarketSource;
+
+/// Work for the background thread.
+pub enum Job {
+    /// Import a market.
+    Load {
+        /// Which market.
+        source: MarketSource,
+        /// Generation number the result is tagged with.
+        generation: u64,
+    },
+    /// Clean and fit a segment.
+    Fit {
+        /// The market.
+        market: Arc<Market>,
+        /// Make to fit.
+        make: String,
+        /// Model to fit.
+        model: String,
+        /// Fit settings.
+        settings: FitSettings,
+        /// Overrides.
+        overrides: Overrides,
+        /// Generation number the result is tagged with.
+        generation: u64,
+    },
+}
+
+/// What came back.
+pub enum JobResult {
+    /// A market was imported (or failed to import).
+    Loaded {
+        /// Tag.
+        generation: u64,
+        /// Which market.
+        source: MarketSource,
+        /// The market and its report, or the reason it failed.
+        outcome: Result<(Arc<Market>, ImportReport), Arc<ImportError>>,
+    },
+    /// A fit finished (or failed).
+    Fitted {
+        /// Tag.
+        generation: u64,
+        /// The fit, or why it failed.
+        outcome: Result<Arc<MarketFit>, AppraisalError>,
+    },
+    /// The job was cancelled.
+    Cancelled,
+}
+
+/// A worker thread and its channels.
+pub struct Worker {
+    jobs: Sender<(Job, Arc<AtomicBool>)>,
+    results: Receiver<JobResult>,
+    cancel: Arc<AtomicBool>,
+    pending: usize,
+}
+
+impl Worker {
+    /// Starts the worker; `wake` is called when a result is ready (to request a repaint).
+    #[must_use]
+    pub fn start(wake: impl Fn() + Send + 'static) -> Self {
+        let (job_tx, job_rx) = channel::<(Job, Arc<AtomicBool>)>();
+        let (result_tx, result_rx) = channel();
+        std::thread::Builder::new()
+            .name("comptrail-jobs".into())
+            .spawn(move || {
+                for (job, cancel) in job_rx {
+                    let result = if cancel.load(Ordering::Relaxed) {
+                        JobResult::Cancelled
+                    } else {
+                        run(job)
+                    };
+                    let result = if cancel.load(Ordering::Relaxed) {
+                        JobResult::Cancelled
+                    } else {
+                        result
+                    };
+                    if result_tx.send(result).is_err() {
+                        break;
+                    }
+                    wake();
+                }
+            })
+            .ok();
+        Self {
+            jobs: job_tx,
+            results: result_rx,
+            cancel: Arc::new(AtomicBool::new(false)),
+            pending: 0,
+        }
+    }
+
+    /// Queues a job.
+    pub fn submit(&mut self, job: Job) {
+        if self.pending == 0 {
+            self.cancel = Arc::new(AtomicBool::new(false));
+        }
+        if self.jobs.send((job, Arc::clone(&self.cancel))).is_ok() {
+            self.pending += 1;
+        }
+    }
+
+    /// Asks running and queued jobs to stop; their results are dropped.
+    pub fn cancel(&self) {
+        self.cancel.store(true, Ordering::Relaxed);
+    }
+
+    /// Whether jobs are queued or running.
+    #[must_use]
+    pub fn is_busy(&self) -> bool {
+        self.pending > 0
+    }
+
+    /// A finished result, if any, without waiting.
+    pub fn poll(&mut self) -> Option<JobResult> {
+        let r = self.results.try_recv().ok();
+        if r.is_some() {
+            self.pending = self.pending.saturating_sub(1);
+        }
+        r
+    }
+
+    /// Waits for the next result (tests and headless use).
+    pub fn wait(&mut self) -> Option<JobResult> {
+        if self.pending == 0 {
+            return None;
+        }
+        let r = self.results.recv().ok();
+        self.pending = self.pending.saturating_sub(1);
+        r
+    }
+}
+
+fn run(job: Job) -> JobResult {
+    match job {
+        Job::Load { source, generation } => {
+            let options = ImportOptions {
+                latest_model_year: ImportOptions::default().latest_model_year.max(2027),
+                ..ImportOptions::default()
+            };
+            let outcome = match &source {
+                MarketSource::Demo { rows } => import_csv_bytes(
+                    "demo market",
+                    model::demo::demo_csv_bytes(*rows, 1),
+                    &options,
+                ),
+                MarketSource::File(path) => import_csv_file(path, &options),
+            };
+            JobResult::Loaded {
+                generation,
+                source,
+                outcome: outcome.map(|(m, r)| (Arc::new(m), r)).map_err(Arc::new),
+            }
+        }
+        Job::Fit {
+            market,
+            make,
+            model,
+            settings,
+            overrides,
+            generation,
+        } => {
+            let outcome = find_segment(&market, &make, &model)
+                .and_then(|segment| fit_market(&market, segment, &settings, &overrides))
+                .map(Arc::new);
+            JobResult::Fitted {
+                generation,
+                outcome,
+            }
+        }
+    }
+}

@@ -1,0 +1,127 @@
+//! The subject: edit model year, variant, mileage and condition, or use a listing picked in a
+//! chart.
+
+use eframe::egui::{self, Ui};
+use model::condition::Condition;
+use model::subject::Subject;
+
+use super::PaneContext;
+use crate::command::Command;
+
+/// Draws the pane.
+pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
+    let subject = cx.document.subject.clone();
+    ui.heading("Subject");
+    ui.label(format!("{} {}", subject.make, subject.model));
+    egui::Grid::new("subject_grid")
+        .num_columns(2)
+        .show(ui, |ui| {
+            ui.label("Model year");
+            let mut year = subject.model_year;
+            let oldest = cx.fit.model.as_of_year() - 30;
+            if ui
+                .add(egui::DragValue::new(&mut year).range(oldest..=cx.fit.model.as_of_year() + 1))
+                .on_hover_text("Subject model year")
+                .changed()
+            {
+                cx.commands.push(Command::SetSubjectYear(year));
+            }
+            ui.end_row();
+
+            let label = ui.label("Variant");
+            let current = subject
+                .variant
+                .clone()
+                .unwrap_or_else(|| "(no variant)".into());
+            let combo = egui::ComboBox::from_id_salt("subject_variant")
+                .selected_text(current.clone())
+                .show_ui(ui, |ui| {
+                    for index in 0..cx.fit.model.design().variants.len() {
+                        let name = cx.variant_label(index);
+                        if ui.selectable_label(name == current, name.clone()).clicked()
+                            && name != current
+                        {
+                            let value = (name != "(no variant)").then_some(name);
+                            cx.commands.push(Command::SetSubjectVariant(value));
+                        }
+                    }
+                });
+            combo.response.labelled_by(label.id);
+            ui.end_row();
+
+            ui.label("Miles");
+            let mut miles = subject.miles;
+            if ui
+                .add(
+                    egui::DragValue::new(&mut miles)
+                        .range(0.0..=model::import::MAX_MILES)
+                        .speed(100.0)
+                        .max_decimals(0),
+                )
+                .on_hover_text("Subject miles")
+                .changed()
+            {
+                cx.commands.push(Command::SetSubjectMiles(miles));
+            }
+            ui.end_row();
+
+            ui.label("Condition");
+            ui.horizontal(|ui| {
+                for c in Condition::ALL {
+                    if ui
+                        .selectable_label(subject.condition == c, c.as_str())
+                        .clicked()
+                        && subject.condition != c
+                    {
+                        cx.commands.push(Command::SetSubjectCondition(c));
+                    }
+                }
+            });
+            ui.end_row();
+        });
+    ui.separator();
+    selected_listing_ui(ui, cx);
+}
+
+/// The listing clicked in a chart, with what can be done with it.
+fn selected_listing_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
+    let Some(row) = cx.selection.selected else {
+        ui.weak("Click a listing in a chart to select it.");
+        return;
+    };
+    let listing = cx.market.listing(row);
+    ui.label(format!(
+        "Selected: line {}, {} {} {}, {} mi, {}, {}",
+        listing.line,
+        listing.model_year,
+        listing.model,
+        listing.variant.as_deref().unwrap_or(""),
+        model::format::thousands(listing.miles),
+        listing.condition,
+        model::format::money(listing.asking_price)
+    ));
+    if let Some(e) = cx.fit.cleaning.exclusion_of(row) {
+        ui.label(format!("Cleaning: {e}"));
+    }
+    ui.horizontal(|ui| {
+        if ui.button("Use as subject").clicked() {
+            cx.commands
+                .push(Command::SetSubject(Subject::from_listing(&listing)));
+        }
+        if cx.is_comparable(row) {
+            if ui.button("Remove from comparables").clicked() {
+                cx.commands.push(Command::ExcludeComparable(listing.line));
+            }
+        } else if ui.button("Add as comparable").clicked() {
+            cx.commands.push(Command::IncludeComparable(listing.line));
+        }
+        if cx.document.choices.include.contains(&listing.line)
+            || cx.document.choices.exclude.contains(&listing.line)
+        {
+            if ui.button("Clear hand choice").clicked() {
+                cx.commands
+                    .push(Command::ClearComparableChoice(listing.line));
+            }
+        }
+    });
+}

@@ -1,0 +1,71 @@
+//! The value: indicated value and band, the model's own estimate, large and readable.
+
+use eframe::egui::{self, RichText, Ui};
+use model::format::money;
+use model::reconcile::BandSource;
+
+use super::PaneContext;
+use crate::command::Command;
+
+/// Accessible label of the indicated value, used by tests and screen readers.
+pub const INDICATED_VALUE_LABEL: &str = "Indicated value";
+
+/// Draws the pane.
+pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
+    let Some(a) = cx.appraisal else {
+        return;
+    };
+    let r = &a.reconciliation;
+    let level = 100.0 * r.value_band.level;
+    ui.horizontal(|ui| {
+        ui.label(RichText::new(INDICATED_VALUE_LABEL).size(16.0));
+        ui.label(RichText::new(money(r.indicated_value)).size(30.0).strong());
+    });
+    ui.label(
+        RichText::new(format!(
+            "Value band ({level:.0} %): {} to {}",
+            money(r.value_band.lower),
+            money(r.value_band.upper)
+        ))
+        .size(18.0),
+    );
+    ui.label(match r.band_source {
+        BandSource::Comparables => "Band width set by the spread of the adjusted comparables.",
+        BandSource::Model => "Band width set by the model's prediction interval.",
+        BandSource::ModelOnly => {
+            "No comparables passed the filters: the model's estimate stands alone."
+        }
+    });
+    let m = &a.model_estimate;
+    ui.label(format!(
+        "Model's own estimate {} (mean {}); {level:.0} % prediction interval {} to {}",
+        money(m.median),
+        money(m.mean),
+        money(m.prediction_interval.lower),
+        money(m.prediction_interval.upper)
+    ));
+    ui.label(format!(
+        "Comparables vs model {:+.1} %; effective number of comparables {:.1}; fit: n = {}, residual SD {:.3}, R² {:.3}",
+        r.model_gap_pct,
+        r.effective_count,
+        cx.fit.model.rows(),
+        cx.fit.model.residual_sd(),
+        cx.fit.model.r_squared()
+    ));
+    ui.horizontal(|ui| {
+        let mut level = cx.document.level;
+        if ui
+            .add(egui::Slider::new(&mut level, 0.5..=0.99).text("level"))
+            .changed()
+        {
+            cx.commands.push(Command::SetLevel(level));
+        }
+        let mut count = cx.document.rules.count;
+        if ui
+            .add(egui::Slider::new(&mut count, 1..=20).text("comparables"))
+            .changed()
+        {
+            cx.commands.push(Command::SetComparableCount(count));
+        }
+    });
+}

@@ -1,0 +1,608 @@
+//! The workbench: owns the document, preferences and runtime, lays out the panes, applies
+//! their commands in one place, and keeps fits off the UI thread.
+
+use std::path::PathBuf;
+use std::sync::Arc;
+
+use eframe::egui::util::undoer::{Settings as UndoSettings, Undoer};
+use eframe::egui::{self, Key, RichText, Ui};
+use model::appraisal::{AppraisalRequest, appraise};
+
+use crate::command::{Command, apply};
+use crate::document::{AppraisalDocument, MarketSource};
+use crate::jobs::{Job, JobResult, Worker};
+use crate::panes::{self, PaneContext};
+use crate::preferences::Preferences;
+use crate::runtime::{FitKey, ImportFailure, Runtime};
+use crate::selection::Selection;
+
+/// Listings in the demo market the workbench opens with.
+pub const DEMO_ROWS: usize = 20_000;
+
+/// The desktop workbench.
+pub struct Workbench {
+    document: AppraisalDocument,
+    undoer: Undoer<AppraisalDocument>,
+    preferences: Preferences,
+    runtime: Runtime,
+    worker: Worker,
+    selection: Selection,
+    /// Typed path, for machines without a native file dialog.
+    path_input: String,
+    show_help: bool,
+    /// The document and fit the current appraisal was computed for.
+    appraised_for: Option<(AppraisalDocument, usize)>,
+    /// Seconds since start, for the undo settle rule.
+    clock: f64,
+}
+
+impl Workbench {
+    /// A workbench on the demo market; `wake` is called from the job thread when work is done.
+    #[must_use]
+    pub fn new(preferences: Preferences, wake: impl Fn() + Send + 'static) -> Self {
+        Self::with_document(AppraisalDocument::demo(DEMO_ROWS), preferences, wake)
+    }
+
+    /// A workbench on `document`.
+    #[must_use]
+    pub fn with_document(
+        document: AppraisalDocument,
+        preferences: Preferences,
+        wake: impl Fn() + Send + 'static,
+    ) -> Self {
+        let mut worker = Worker::start(wake);
+        let mut runtime = Runtime::default();
+        runtime.loading = Some(document.market.clone());
+        worker.submit(Job::Load {
+            source: document.market.clone(),
+            generation: 1,
+        });
+        let mut undoer = Undoer::with_settings(UndoSettings {
+            max_undos: 200,
+            stable_time: 0.4,
+            auto_save_interval: 5.0,
+        });
+        undoer.add_undo(&document);
+        Self {
+            document,
+            // One drag of a slider settles into one undo step once it has been still for 0.4 s.
+            undoer,
+            preferences,
+            runtime,
+            worker,
+            selection: Selection::default(),
+            path_input: String::new(),
+            show_help: false,
+            appraised_for: None,
+            clock: 0.0,
+        }
+    }
+
+    /// The document.
+    #[must_use]
+    pub fn document(&self) -> &AppraisalDocument {
+        &self.document
+    }
+
+    /// The runtime state.
+    #[must_use]
+    pub fn runtime(&self) -> &Runtime {
+        &self.runtime
+    }
+
+    /// The preferences.
+    #[must_use]
+    pub fn preferences(&self) -> &Preferences {
+        &self.preferences
+    }
+
+    /// The linked selection.
+    #[must_use]
+    pub fn selection(&self) -> Selection {
+        self.selection
+    }
+
+    /// Selects a market row, as clicking it in a chart does.
+    pub fn select(&mut self, row: Option<usize>) {
+        self.selection.selected = row;
+    }
+
+    /// Whether background work is queued or running.
+    #[must_use]
+    pub fn is_busy(&self) -> bool {
+        self.worker.is_busy()
+    }
+
+    /// Blocks until every queued job has finished and the appraisal is current (tests and
+    /// headless runs).
+    pub fn wait_for_jobs(&mut self) {
+        loop {
+            while let Some(result) = self.worker.wait() {
+                self.receive(result);
+            }
+            self.request_fit_if_stale();
+            if !self.worker.is_busy() {
+                break;
+            }
+        }
+        self.refresh_appraisal();
+    }
+
+    /// Applies a command, recording the change for undo: a discrete change is one undo step
+    /// at once; a continuous one (a drag) becomes one step when it settles.
+    pub fn apply(&mut self, command: Command) {
+        if let Command::OpenMarket(path) = &command {
+            self.preferences.remember(path.clone());
+        }
+        let continuous = command.is_continuous();
+        if !continuous {
+            self.undoer.add_undo(&self.document);
+        }
+        if apply(&mut self.document, command) {
+            if continuous {
+                self.undoer.feed_state(self.clock, &self.document);
+            } else {
+                self.undoer.add_undo(&self.document);
+            }
+        }
+    }
+
+    /// Steps back one document change.
+    pub fn undo(&mut self) {
+        if let Some(previous) = self.undoer.undo(&self.document) {
+            self.document = previous.clone();
+        }
+    }
+
+    /// Steps forward one undone change.
+    pub fn redo(&mut self) {
+        if let Some(next) = self.undoer.redo(&self.document) {
+            self.document = next.clone();
+        }
+    }
+
+    fn receive(&mut self, result: JobResult) {
+        match result {
+            JobResult::Loaded {
+                source, outcome, ..
+            } => {
+                self.runtime.loading = None;
+                match outcome {
+                    Ok((market, report)) => {
+                        self.runtime.market = Some(market);
+                        self.runtime.market_source = Some(source);
+                        self.runtime.import_report = Some(report);
+                        self.runtime.market_generation += 1;
+                        self.runtime.import_failure = None;
+                        self.selection = Selection::default();
+                    }
+                    Err(error) => {
+                        // The previous market and appraisal stay; the document goes back to
+                        // the market that is actually loaded.
+                        self.runtime.import_failure = Some(ImportFailure { source, error });
+                        if let Some(loaded) = self.runtime.market_source.clone() {
+                            self.document.market = loaded;
+                        }
+                    }
+                }
+            }
+            JobResult::Fitted { outcome, .. } => {
+                let key = self.runtime.fitting.take();
+                match outcome {
+                    Ok(fit) => {
+                        self.runtime.fit = Some(fit);
+                        self.runtime.fit_key = key;
+                        self.runtime.fit_error = None;
+                    }
+                    Err(e) => {
+                        self.runtime.fit_error = Some(e);
+                        self.runtime.fit_key = key;
+                    }
+                }
+            }
+            JobResult::Cancelled => {
+                self.runtime.loading = None;
+                self.runtime.fitting = None;
+            }
+        }
+    }
+
+    /// Queues an import when the document names another market, and a fit when the segment,
+    /// settings or overrides changed.
+    fn request_fit_if_stale(&mut self) {
+        if self.runtime.loading.is_none()
+            && self.runtime.market_source.as_ref() != Some(&self.document.market)
+        {
+            let is_failed_retry = self
+                .runtime
+                .import_failure
+                .as_ref()
+                .is_some_and(|f| f.source == self.document.market);
+            if !is_failed_retry {
+                self.runtime.loading = Some(self.document.market.clone());
+                self.worker.submit(Job::Load {
+                    source: self.document.market.clone(),
+                    generation: self.runtime.market_generation + 1,
+                });
+                return;
+            }
+        }
+        let Some(market) = self.runtime.market.clone() else {
+            return;
+        };
+        let key = FitKey {
+            market_generation: self.runtime.market_generation,
+            make: self.document.subject.make.clone(),
+            model: self.document.subject.model.clone(),
+            settings: self.document.fit,
+            overrides: self.document.overrides.clone(),
+        };
+        if self.runtime.fit_key.as_ref() == Some(&key)
+            || self.runtime.fitting.as_ref() == Some(&key)
+        {
+            return;
+        }
+        if self.runtime.fitting.is_some() {
+            return; // one fit at a time; the next frame asks again
+        }
+        self.runtime.fitting = Some(key.clone());
+        self.worker.submit(Job::Fit {
+            market,
+            make: key.make,
+            model: key.model,
+            settings: key.settings,
+            overrides: key.overrides,
+            generation: key.market_generation,
+        });
+    }
+
+    /// Re-appraises when the document or the fit changed (milliseconds even at a million
+    /// listings, so it runs on the UI thread).
+    fn refresh_appraisal(&mut self) {
+        let (Some(market), Some(fit)) = (&self.runtime.market, &self.runtime.fit) else {
+            return;
+        };
+        let fit_id = Arc::as_ptr(fit) as usize;
+        if self
+            .appraised_for
+            .as_ref()
+            .is_some_and(|(d, f)| d == &self.document && *f == fit_id)
+        {
+            return;
+        }
+        let request = AppraisalRequest {
+            subject: self.document.subject.clone(),
+            rules: self.document.rules,
+            choices: self.document.choices.clone(),
+            user_adjustments: self.document.user_adjustments.clone(),
+            level: self.document.level,
+        };
+        let same_segment = market
+            .segment_name(fit.segment)
+            .eq_ignore_ascii_case(&format!(
+                "{} {}",
+                request.subject.make, request.subject.model
+            ));
+        if same_segment {
+            match appraise(market, fit, &request) {
+                Ok(a) => {
+                    self.runtime.appraisal = Some(a);
+                    self.runtime.appraisal_error = None;
+                }
+                Err(e) => {
+                    self.runtime.appraisal = None;
+                    self.runtime.appraisal_error = Some(e);
+                }
+            }
+        }
+        self.appraised_for = Some((self.document.clone(), fit_id));
+    }
+
+    fn shortcuts(&mut self, ui: &Ui) {
+        let (undo, redo, open, help) = ui.input(|i| {
+            let command = i.modifiers.command;
+            (
+                command && !i.modifiers.shift && i.key_pressed(Key::Z),
+                command && (i.key_pressed(Key::Y) || (i.modifiers.shift && i.key_pressed(Key::Z))),
+                command && i.key_pressed(Key::O),
+                i.key_pressed(Key::F1),
+            )
+        });
+        if undo {
+            self.undo();
+        }
+        if redo {
+            self.redo();
+        }
+        if open {
+            self.open_dialog();
+        }
+        if help {
+            self.show_help = !self.show_help;
+        }
+    }
+
+    fn open_dialog(&mut self) {
+        // Without a desktop portal the dialog returns nothing at once; the typed path remains.
+        if let Some(path) = rfd::FileDialog::new()
+            .add_filter("market CSV", &["csv"])
+            .pick_file()
+        {
+            self.apply(Command::OpenMarket(path));
+        }
+    }
+
+    /// Draws the whole workbench.
+    pub fn ui(&mut self, ui: &mut Ui) {
+        self.clock = ui.input(|i| i.time);
+        while let Some(result) = self.worker.poll() {
+            self.receive(result);
+        }
+        self.request_fit_if_stale();
+        self.refresh_appraisal();
+        self.undoer.feed_state(self.clock, &self.document);
+        self.shortcuts(ui);
+        let dropped: Vec<PathBuf> = ui.input(|i| {
+            i.raw
+                .dropped_files
+                .iter()
+                .map(|f| f.path().to_path_buf())
+                .filter(|p| !p.as_os_str().is_empty())
+                .collect()
+        });
+        if let Some(path) = dropped.into_iter().next() {
+            self.apply(Command::OpenMarket(path));
+        }
+        ui.ctx().set_theme(if self.preferences.dark {
+            egui::Theme::Dark
+        } else {
+            egui::Theme::Light
+        });
+
+        egui::Panel::top("toolbar").show(ui, |ui| self.toolbar_ui(ui));
+        egui::Panel::bottom("cautions").show(ui, |ui| {
+            ui.small(model::cautions::CAUTIONS[..3].join(" "));
+        });
+        let mut commands = Vec::new();
+        let (Some(market), Some(fit)) = (self.runtime.market.clone(), self.runtime.fit.clone())
+        else {
+            egui::CentralPanel::default().show(ui, |ui| self.waiting_ui(ui));
+            self.failure_window(ui);
+            return;
+        };
+        let appraisal = self.runtime.appraisal.clone();
+        let mut cx = PaneContext {
+            document: &self.document,
+            market: &market,
+            fit: &fit,
+            appraisal: appraisal.as_ref(),
+            selection: &mut self.selection,
+            commands: &mut commands,
+        };
+        cx.selection.hovered = None;
+        egui::Panel::left("subject_and_value")
+            .default_size(380.0)
+            .show(ui, |ui| {
+                egui::ScrollArea::vertical().show(ui, |ui| {
+                    panes::value::ui(ui, &mut cx);
+                    if let Some(e) = &self.runtime.appraisal_error {
+                        ui.colored_label(ui.visuals().error_fg_color, e.to_string());
+                    }
+                    if let Some(e) = &self.runtime.fit_error {
+                        ui.colored_label(
+                            ui.visuals().error_fg_color,
+                            format!("The fit failed: {e}"),
+                        );
+                    }
+                    ui.separator();
+                    panes::subject::ui(ui, &mut cx);
+                });
+            });
+        if self.preferences.show_comparables {
+            egui::Panel::bottom("comparables")
+                .resizable(true)
+                .default_size(260.0)
+                .show(ui, |ui| {
+                    ui.heading("Comparables");
+                    panes::comparables::ui(ui, &mut cx);
+                });
+        }
+        egui::CentralPanel::default().show(ui, |ui| {
+            let half = ui.available_width() / 2.0 - 8.0;
+            ui.horizontal_top(|ui| {
+                ui.vertical(|ui| {
+                    ui.set_width(half);
+                    ui.strong("Price by model year");
+                    panes::year_chart::ui(ui, &mut cx);
+                });
+                ui.vertical(|ui| {
+                    ui.set_width(half);
+                    ui.strong("Value by mileage");
+                    panes::mileage_chart::ui(ui, &mut cx);
+                });
+            });
+        });
+        for command in commands {
+            self.apply(command);
+        }
+        self.failure_window(ui);
+        self.help_window(ui);
+    }
+
+    fn toolbar_ui(&mut self, ui: &mut Ui) {
+        ui.horizontal_wrapped(|ui| {
+            ui.strong("comptrail");
+            if ui.button("Open market…").on_hover_text("Ctrl+O").clicked() {
+                self.open_dialog();
+            }
+            ui.label("or path:");
+            let edit = ui.add(
+                egui::TextEdit::singleline(&mut self.path_input)
+                    .hint_text("/path/to/market.csv")
+                    .desired_width(220.0),
+            );
+            let submit = edit.lost_focus() && ui.input(|i| i.key_pressed(Key::Enter));
+            if (ui.button("Load").clicked() || submit) && !self.path_input.trim().is_empty() {
+                let path = PathBuf::from(self.path_input.trim());
+                self.apply(Command::OpenMarket(path));
+            }
+            let recent = self.preferences.recent_files.clone();
+            if !recent.is_empty() {
+                egui::ComboBox::from_id_salt("recent_files")
+                    .selected_text("Recent")
+                    .show_ui(ui, |ui| {
+                        for path in recent {
+                            if ui
+                                .selectable_label(false, path.display().to_string())
+                                .clicked()
+                            {
+                                self.apply(Command::OpenMarket(path));
+                            }
+                        }
+                    });
+            }
+            ui.separator();
+            if ui
+                .add_enabled(
+                    self.undoer.has_undo(&self.document),
+                    egui::Button::new("Undo"),
+                )
+                .on_hover_text("Ctrl+Z")
+                .clicked()
+            {
+                self.undo();
+            }
+            if ui
+                .add_enabled(
+                    self.undoer.has_redo(&self.document),
+                    egui::Button::new("Redo"),
+                )
+                .on_hover_text("Ctrl+Shift+Z")
+                .clicked()
+            {
+                self.redo();
+            }
+            ui.separator();
+            ui.checkbox(&mut self.preferences.dark, "Dark");
+            ui.checkbox(&mut self.preferences.show_comparables, "Comparables");
+            if ui.button("Help").on_hover_text("F1").clicked() {
+                self.show_help = !self.show_help;
+            }
+            ui.separator();
+            ui.label(self.status_text());
+            if self.worker.is_busy() {
+                ui.spinner();
+                if ui.button("Cancel").clicked() {
+                    self.worker.cancel();
+                }
+            }
+        });
+    }
+
+    fn status_text(&self) -> String {
+        if let Some(source) = &self.runtime.loading {
+            return format!("Importing {}…", source.describe());
+        }
+        if self.runtime.fitting.is_some() {
+            return "Fitting the market…".to_owned();
+        }
+        match (&self.runtime.market_source, &self.runtime.import_report) {
+            (Some(source), Some(report)) => format!(
+                "{}: {} listings used of {} read, {} rejected",
+                source.describe(),
+                model::format::thousands(report.rows_used as f64),
+                model::format::thousands(report.rows_read as f64),
+                model::format::thousands(report.rejected.len() as f64)
+            ),
+            _ => String::new(),
+        }
+    }
+
+    fn waiting_ui(&self, ui: &mut Ui) {
+        ui.vertical_centered(|ui| {
+            ui.add_space(40.0);
+            if let Some(e) = &self.runtime.fit_error {
+                ui.colored_label(
+                    ui.visuals().error_fg_color,
+                    format!("The market could not be fitted for this subject: {e}"),
+                );
+            } else {
+                ui.spinner();
+                ui.label(self.status_text());
+            }
+        });
+    }
+
+    fn failure_window(&mut self, ui: &Ui) {
+        let Some(failure) = self.runtime.import_failure.clone() else {
+            return;
+        };
+        let mut open = true;
+        egui::Window::new("Import report")
+            .open(&mut open)
+            .show(ui.ctx(), |ui| {
+                ui.label(
+                    RichText::new(format!(
+                        "{} could not be imported.",
+                        failure.source.describe()
+                    ))
+                    .strong(),
+                );
+                ui.label(failure.error.to_string());
+                if let model::import::ImportError::NoUsableRows { report, .. } =
+                    failure.error.as_ref()
+                {
+                    egui::ScrollArea::vertical()
+                        .max_height(240.0)
+                        .show(ui, |ui| {
+                            for r in report.rejected.iter().take(200) {
+                                ui.label(format!("line {}: {}", r.line, r.reason));
+                            }
+                        });
+                }
+                ui.label("The previous market and appraisal are unchanged.");
+            });
+        if !open {
+            self.runtime.import_failure = None;
+        }
+    }
+
+    fn help_window(&mut self, ui: &Ui) {
+        egui::Window::new("Keyboard shortcuts")
+            .open(&mut self.show_help)
+            .show(ui.ctx(), |ui| {
+                egui::Grid::new("shortcuts").show(ui, |ui| {
+                    for (keys, what) in [
+                        ("Ctrl+O", "open a market file"),
+                        ("Ctrl+Z", "undo"),
+                        ("Ctrl+Shift+Z or Ctrl+Y", "redo"),
+                        ("F1", "show or hide this help"),
+                        ("double-click a chart", "reset its view"),
+                        ("drag / scroll in a chart", "pan / zoom"),
+                    ] {
+                        ui.strong(keys);
+                        ui.label(what);
+                        ui.end_row();
+                    }
+                });
+            });
+    }
+}
+
+impl eframe::App for Workbench {
+    fn ui(&mut self, ui: &mut Ui, _frame: &mut eframe::Frame) {
+        Workbench::ui(self, ui);
+    }
+
+    fn save(&mut self, storage: &mut dyn eframe::Storage) {
+        eframe::set_value(storage, crate::preferences::KEY, &self.preferences);
+    }
+}
+
+impl MarketSource {
+    /// Whether this is the built-in demo market.
+    #[must_use]
+    pub fn is_demo(&self) -> bool {
+        matches!(self, MarketSource::Demo { .. })
+    }
+}

@@ -1,0 +1,184 @@
+//! The workbench driven headlessly: state-level checks through the real `Workbench`, and the
+//! whole UI through egui_kittest by its accessible labels. No display or GPU needed.
+
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
+use app::Workbench;
+use app::command::Command;
+use app::document::{AppraisalDocument, MarketSource};
+use app::preferences::Preferences;
+use egui_kittest::Harness;
+use egui_kittest::kittest::Queryable;
+
+const SMALL_DEMO: usize = 6_000;
+
+fn workbench() -> Workbench {
+    let mut wb = Workbench::with_document(
+        AppraisalDocument::demo(SMALL_DEMO),
+        Preferences::default(),
+        || {},
+    );
+    wb.wait_for_jobs();
+    wb
+}
+
+fn indicated(wb: &Workbench) -> f64 {
+    wb.runtime()
+        .appraisal
+        .as_ref()
+        .expect("appraised")
+        .reconciliation
+        .indicated_value
+}
+
+#[test]
+fn starts_on_the_demo_with_a_finished_appraisal() {
+    let wb = workbench();
+    assert!(wb.runtime().market.is_some());
+    let a = wb.runtime().appraisal.as_ref().expect("appraised");
+    assert_eq!(a.comparables.len(), 8);
+    assert!(a.reconciliation.value_band.lower < a.reconciliation.indicated_value);
+}
+
+#[test]
+fn picking_a_listing_as_subject_updates_the_comparables_and_value() {
+    let mut wb = workbench();
+    let before = wb.runtime().appraisal.clone().unwrap();
+    let market = wb.runtime().market.clone().unwrap();
+    let fit = wb.runtime().fit.clone().unwrap();
+    // A 2019 Summit: a different year and variant from the demo subject.
+    let row = fit
+        .included_rows
+        .iter()
+        .copied()
+        .find(|&r| market.model_year[r] == 2019 && market.variant_name(r) == "Summit")
+        .unwrap();
+    wb.apply(Command::SetSubject(model::subject::Subject::from_listing(
+        &market.listing(row),
+    )));
+    wb.wait_for_jobs();
+    let after = wb.runtime().appraisal.clone().unwrap();
+    assert_ne!(
+        before.reconciliation.indicated_value,
+        after.reconciliation.indicated_value
+    );
+    assert!(
+        after
+            .comparables
+            .iter()
+            .all(|c| (c.listing.model_year - 2019).abs() <= 1)
+    );
+}
+
+#[test]
+fn excluding_a_comparable_changes_the_value_and_undo_restores_it() {
+    let mut wb = workbench();
+    let before = indicated(&wb);
+    let first = wb.runtime().appraisal.as_ref().unwrap().comparables[0]
+        .listing
+        .line;
+    wb.apply(Command::ExcludeComparable(first));
+    wb.wait_for_jobs();
+    assert_ne!(indicated(&wb), before);
+    wb.undo();
+    wb.wait_for_jobs();
+    assert_eq!(indicated(&wb), before);
+    wb.redo();
+    wb.wait_for_jobs();
+    assert_ne!(indicated(&wb), before);
+}
+
+#[test]
+fn a_bad_file_shows_the_import_report_and_keeps_the_market() {
+    let dir = std::env::temp_dir().join(format!("comptrail-wb-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let bad = dir.join("bad.csv");
+    std::fs::write(
+        &bad,
+        "model_year,make,model,asking_price,miles\n2021,Q,T,-5,100\n",
+    )
+    .unwrap();
+    let mut wb = workbench();
+    let before = indicated(&wb);
+    wb.apply(Command::OpenMarket(bad.clone()));
+    wb.wait_for_jobs();
+    let failure = wb.runtime().import_failure.as_ref().expect("failure shown");
+    assert!(
+        failure.error.to_string().contains("line 2"),
+        "{}",
+        failure.error
+    );
+    assert!(
+        matches!(wb.document().market, MarketSource::Demo { .. }),
+        "document points back at the loaded market"
+    );
+    assert_eq!(indicated(&wb), before);
+    std::fs::remove_dir_all(&dir).ok();
+}
+
+#[test]
+fn selection_in_one_place_reaches_the_panes() {
+    let mut wb = workbench();
+    let row = wb.runtime().appraisal.as_ref().unwrap().comparables[2]
+        .listing
+        .row;
+    wb.select(Some(row));
+    assert!(wb.selection().is_highlighted(row));
+    // Every pane reads the same selection; the comparables table marks it, the charts ring it.
+}
+
+fn harness() -> Harness<'static, Workbench> {
+    let wb = workbench();
+    let mut harness = Harness::builder()
+        .with_size(egui::Vec2::new(1500.0, 950.0))
+        .build_ui_state(|ui, wb: &mut Workbench| wb.ui(ui), wb);
+    harness.run_steps(3);
+    harness
+}
+
+use eframe::egui;
+
+#[test]
+fn the_real_ui_shows_the_value_and_responds_to_its_controls() {
+    let mut harness = harness();
+    harness.get_by_label(app::panes::value::INDICATED_VALUE_LABEL);
+    let value = harness
+        .state()
+        .runtime()
+        .appraisal
+        .as_ref()
+        .unwrap()
+        .reconciliation
+        .indicated_value;
+    harness.get_by_label(&model::format::money(value));
+    // Exclude the first comparable through its button, then undo through the toolbar.
+    let first = harness
+        .state()
+        .runtime()
+        .appraisal
+        .as_ref()
+        .unwrap()
+        .comparables[0]
+        .listing
+        .line;
+    harness.get_all_by_label("Exclude").next().unwrap().click();
+    harness.run_steps(3);
+    assert!(harness.state().document().choices.exclude.len() == 1);
+    let after = harness
+        .state()
+        .runtime()
+        .appraisal
+        .as_ref()
+        .unwrap()
+        .reconciliation
+        .indicated_value;
+    assert_ne!(after, value);
+    assert!(
+        harness.state().document().choices.exclude.contains(&first)
+            || harness.state().document().choices.exclude.len() == 1
+    );
+    harness.get_by_label("Undo").click();
+    harness.run_steps(3);
+    assert!(harness.state().document().choices.exclude.is_empty());
+    harness.get_by_label(&model::format::money(value));
+}
