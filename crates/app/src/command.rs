@@ -52,7 +52,7 @@ pub fn apply(document: &mut AppraisalDocument, command: Command) -> bool {
     match command {
         Command::SetSubject(subject) => document.subject = subject,
         Command::SetSubjectMiles(miles) => {
-            document.subject.miles = miles.clamp(0.0, model::import::MAX_MILES)
+            document.subject.miles = miles.clamp(0.0, model::import::MAX_MILES);
         }
         Command::SetSubjectYear(year) => document.subject.model_year = year,
         Command::SetSubjectVariant(variant) => document.subject.variant = variant,

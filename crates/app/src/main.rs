@@ -21,7 +21,7 @@ fn main() -> eframe::Result {
                 .unwrap_or_default();
             let ctx = cc.egui_ctx.clone();
             Ok(Box::new(Workbench::new(preferences, move || {
-                ctx.request_repaint()
+                ctx.request_repaint();
             })))
         }),
     )

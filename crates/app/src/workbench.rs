@@ -51,8 +51,10 @@ impl Workbench {
         wake: impl Fn() + Send + 'static,
     ) -> Self {
         let mut worker = Worker::start(wake);
-        let mut runtime = Runtime::default();
-        runtime.loading = Some(document.market.clone());
+        let runtime = Runtime {
+            loading: Some(document.market.clone()),
+            ..Runtime::default()
+        };
         worker.submit(Job::Load {
             source: document.market.clone(),
             generation: 1,

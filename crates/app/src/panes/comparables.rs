@@ -45,7 +45,7 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     match sort {
         SortBy::Similarity => {}
         SortBy::AdjustedPrice => {
-            order.sort_by(|a, b| a.adjusted_price.total_cmp(&b.adjusted_price))
+            order.sort_by(|a, b| a.adjusted_price.total_cmp(&b.adjusted_price));
         }
         SortBy::Gross => order.sort_by(|a, b| a.gross_pct.total_cmp(&b.gross_pct)),
         SortBy::Weight => order.sort_by(|a, b| b.weight.total_cmp(&a.weight)),

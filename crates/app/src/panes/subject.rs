@@ -115,13 +115,11 @@ fn selected_listing_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
         } else if ui.button("Add as comparable").clicked() {
             cx.commands.push(Command::IncludeComparable(listing.line));
         }
-        if cx.document.choices.include.contains(&listing.line)
-            || cx.document.choices.exclude.contains(&listing.line)
-        {
-            if ui.button("Clear hand choice").clicked() {
-                cx.commands
-                    .push(Command::ClearComparableChoice(listing.line));
-            }
+        let chosen_by_hand = cx.document.choices.include.contains(&listing.line)
+            || cx.document.choices.exclude.contains(&listing.line);
+        if chosen_by_hand && ui.button("Clear hand choice").clicked() {
+            cx.commands
+                .push(Command::ClearComparableChoice(listing.line));
         }
     });
 }
