@@ -117,6 +117,23 @@ pub struct Listing {
     pub options: Option<String>,
 }
 
+impl Listing {
+    /// One line for tooltips and tables: "line 812: 2021 Tessel Plus, 41,000 mi, used, $30,400".
+    #[must_use]
+    pub fn describe(&self) -> String {
+        format!(
+            "line {}: {} {} {}, {} mi, {}, {}",
+            self.line,
+            self.model_year,
+            self.model,
+            self.variant.as_deref().unwrap_or("(no variant)"),
+            crate::format::thousands(self.miles),
+            self.condition,
+            crate::format::money(self.asking_price)
+        )
+    }
+}
+
 impl Market {
     /// Number of listings.
     #[must_use]

@@ -73,7 +73,7 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
                         ("year", None),
                         ("variant", None),
                         ("condition", None),
-                        ("yours", None),
+                        ("your lines", None),
                         ("net %", None),
                         ("gross %", Some(SortBy::Gross)),
                         ("adjusted", Some(SortBy::AdjustedPrice)),

@@ -133,13 +133,20 @@ fn draw(plot: &mut PlotUi<'_>, cx: &PaneContext<'_>, data: &MileageChartData) {
         // Newer model years draw larger bubbles.
         let radius = 1.5 + 1.5 * (year - oldest).max(0) as f32;
         plot.points(
-            Points::new(cx.variant_label(variant), PlotPoints::from(points.clone()))
-                .radius(radius)
-                .color(if included {
-                    colour.gamma_multiply(0.7)
+            Points::new(
+                if included {
+                    cx.variant_label(variant)
                 } else {
-                    faded(colour)
-                }),
+                    "excluded (hover for why)".to_owned()
+                },
+                PlotPoints::from(points.clone()),
+            )
+            .radius(radius)
+            .color(if included {
+                colour.gamma_multiply(0.7)
+            } else {
+                faded(colour)
+            }),
         );
     }
     let level = 100.0 * cx.document.level;

@@ -90,16 +90,7 @@ fn selected_listing_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
         return;
     };
     let listing = cx.market.listing(row);
-    ui.label(format!(
-        "Selected: line {}, {} {} {}, {} mi, {}, {}",
-        listing.line,
-        listing.model_year,
-        listing.model,
-        listing.variant.as_deref().unwrap_or(""),
-        model::format::thousands(listing.miles),
-        listing.condition,
-        model::format::money(listing.asking_price)
-    ));
+    ui.label(format!("Selected: {}", listing.describe()));
     if let Some(e) = cx.fit.cleaning.exclusion_of(row) {
         ui.label(format!("Cleaning: {e}"));
     }

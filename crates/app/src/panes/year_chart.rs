@@ -93,6 +93,9 @@ fn gather(cx: &PaneContext<'_>) -> YearChartData {
 /// Draws the pane.
 pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     let data = gather(cx);
+    ui.label(
+        "Circles used, squares certified, diamonds new; hollow and faded: excluded from the fit.",
+    );
     if data.step > 1 {
         ui.label(format!(
             "Showing 1 in {} of {} listings; comparables and the subject are always shown.",
@@ -102,7 +105,7 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     }
     let mut hovered = None;
     let response = Plot::new("price_by_year")
-        .legend(Legend::default())
+        .legend(Legend::default().position(egui_plot::Corner::LeftTop))
         .x_axis_label("model year")
         .y_axis_label("asking price")
         .show(ui, |plot| {
@@ -114,12 +117,13 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
 
 fn draw(plot: &mut PlotUi<'_>, cx: &PaneContext<'_>, data: &YearChartData) {
     for (&(variant, condition, included), points) in &data.groups {
-        let name = format!(
-            "{} · {}{}",
-            cx.variant_label(variant),
-            condition,
-            if included { "" } else { " (excluded)" }
-        );
+        // One legend entry per variant (series with one name share it) and one for exclusions;
+        // the condition is the marker's shape, explained above the chart.
+        let name = if included {
+            cx.variant_label(variant)
+        } else {
+            "excluded (hover for why)".to_owned()
+        };
         let colour = variant_colour(variant);
         plot.points(
             Points::new(name, PlotPoints::from(points.clone()))
@@ -209,16 +213,9 @@ pub fn hover_and_click(
         .filter(|_| !cx.fit.cleaning.is_included(row))
         .map(|e| format!("\nexcluded: {e}"))
         .unwrap_or_default();
-    response.clone().on_hover_text_at_pointer(format!(
-        "line {}: {} {} {}, {} mi, {}, {}{reason}",
-        listing.line,
-        listing.model_year,
-        listing.model,
-        listing.variant.as_deref().unwrap_or(""),
-        model::format::thousands(listing.miles),
-        listing.condition,
-        model::format::money(listing.asking_price)
-    ));
+    response
+        .clone()
+        .on_hover_text_at_pointer(format!("{}{reason}", listing.describe()));
     if response.clicked() {
         cx.selection.selected = Some(row);
     }

@@ -497,23 +497,9 @@ struct ChunkIssues {
     condition_inferred: usize,
 }
 
-/// Optional fields in the order of [`OptionalRow`].
-const OPTIONAL_FIELDS: [Field; 14] = [
-    Field::Variant,
-    Field::Condition,
-    Field::ListedOn,
-    Field::SoldOn,
-    Field::SalePrice,
-    Field::Vin,
-    Field::Seller,
-    Field::Location,
-    Field::Latitude,
-    Field::Longitude,
-    Field::DistanceMiles,
-    Field::DistanceKilometres,
-    Field::Title,
-    Field::Options,
-];
+/// Optional fields in the order of [`OptionalRow`]: every field after the six that identify
+/// and price a vehicle (the required ones and the kilometre alternative).
+const OPTIONAL_FIELDS: &[Field] = Field::ALL.split_at(6).1;
 
 /// Reads every row; rows with an unusable required value are rejected with their line. The rows
 /// are split over the machine's cores and the parts joined in file order.
@@ -540,7 +526,7 @@ fn parse_rows(
         return Err("a required column vanished after mapping".into());
     };
     let mut optional: [Option<&StringChunked>; 14] = [None; 14];
-    for (slot, field) in optional.iter_mut().zip(OPTIONAL_FIELDS) {
+    for (slot, &field) in optional.iter_mut().zip(OPTIONAL_FIELDS) {
         *slot = col(field)?;
     }
     let n = df.height();
