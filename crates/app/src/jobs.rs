@@ -7,10 +7,14 @@ use std::sync::mpsc::{Receiver, Sender, channel};
 
 use model::appraisal::{AppraisalError, FitSettings, MarketFit, find_segment, fit_market};
 use model::clean::Overrides;
+use model::gaps::{PriceGap, price_gaps};
 use model::import::{ImportError, ImportOptions, ImportReport, import_csv_bytes, import_csv_file};
 use model::market::Market;
 
 use crate::document::MarketSource;
+
+/// Price gaps with the interval level they were flagged at.
+pub type FlaggedGaps = (f64, Vec<PriceGap>);
 
 /// Work for the background thread.
 pub enum Job {
@@ -33,6 +37,8 @@ pub enum Job {
         settings: FitSettings,
         /// Overrides.
         overrides: Overrides,
+        /// Level for the price-gap flags.
+        level: f64,
         /// Generation number the result is tagged with.
         generation: u64,
     },
@@ -49,12 +55,12 @@ pub enum JobResult {
         /// The market and its report, or the reason it failed.
         outcome: Result<(Arc<Market>, ImportReport), Arc<ImportError>>,
     },
-    /// A fit finished (or failed).
+    /// A fit finished (or failed), with the segment's price gaps at the requested level.
     Fitted {
         /// Tag.
         generation: u64,
-        /// The fit, or why it failed.
-        outcome: Result<Arc<MarketFit>, AppraisalError>,
+        /// The fit and its gaps, or why it failed.
+        outcome: Result<(Arc<MarketFit>, Arc<FlaggedGaps>), AppraisalError>,
     },
     /// The job was cancelled.
     Cancelled,
@@ -171,11 +177,15 @@ fn run(job: Job) -> JobResult {
             model,
             settings,
             overrides,
+            level,
             generation,
         } => {
             let outcome = find_segment(&market, &make, &model)
                 .and_then(|segment| fit_market(&market, segment, &settings, &overrides))
-                .map(Arc::new);
+                .map(|fit| {
+                    let gaps = price_gaps(&market, &fit, level);
+                    (Arc::new(fit), Arc::new((level, gaps)))
+                });
             JobResult::Fitted {
                 generation,
                 outcome,

@@ -55,6 +55,8 @@ pub struct Runtime {
     pub fit_key: Option<FitKey>,
     /// A fit requested and not yet back.
     pub fitting: Option<FitKey>,
+    /// Price gaps of the fitted segment, with the level they were flagged at.
+    pub gaps: Option<Arc<crate::jobs::FlaggedGaps>>,
     /// Why the last fit failed.
     pub fit_error: Option<AppraisalError>,
     /// The appraisal for the current subject.

@@ -34,6 +34,20 @@ pub struct Workbench {
     appraised_for: Option<(AppraisalDocument, usize)>,
     /// Seconds since start, for the undo settle rule.
     clock: f64,
+    /// Which view the central area shows.
+    view: CentralView,
+}
+
+/// The views of the central area.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum CentralView {
+    /// The two linked charts.
+    #[default]
+    Charts,
+    /// Depreciation by age and variant, and the holding-period forecast.
+    Depreciation,
+    /// Listings ranked by their gap to the market.
+    PriceGaps,
 }
 
 impl Workbench {
@@ -77,6 +91,7 @@ impl Workbench {
             show_help: false,
             appraised_for: None,
             clock: 0.0,
+            view: CentralView::default(),
         }
     }
 
@@ -102,6 +117,11 @@ impl Workbench {
     #[must_use]
     pub fn selection(&self) -> Selection {
         self.selection
+    }
+
+    /// Shows a view in the central area.
+    pub fn show_view(&mut self, view: CentralView) {
+        self.view = view;
     }
 
     /// Selects a market row, as clicking it in a chart does.
@@ -191,8 +211,9 @@ impl Workbench {
             JobResult::Fitted { outcome, .. } => {
                 let key = self.runtime.fitting.take();
                 match outcome {
-                    Ok(fit) => {
+                    Ok((fit, gaps)) => {
                         self.runtime.fit = Some(fit);
+                        self.runtime.gaps = Some(gaps);
                         self.runtime.fit_key = key;
                         self.runtime.fit_error = None;
                     }
@@ -254,6 +275,7 @@ impl Workbench {
             model: key.model,
             settings: key.settings,
             overrides: key.overrides,
+            level: self.document.level,
             generation: key.market_generation,
         });
     }
@@ -409,20 +431,20 @@ impl Workbench {
                     panes::comparables::ui(ui, &mut cx);
                 });
         }
+        let gaps = self.runtime.gaps.clone();
+        let view = &mut self.view;
         egui::CentralPanel::default().show(ui, |ui| {
-            let half = ui.available_width() / 2.0 - 8.0;
-            ui.horizontal_top(|ui| {
-                ui.vertical(|ui| {
-                    ui.set_width(half);
-                    ui.strong("Price by model year");
-                    panes::year_chart::ui(ui, &mut cx);
-                });
-                ui.vertical(|ui| {
-                    ui.set_width(half);
-                    ui.strong("Value by mileage");
-                    panes::mileage_chart::ui(ui, &mut cx);
-                });
+            ui.horizontal(|ui| {
+                ui.selectable_value(view, CentralView::Charts, "Charts");
+                ui.selectable_value(view, CentralView::Depreciation, "Depreciation");
+                ui.selectable_value(view, CentralView::PriceGaps, "Price gaps");
             });
+            ui.separator();
+            match *view {
+                CentralView::Charts => charts_ui(ui, &mut cx),
+                CentralView::Depreciation => panes::depreciation::ui(ui, &mut cx),
+                CentralView::PriceGaps => panes::gaps::ui(ui, &mut cx, gaps.as_deref()),
+            }
         });
         for command in commands {
             self.apply(command);
@@ -589,6 +611,23 @@ impl Workbench {
                 });
             });
     }
+}
+
+/// The two linked charts side by side.
+fn charts_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
+    let half = ui.available_width() / 2.0 - 8.0;
+    ui.horizontal_top(|ui| {
+        ui.vertical(|ui| {
+            ui.set_width(half);
+            ui.strong("Price by model year");
+            panes::year_chart::ui(ui, cx);
+        });
+        ui.vertical(|ui| {
+            ui.set_width(half);
+            ui.strong("Value by mileage");
+            panes::mileage_chart::ui(ui, cx);
+        });
+    });
 }
 
 impl eframe::App for Workbench {

@@ -182,3 +182,31 @@ fn the_real_ui_shows_the_value_and_responds_to_its_controls() {
     assert!(harness.state().document().choices.exclude.is_empty());
     harness.get_by_label(&model::format::money(value));
 }
+
+#[test]
+fn depreciation_and_price_gap_views_show_the_fitted_market() {
+    let mut harness = harness();
+    harness.get_by_label("Depreciation").click();
+    harness.run_steps(3);
+    harness.get_by_label_contains("Fitted annual depreciation over five years");
+    harness.get_by_label_contains("Holding-period forecast for the subject");
+    harness.get_by_label("Price gaps").click();
+    harness.run_steps(3);
+    harness.get_by_label("Furthest below the market");
+    let gaps = harness
+        .state()
+        .runtime()
+        .gaps
+        .clone()
+        .expect("gaps computed with the fit");
+    assert!(gaps.1.windows(2).all(|w| w[0].gap_pct <= w[1].gap_pct));
+    // Clicking the most underpriced listing selects it for every pane.
+    let first = &gaps.1[0];
+    harness
+        .get_all_by_label(&first.line.to_string())
+        .next()
+        .unwrap()
+        .click();
+    harness.run_steps(2);
+    assert_eq!(harness.state().selection().selected, Some(first.row));
+}

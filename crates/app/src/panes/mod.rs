@@ -2,6 +2,8 @@
 //! [`Command`]s; it never changes the document itself.
 
 pub mod comparables;
+pub mod depreciation;
+pub mod gaps;
 pub mod mileage_chart;
 pub mod subject;
 pub mod value;

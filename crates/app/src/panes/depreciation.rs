@@ -1,0 +1,160 @@
+//! Depreciation: the fitted age curve by variant with loss per year in dollars and percent, the
+//! variant premium by age, and the subject's holding-period forecast.
+
+use eframe::egui::{self, RichText, Ui};
+use egui_plot::{Legend, Line, Plot};
+use model::depreciation::depreciation_table;
+use model::format::{money, signed_money, thousands};
+
+use super::PaneContext;
+use crate::palette::variant_colour;
+
+/// Oldest age in the table.
+const MAX_AGE: u32 = 10;
+
+/// Draws the pane.
+pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
+    let table = depreciation_table(&cx.fit.model, cx.market, MAX_AGE);
+    let annual = cx.fit.model.annual_depreciation(5);
+    ui.label(format!(
+        "Fitted annual depreciation over five years: {:.1} % from age alone, {:.1} % with typical mileage ({} mi a year).",
+        annual.age_only_pct,
+        annual.with_typical_miles_pct,
+        thousands(cx.fit.model.mileage().annual_miles)
+    ));
+    ui.columns(2, |columns| {
+        Plot::new("depreciation_curves")
+            .legend(Legend::default())
+            .height(260.0)
+            .x_axis_label("age (model years)")
+            .y_axis_label("value at typical miles")
+            .show(&mut columns[0], |plot| {
+                for (i, curve) in table.curves.iter().enumerate() {
+                    let points: Vec<[f64; 2]> = curve
+                        .rows
+                        .iter()
+                        .filter_map(|r| r.age_years.map(|a| [f64::from(a), r.value]))
+                        .collect();
+                    plot.line(
+                        Line::new(curve.variant.clone(), points)
+                            .color(variant_colour(i))
+                            .width(2.0),
+                    );
+                }
+            });
+        forecast_ui(&mut columns[1], cx);
+    });
+    let subject_variant = cx
+        .document
+        .subject
+        .variant
+        .clone()
+        .unwrap_or_else(|| "(no variant)".into());
+    let Some(curve) = table
+        .curves
+        .iter()
+        .find(|c| c.variant == subject_variant)
+        .or(table.curves.first())
+    else {
+        return;
+    };
+    ui.label(RichText::new(format!("{} by age (used at typical miles; the first row is new where the market has new listings)", curve.variant)).strong());
+    egui::ScrollArea::vertical()
+        .id_salt("depreciation_rows")
+        .max_height(220.0)
+        .show(ui, |ui| {
+            egui::Grid::new("depreciation_grid")
+                .striped(true)
+                .show(ui, |ui| {
+                    for h in [
+                        "age",
+                        "typical miles",
+                        "value",
+                        "loss that year",
+                        "loss %",
+                        "cumulative",
+                        "cumulative %",
+                    ] {
+                        ui.label(RichText::new(h).strong());
+                    }
+                    ui.end_row();
+                    for r in &curve.rows {
+                        ui.label(
+                            r.age_years
+                                .map_or_else(|| "new".to_owned(), |a| a.to_string()),
+                        );
+                        ui.label(thousands(r.typical_miles));
+                        ui.label(money(r.value));
+                        ui.label(money(r.loss));
+                        ui.label(format!("{:.1}", r.loss_pct));
+                        ui.label(money(r.cumulative_loss));
+                        ui.label(format!("{:.1}", r.cumulative_loss_pct));
+                        ui.end_row();
+                    }
+                });
+        });
+    for p in &table.premiums {
+        let by_age: Vec<String> = p
+            .by_age
+            .iter()
+            .step_by(2)
+            .map(|r| {
+                format!(
+                    "age {}: {} ({:.0} %)",
+                    r.age_years,
+                    money(r.premium),
+                    r.premium_pct
+                )
+            })
+            .collect();
+        ui.label(format!(
+            "Premium of {} over {}: {}",
+            p.variant,
+            p.base,
+            by_age.join(", ")
+        ));
+    }
+}
+
+fn forecast_ui(ui: &mut Ui, cx: &PaneContext<'_>) {
+    let id = ui.scope_id().with("hold_months");
+    let mut months: f64 = ui.data(|d| d.get_temp(id)).unwrap_or(6.0);
+    ui.label(RichText::new("Holding-period forecast for the subject").strong());
+    ui.add(
+        egui::Slider::new(&mut months, 1.0..=36.0)
+            .text("months held")
+            .integer(),
+    );
+    ui.data_mut(|d| d.insert_temp(id, months));
+    match model::forecast::forecast(
+        cx.market,
+        cx.fit,
+        &cx.document.subject,
+        months,
+        None,
+        cx.document.level,
+    ) {
+        Ok(f) => {
+            ui.label(format!("Now, by the model: {}", money(f.now.median)));
+            ui.label(format!(
+                "After {months:.0} months and {} more miles: {} ({}, {:+.1} %)",
+                thousands(f.added_miles),
+                money(f.then.median),
+                signed_money(f.change),
+                f.change_pct
+            ));
+            ui.label(format!(
+                "{:.0} % prediction interval then: {} to {}",
+                100.0 * cx.document.level,
+                money(f.then.prediction_interval.lower),
+                money(f.then.prediction_interval.upper)
+            ));
+            if f.extrapolated {
+                ui.label("Beyond the oldest age in the market: an extrapolation.");
+            }
+        }
+        Err(e) => {
+            ui.label(e.to_string());
+        }
+    }
+}
