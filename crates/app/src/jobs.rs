@@ -6,12 +6,27 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::mpsc::{Receiver, Sender, channel};
 
 use model::appraisal::{AppraisalError, FitSettings, MarketFit, find_segment, fit_market};
+use model::backtest::{Backtest, BacktestSettings, backtest};
 use model::clean::Overrides;
+use model::comparables::ComparableRules;
+use model::depreciation::{DeclineRank, rank_segments};
 use model::gaps::{PriceGap, price_gaps};
 use model::import::{ImportError, ImportOptions, ImportReport, import_csv_bytes, import_csv_file};
 use model::market::Market;
 
 use crate::document::MarketSource;
+
+/// How well the loaded market supports a value, and how its models compare: computed after
+/// each fit, in the background.
+#[derive(Debug, Clone)]
+pub struct MarketStudy {
+    /// The fit it was computed for (pointer identity).
+    pub fit_id: usize,
+    /// K-fold accuracy of the model and the comparables method.
+    pub backtest: Result<Backtest, AppraisalError>,
+    /// Models in the file ranked by fitted annual decline.
+    pub ranking: Vec<DeclineRank>,
+}
 
 /// Price gaps with the interval level they were flagged at.
 pub type FlaggedGaps = (f64, Vec<PriceGap>);
@@ -24,6 +39,19 @@ pub enum Job {
         source: MarketSource,
         /// Generation number the result is tagged with.
         generation: u64,
+    },
+    /// Backtest the fitted segment and rank the file's models.
+    Study {
+        /// The market.
+        market: Arc<Market>,
+        /// The fit to study.
+        fit: Arc<MarketFit>,
+        /// Fit settings (for the ranking's per-model fits).
+        settings: FitSettings,
+        /// Comparable rules (for the comparables backtest).
+        rules: ComparableRules,
+        /// Interval level whose coverage is measured.
+        level: f64,
     },
     /// Clean and fit a segment.
     Fit {
@@ -62,6 +90,8 @@ pub enum JobResult {
         /// The fit and its gaps, or why it failed.
         outcome: Result<(Arc<MarketFit>, Arc<FlaggedGaps>), AppraisalError>,
     },
+    /// A market study finished.
+    Studied(Box<MarketStudy>),
     /// The job was cancelled.
     Cancelled,
 }
@@ -170,6 +200,23 @@ fn run(job: Job) -> JobResult {
                 source,
                 outcome: outcome.map(|(m, r)| (Arc::new(m), r)).map_err(Arc::new),
             }
+        }
+        Job::Study {
+            market,
+            fit,
+            settings,
+            rules,
+            level,
+        } => {
+            let backtest_settings = BacktestSettings {
+                level,
+                ..BacktestSettings::default()
+            };
+            JobResult::Studied(Box::new(MarketStudy {
+                fit_id: Arc::as_ptr(&fit) as usize,
+                backtest: backtest(&market, &fit, &rules, &backtest_settings),
+                ranking: rank_segments(&market, &settings, 40),
+            }))
         }
         Job::Fit {
             market,

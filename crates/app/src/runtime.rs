@@ -57,6 +57,8 @@ pub struct Runtime {
     pub fitting: Option<FitKey>,
     /// Price gaps of the fitted segment, with the level they were flagged at.
     pub gaps: Option<Arc<crate::jobs::FlaggedGaps>>,
+    /// The backtest and model ranking of the current fit, once computed.
+    pub study: Option<Box<crate::jobs::MarketStudy>>,
     /// Why the last fit failed.
     pub fit_error: Option<AppraisalError>,
     /// The appraisal for the current subject.

@@ -212,6 +212,16 @@ impl Workbench {
                 let key = self.runtime.fitting.take();
                 match outcome {
                     Ok((fit, gaps)) => {
+                        if let Some(market) = self.runtime.market.clone() {
+                            self.worker.submit(Job::Study {
+                                market,
+                                fit: Arc::clone(&fit),
+                                settings: self.document.fit,
+                                rules: self.document.rules,
+                                level: self.document.level,
+                            });
+                        }
+                        self.runtime.study = None;
                         self.runtime.fit = Some(fit);
                         self.runtime.gaps = Some(gaps);
                         self.runtime.fit_key = key;
@@ -221,6 +231,12 @@ impl Workbench {
                         self.runtime.fit_error = Some(e);
                         self.runtime.fit_key = key;
                     }
+                }
+            }
+            JobResult::Studied(study) => {
+                let current = self.runtime.fit.as_ref().map(|f| Arc::as_ptr(f) as usize);
+                if current == Some(study.fit_id) {
+                    self.runtime.study = Some(study);
                 }
             }
             JobResult::Cancelled => {
@@ -400,6 +416,7 @@ impl Workbench {
             market: &market,
             fit: &fit,
             appraisal: appraisal.as_ref(),
+            study: self.runtime.study.as_deref(),
             selection: &mut self.selection,
             commands: &mut commands,
         };

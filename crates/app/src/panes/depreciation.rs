@@ -93,6 +93,7 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
                     }
                 });
         });
+    ranking_ui(ui, cx);
     for p in &table.premiums {
         let by_age: Vec<String> = p
             .by_age
@@ -113,6 +114,33 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
             p.base,
             by_age.join(", ")
         ));
+    }
+}
+
+/// The file's models ranked by fitted annual decline (computed in the background).
+fn ranking_ui(ui: &mut Ui, cx: &PaneContext<'_>) {
+    let Some(study) = cx.study else {
+        ui.horizontal(|ui| {
+            ui.spinner();
+            ui.label("Ranking the models in the file…");
+        });
+        return;
+    };
+    ui.label(
+        RichText::new("Models in the file by fitted annual decline (linear age, five years)")
+            .strong(),
+    );
+    for r in &study.ranking {
+        match &r.skipped {
+            None => ui.label(format!(
+                "{}: {:.1} % a year with typical miles, {:.1} % from age alone ({} listings)",
+                r.segment,
+                r.with_typical_miles_pct,
+                r.age_only_pct,
+                thousands(r.listings as f64)
+            )),
+            Some(why) => ui.label(format!("{}: not ranked ({why})", r.segment)),
+        };
     }
 }
 

@@ -30,6 +30,8 @@ pub struct PaneContext<'a> {
     pub fit: &'a MarketFit,
     /// The current appraisal, when the subject could be appraised.
     pub appraisal: Option<&'a Appraisal>,
+    /// Backtest and model ranking of the current fit, once computed in the background.
+    pub study: Option<&'a crate::jobs::MarketStudy>,
     /// Linked selection.
     pub selection: &'a mut Selection,
     /// Commands for the workbench to apply.

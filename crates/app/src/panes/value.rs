@@ -52,6 +52,28 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
         cx.fit.model.residual_sd(),
         cx.fit.model.r_squared()
     ));
+    match cx.study.map(|s| &s.backtest) {
+        Some(Ok(b)) => {
+            ui.label(format!(
+                "How well this market supports a value ({}-fold backtest, asking prices as truth): model median error {:.1} %, {:.0} % inside its {:.0} % band; comparables median error {:.1} %, {:.0} % inside their band.",
+                b.folds,
+                b.model.median_abs_pct_error,
+                b.model.band_coverage_pct,
+                100.0 * b.model.level,
+                b.comparables.median_abs_pct_error,
+                b.comparables.band_coverage_pct
+            ));
+        }
+        Some(Err(e)) => {
+            ui.label(format!("Backtest not available: {e}"));
+        }
+        None => {
+            ui.horizontal(|ui| {
+                ui.spinner();
+                ui.label("Backtesting this market…");
+            });
+        }
+    }
     ui.horizontal(|ui| {
         let mut level = cx.document.level;
         if ui
