@@ -214,10 +214,19 @@ fn depreciation_and_price_gap_views_show_the_fitted_market() {
 #[test]
 fn the_market_study_reports_backtest_accuracy_and_ranks_the_models() {
     let mut harness = harness();
-    let study = harness.state().runtime().study.clone().expect("study done after the fit");
+    let study = harness
+        .state()
+        .runtime()
+        .study
+        .clone()
+        .expect("study done after the fit");
     let backtest = study.backtest.as_ref().unwrap();
     assert!(backtest.model.evaluated > 1_000);
-    assert!((60.0..=95.0).contains(&backtest.model.band_coverage_pct), "{}", backtest.model.band_coverage_pct);
+    assert!(
+        (60.0..=95.0).contains(&backtest.model.band_coverage_pct),
+        "{}",
+        backtest.model.band_coverage_pct
+    );
     let ranked: Vec<&str> = study.ranking.iter().map(|r| r.segment.as_str()).collect();
     assert_eq!(ranked.len(), 3, "{ranked:?}");
     harness.get_by_label_contains("How well this market supports a value");

@@ -59,6 +59,33 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
         return;
     };
     ui.label(RichText::new(format!("{} by age (used at typical miles; the first row is new where the market has new listings)", curve.variant)).strong());
+    age_table_ui(ui, curve);
+    ranking_ui(ui, cx);
+    for p in &table.premiums {
+        let by_age: Vec<String> = p
+            .by_age
+            .iter()
+            .step_by(2)
+            .map(|r| {
+                format!(
+                    "age {}: {} ({:.0} %)",
+                    r.age_years,
+                    money(r.premium),
+                    r.premium_pct
+                )
+            })
+            .collect();
+        ui.label(format!(
+            "Premium of {} over {}: {}",
+            p.variant,
+            p.base,
+            by_age.join(", ")
+        ));
+    }
+}
+
+/// One variant's value, loss and cumulative loss by age.
+fn age_table_ui(ui: &mut Ui, curve: &model::depreciation::VariantCurve) {
     egui::ScrollArea::vertical()
         .id_salt("depreciation_rows")
         .max_height(220.0)
@@ -93,28 +120,6 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
                     }
                 });
         });
-    ranking_ui(ui, cx);
-    for p in &table.premiums {
-        let by_age: Vec<String> = p
-            .by_age
-            .iter()
-            .step_by(2)
-            .map(|r| {
-                format!(
-                    "age {}: {} ({:.0} %)",
-                    r.age_years,
-                    money(r.premium),
-                    r.premium_pct
-                )
-            })
-            .collect();
-        ui.label(format!(
-            "Premium of {} over {}: {}",
-            p.variant,
-            p.base,
-            by_age.join(", ")
-        ));
-    }
 }
 
 /// The file's models ranked by fitted annual decline (computed in the background).
