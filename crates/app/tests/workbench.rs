@@ -235,3 +235,25 @@ fn the_market_study_reports_backtest_accuracy_and_ranks_the_models() {
     harness.get_by_label_contains("Models in the file by fitted annual decline");
     harness.get_by_label_contains("Orvane Kestrel:");
 }
+
+#[test]
+fn switching_the_subject_to_another_model_refits_and_appraises_it() {
+    let mut harness = harness();
+    harness.get_by_label("Make and model").click();
+    harness.run_steps(2);
+    harness.get_by_label_contains("Orvane Kestrel (").click();
+    harness.run_steps(2);
+    harness.state_mut().wait_for_jobs();
+    harness.run_steps(2);
+    let wb = harness.state();
+    assert_eq!(wb.document().subject.model, "Kestrel");
+    let fit = wb.runtime().fit.clone().unwrap();
+    let market = wb.runtime().market.clone().unwrap();
+    assert_eq!(market.segment_name(fit.segment), "Orvane Kestrel");
+    let a = wb
+        .runtime()
+        .appraisal
+        .as_ref()
+        .expect("the new model is appraised");
+    assert!(a.comparables.iter().all(|c| c.listing.model == "Kestrel"));
+}

@@ -12,7 +12,7 @@ use crate::command::Command;
 pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     let subject = cx.document.subject.clone();
     ui.heading("Subject");
-    ui.label(format!("{} {}", subject.make, subject.model));
+    model_selector_ui(ui, cx, &subject);
     egui::Grid::new("subject_grid")
         .num_columns(2)
         .show(ui, |ui| {
@@ -81,6 +81,44 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
         });
     ui.separator();
     selected_listing_ui(ui, cx);
+}
+
+/// Make and model: any model in the file. Switching keeps the year and miles and takes the new
+/// model's most common variant, so the subject stays one the market can price.
+fn model_selector_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, subject: &Subject) {
+    let current = format!("{} {}", subject.make, subject.model);
+    let label = ui.label("Make and model");
+    let combo = egui::ComboBox::from_id_salt("subject_model")
+        .selected_text(current.clone())
+        .show_ui(ui, |ui| {
+            for (segment, count) in cx.market.segments() {
+                let name = cx.market.segment_name(segment);
+                let text = format!(
+                    "{name} ({} listings)",
+                    model::format::thousands(count as f64)
+                );
+                if ui.selectable_label(name == current, text).clicked() && name != current {
+                    let rows = cx.market.rows_of(segment);
+                    let mut counts: std::collections::BTreeMap<&str, usize> =
+                        std::collections::BTreeMap::new();
+                    for &r in &rows {
+                        *counts.entry(cx.market.variant_name(r)).or_default() += 1;
+                    }
+                    let variant = counts
+                        .into_iter()
+                        .max_by_key(|(_, n)| *n)
+                        .map(|(v, _)| v.to_owned())
+                        .filter(|v| v != "(no variant)");
+                    cx.commands.push(Command::SetSubject(Subject {
+                        make: cx.market.names.name(segment.make).to_owned(),
+                        model: cx.market.names.name(segment.model).to_owned(),
+                        variant,
+                        ..subject.clone()
+                    }));
+                }
+            }
+        });
+    combo.response.labelled_by(label.id);
 }
 
 /// The listing clicked in a chart, with what can be done with it.
