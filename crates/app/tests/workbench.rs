@@ -119,14 +119,31 @@ fn a_bad_file_shows_the_import_report_and_keeps_the_market() {
 }
 
 #[test]
-fn selection_in_one_place_reaches_the_panes() {
-    let mut wb = workbench();
-    let row = wb.runtime().appraisal.as_ref().unwrap().comparables[2]
-        .listing
-        .row;
-    wb.select(Some(row));
-    assert!(wb.selection().is_highlighted(row));
-    // Every pane reads the same selection; the comparables table marks it, the charts ring it.
+fn a_selection_made_in_one_pane_reaches_the_others() {
+    // Select the most underpriced listing from the price-gaps list; the subject pane (another
+    // pane) then offers it, and using it as the subject re-appraises with it.
+    let mut harness = harness();
+    harness.get_by_label("Price gaps").click();
+    harness.run_steps(3);
+    let gaps = harness.state().runtime().gaps.clone().unwrap();
+    let pick = gaps.1.iter().find(|g| g.exclusion.is_none()).unwrap();
+    harness
+        .get_all_by_label(&pick.line.to_string())
+        .next()
+        .unwrap()
+        .click();
+    harness.run_steps(2);
+    harness.get_by_label_contains(&format!("Selected: line {}:", pick.line));
+    harness.get_by_label("Use as subject").click();
+    harness.run_steps(2);
+    harness.state_mut().wait_for_jobs();
+    let market = harness.state().runtime().market.clone().unwrap();
+    let listing = market.listing(pick.row);
+    assert_eq!(harness.state().document().subject.miles, listing.miles);
+    assert_eq!(
+        harness.state().document().subject.model_year,
+        listing.model_year
+    );
 }
 
 fn harness() -> Harness<'static, Workbench> {

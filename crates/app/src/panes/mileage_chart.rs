@@ -9,7 +9,7 @@ use egui_plot::{Legend, Line, MarkerShape, Plot, PlotPoints, PlotUi, Points};
 use model::hedonic::{Attributes, age_years};
 
 use super::year_chart::hover_and_click;
-use super::{PaneContext, decimate, nearest};
+use super::{PaneContext, cached, decimate, fit_id, inputs_key, nearest};
 use crate::palette::{SUBJECT, faded, variant_colour};
 
 /// What the chart draws, gathered before drawing.
@@ -100,7 +100,14 @@ fn gather(cx: &PaneContext<'_>) -> MileageChartData {
 
 /// Draws the pane.
 pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
-    let data = gather(cx);
+    let doc = cx.document;
+    let key = inputs_key(&[
+        &fit_id(cx),
+        &doc.subject,
+        &doc.rules.model_year_window,
+        &doc.level,
+    ]);
+    let data = cached(ui, "mileage_chart_data", key, || gather(cx));
     let subject = &cx.document.subject;
     let window = cx.document.rules.model_year_window;
     ui.label(format!(

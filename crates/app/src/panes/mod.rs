@@ -9,6 +9,7 @@ pub mod subject;
 pub mod value;
 pub mod year_chart;
 
+use eframe::egui;
 use model::appraisal::{Appraisal, MarketFit};
 use model::market::Market;
 
@@ -68,6 +69,42 @@ impl PaneContext<'_> {
         self.appraisal
             .is_some_and(|a| a.comparables.iter().any(|c| c.listing.row == row))
     }
+}
+
+/// Chart data cached in the pane's temporary egui storage, rebuilt only when `key` (a hash of
+/// everything the data depends on) changes, so a steady frame does no per-listing work.
+pub fn cached<T: Send + Sync + 'static>(
+    ui: &egui::Ui,
+    name: &str,
+    key: u64,
+    build: impl FnOnce() -> T,
+) -> std::sync::Arc<T> {
+    let id = ui.scope_id().with(name);
+    if let Some((k, data)) = ui.data(|d| d.get_temp::<(u64, std::sync::Arc<T>)>(id)) {
+        if k == key {
+            return data;
+        }
+    }
+    let data = std::sync::Arc::new(build());
+    ui.data_mut(|d| d.insert_temp(id, (key, std::sync::Arc::clone(&data))));
+    data
+}
+
+/// A hash of the inputs a chart's data depends on.
+#[must_use]
+pub fn inputs_key(parts: &[&dyn std::fmt::Debug]) -> u64 {
+    use std::hash::{Hash, Hasher};
+    let mut h = std::collections::hash_map::DefaultHasher::new();
+    for p in parts {
+        format!("{p:?}").hash(&mut h);
+    }
+    h.finish()
+}
+
+/// Identity of the fit a pane draws (its address: a new fit is a new allocation).
+#[must_use]
+pub fn fit_id(cx: &PaneContext<'_>) -> usize {
+    std::ptr::from_ref(cx.fit) as usize
 }
 
 /// Every `step`-th row so that at most [`MAX_POINTS`] are drawn, and the step used.

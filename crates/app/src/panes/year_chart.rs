@@ -8,7 +8,7 @@ use egui_plot::{Legend, Line, MarkerShape, Plot, PlotPoints, PlotUi, Points};
 use model::condition::Condition;
 use model::hedonic::Attributes;
 
-use super::{PaneContext, decimate, jitter, nearest};
+use super::{PaneContext, cached, decimate, fit_id, inputs_key, jitter, nearest};
 use crate::palette::{SUBJECT, condition_shape, faded, variant_colour};
 
 /// Points by (variant index, condition, included).
@@ -92,7 +92,9 @@ fn gather(cx: &PaneContext<'_>) -> YearChartData {
 
 /// Draws the pane.
 pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
-    let data = gather(cx);
+    let doc = cx.document;
+    let key = inputs_key(&[&fit_id(cx), &doc.subject.variant, &doc.level]);
+    let data = cached(ui, "year_chart_data", key, || gather(cx));
     ui.label(
         "Circles used, squares certified, diamonds new; hollow and faded: excluded from the fit.",
     );
