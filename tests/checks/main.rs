@@ -11,3 +11,4 @@ mod nist;
 mod properties;
 mod published;
 mod recovery;
+mod worksheets;

@@ -29,3 +29,4 @@ pub mod stats;
 pub mod subject;
 pub mod supply;
 pub mod vocabulary;
+pub mod worksheet;
