@@ -2,6 +2,7 @@
 
 use std::path::PathBuf;
 
+use model::adjustment::UserAdjustment;
 use model::condition::Condition;
 use model::subject::Subject;
 
@@ -32,6 +33,10 @@ pub enum Command {
     SetComparableCount(usize),
     /// Open another market.
     OpenMarket(PathBuf),
+    /// Add one of the appraiser's own adjustment lines.
+    AddUserAdjustment(UserAdjustment),
+    /// Remove the appraiser's adjustment line at this index.
+    RemoveUserAdjustment(usize),
 }
 
 impl Command {
@@ -71,6 +76,16 @@ pub fn apply(document: &mut AppraisalDocument, command: Command) -> bool {
         }
         Command::SetLevel(level) => document.level = level.clamp(0.5, 0.99),
         Command::SetComparableCount(count) => document.rules.count = count.clamp(1, 30),
+        Command::AddUserAdjustment(line) => {
+            if line.amount.is_finite() && !line.basis.trim().is_empty() {
+                document.user_adjustments.push(line);
+            }
+        }
+        Command::RemoveUserAdjustment(index) => {
+            if index < document.user_adjustments.len() {
+                document.user_adjustments.remove(index);
+            }
+        }
         Command::OpenMarket(path) => {
             document.market = MarketSource::File(path);
             // Manual choices and overrides name lines of the old file.

@@ -445,6 +445,7 @@ impl Workbench {
                 .default_size(260.0)
                 .show(ui, |ui| {
                     ui.heading("Comparables");
+                    panes::user_adjustments::ui(ui, &mut cx);
                     panes::comparables::ui(ui, &mut cx);
                 });
         }

@@ -274,3 +274,52 @@ fn switching_the_subject_to_another_model_refits_and_appraises_it() {
         .expect("the new model is appraised");
     assert!(a.comparables.iter().all(|c| c.listing.model == "Kestrel"));
 }
+
+#[test]
+fn your_own_adjustment_lines_are_itemized_and_removable() {
+    let mut harness = harness();
+    let base = harness.state().runtime().appraisal.clone().unwrap();
+    let before = base.reconciliation.indicated_value;
+    // Without an amount and a basis the Add button stays disabled.
+    harness.get_by_label("Add adjustment").click();
+    harness.run_steps(2);
+    assert!(harness.state().document().user_adjustments.is_empty());
+    harness.state_mut().apply(Command::AddUserAdjustment(
+        model::adjustment::UserAdjustment {
+            line: None,
+            kind: model::adjustment::AdjustmentKind::PriorDamage,
+            amount: -750.0,
+            basis: "subject has a repaired rear quarter panel".into(),
+        },
+    ));
+    harness.run_steps(3);
+    let a = harness.state().runtime().appraisal.clone().unwrap();
+    // Each comparable's adjusted price falls by exactly the line's amount; the value falls by
+    // about as much (the larger gross adjustment shifts the weights a little).
+    for (c, b) in a.comparables.iter().zip(&base.comparables) {
+        assert_eq!(c.listing.line, b.listing.line);
+        assert!((c.adjusted_price - (b.adjusted_price - 750.0)).abs() < 1e-6);
+        assert!(
+            c.adjustments
+                .iter()
+                .any(|l| l.basis.contains("rear quarter panel"))
+        );
+    }
+    let drop = before - a.reconciliation.indicated_value;
+    assert!((600.0..=900.0).contains(&drop), "{drop}");
+    harness.get_by_label_contains("prior damage: subject has a repaired rear quarter panel");
+    harness.get_by_label("Remove").click();
+    harness.run_steps(3);
+    assert!(harness.state().document().user_adjustments.is_empty());
+    assert_eq!(
+        harness
+            .state()
+            .runtime()
+            .appraisal
+            .as_ref()
+            .unwrap()
+            .reconciliation
+            .indicated_value,
+        before
+    );
+}

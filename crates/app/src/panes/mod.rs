@@ -6,6 +6,7 @@ pub mod depreciation;
 pub mod gaps;
 pub mod mileage_chart;
 pub mod subject;
+pub mod user_adjustments;
 pub mod value;
 pub mod year_chart;
 
