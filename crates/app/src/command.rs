@@ -37,6 +37,10 @@ pub enum Command {
     AddUserAdjustment(UserAdjustment),
     /// Remove the appraiser's adjustment line at this index.
     RemoveUserAdjustment(usize),
+    /// Override the cleaning rules for the listing on this file line (refits the market).
+    SetOverride(u64, model::clean::Override),
+    /// Drop the override on this file line.
+    ClearOverride(u64),
 }
 
 impl Command {
@@ -85,6 +89,12 @@ pub fn apply(document: &mut AppraisalDocument, command: Command) -> bool {
             if index < document.user_adjustments.len() {
                 document.user_adjustments.remove(index);
             }
+        }
+        Command::SetOverride(line, decision) => {
+            document.overrides.insert(line, decision);
+        }
+        Command::ClearOverride(line) => {
+            document.overrides.remove(&line);
         }
         Command::OpenMarket(path) => {
             document.market = MarketSource::File(path);

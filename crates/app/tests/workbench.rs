@@ -323,3 +323,38 @@ fn your_own_adjustment_lines_are_itemized_and_removable() {
         before
     );
 }
+
+#[test]
+fn a_cleaning_override_made_on_screen_refits_the_market() {
+    let mut harness = harness();
+    let fit = harness.state().runtime().fit.clone().unwrap();
+    let excluded = fit
+        .cleaning
+        .rows
+        .iter()
+        .copied()
+        .find(|&r| !fit.cleaning.is_included(r))
+        .unwrap();
+    harness.state_mut().select(Some(excluded));
+    harness.run_steps(2);
+    harness.get_by_label("Keep in the fit").click();
+    harness.run_steps(2);
+    harness.state_mut().wait_for_jobs();
+    harness.run_steps(2);
+    let refit = harness.state().runtime().fit.clone().unwrap();
+    assert!(refit.cleaning.is_included(excluded));
+    assert_eq!(refit.model.rows(), fit.model.rows() + 1);
+    harness.get_by_label("Undo hand override").click();
+    harness.run_steps(2);
+    harness.state_mut().wait_for_jobs();
+    assert!(
+        !harness
+            .state()
+            .runtime()
+            .fit
+            .clone()
+            .unwrap()
+            .cleaning
+            .is_included(excluded)
+    );
+}

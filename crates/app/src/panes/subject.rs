@@ -83,6 +83,39 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     selected_listing_ui(ui, cx);
 }
 
+/// Keep an excluded listing in the fit, or drop a kept one, by hand (the market refits).
+fn override_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, row: usize, line: u64) {
+    use model::clean::Override;
+    ui.horizontal(|ui| {
+        if let Some(current) = cx.document.overrides.get(&line) {
+            let what = match current {
+                Override::Include { .. } => "kept in the fit by hand",
+                Override::Exclude { .. } => "dropped from the fit by hand",
+            };
+            ui.label(what);
+            if ui.button("Undo hand override").clicked() {
+                cx.commands.push(Command::ClearOverride(line));
+            }
+        } else if cx.fit.cleaning.is_included(row) {
+            if ui.button("Drop from the fit").clicked() {
+                cx.commands.push(Command::SetOverride(
+                    line,
+                    Override::Exclude {
+                        note: "dropped by hand in the workbench".into(),
+                    },
+                ));
+            }
+        } else if ui.button("Keep in the fit").clicked() {
+            cx.commands.push(Command::SetOverride(
+                line,
+                Override::Include {
+                    note: "kept by hand in the workbench".into(),
+                },
+            ));
+        }
+    });
+}
+
 /// Make and model: any model in the file. Switching keeps the year and miles and takes the new
 /// model's most common variant, so the subject stays one the market can price.
 fn model_selector_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, subject: &Subject) {
@@ -132,6 +165,7 @@ fn selected_listing_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     if let Some(e) = cx.fit.cleaning.exclusion_of(row) {
         ui.label(format!("Cleaning: {e}"));
     }
+    override_ui(ui, cx, row, listing.line);
     ui.horizontal(|ui| {
         if ui.button("Use as subject").clicked() {
             cx.commands
