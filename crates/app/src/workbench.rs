@@ -9,7 +9,7 @@ use eframe::egui::{self, Key, RichText, Ui};
 use model::appraisal::{AppraisalRequest, appraise};
 
 use crate::command::{Command, apply};
-use crate::document::{AppraisalDocument, MarketSource};
+use crate::document::AppraisalDocument;
 use crate::jobs::{Job, JobResult, Worker};
 use crate::panes::{self, PaneContext};
 use crate::preferences::Preferences;
@@ -117,11 +117,6 @@ impl Workbench {
     #[must_use]
     pub fn selection(&self) -> Selection {
         self.selection
-    }
-
-    /// Shows a view in the central area.
-    pub fn show_view(&mut self, view: CentralView) {
-        self.view = view;
     }
 
     /// Selects a market row, as clicking it in a chart does.
@@ -655,13 +650,5 @@ impl eframe::App for Workbench {
 
     fn save(&mut self, storage: &mut dyn eframe::Storage) {
         eframe::set_value(storage, crate::preferences::KEY, &self.preferences);
-    }
-}
-
-impl MarketSource {
-    /// Whether this is the built-in demo market.
-    #[must_use]
-    pub fn is_demo(&self) -> bool {
-        matches!(self, MarketSource::Demo { .. })
     }
 }
