@@ -37,8 +37,6 @@ pub enum Job {
     Load {
         /// Which market.
         source: MarketSource,
-        /// Generation number the result is tagged with.
-        generation: u64,
     },
     /// Backtest the fitted segment and rank the file's models.
     Study {
@@ -67,8 +65,6 @@ pub enum Job {
         overrides: Overrides,
         /// Level for the price-gap flags.
         level: f64,
-        /// Generation number the result is tagged with.
-        generation: u64,
     },
 }
 
@@ -76,8 +72,6 @@ pub enum Job {
 pub enum JobResult {
     /// A market was imported (or failed to import).
     Loaded {
-        /// Tag.
-        generation: u64,
         /// Which market.
         source: MarketSource,
         /// The market and its report, or the reason it failed.
@@ -85,8 +79,6 @@ pub enum JobResult {
     },
     /// A fit finished (or failed), with the segment's price gaps at the requested level.
     Fitted {
-        /// Tag.
-        generation: u64,
         /// The fit and its gaps, or why it failed.
         outcome: Result<(Arc<MarketFit>, Arc<FlaggedGaps>), AppraisalError>,
     },
@@ -182,7 +174,7 @@ impl Worker {
 
 fn run(job: Job) -> JobResult {
     match job {
-        Job::Load { source, generation } => {
+        Job::Load { source } => {
             let options = ImportOptions {
                 latest_model_year: ImportOptions::default().latest_model_year.max(2027),
                 ..ImportOptions::default()
@@ -196,7 +188,6 @@ fn run(job: Job) -> JobResult {
                 MarketSource::File(path) => import_csv_file(path, &options),
             };
             JobResult::Loaded {
-                generation,
                 source,
                 outcome: outcome.map(|(m, r)| (Arc::new(m), r)).map_err(Arc::new),
             }
@@ -225,7 +216,6 @@ fn run(job: Job) -> JobResult {
             settings,
             overrides,
             level,
-            generation,
         } => {
             let outcome = find_segment(&market, &make, &model)
                 .and_then(|segment| fit_market(&market, segment, &settings, &overrides))
@@ -233,10 +223,7 @@ fn run(job: Job) -> JobResult {
                     let gaps = price_gaps(&market, &fit, level);
                     (Arc::new(fit), Arc::new((level, gaps)))
                 });
-            JobResult::Fitted {
-                generation,
-                outcome,
-            }
+            JobResult::Fitted { outcome }
         }
     }
 }

@@ -59,6 +59,8 @@ pub struct Runtime {
     pub gaps: Option<Arc<crate::jobs::FlaggedGaps>>,
     /// The backtest and model ranking of the current fit, once computed.
     pub study: Option<Box<crate::jobs::MarketStudy>>,
+    /// A fit the user cancelled; not requested again until its inputs change.
+    pub fit_cancelled: Option<FitKey>,
     /// Why the last fit failed.
     pub fit_error: Option<AppraisalError>,
     /// The appraisal for the current subject.

@@ -71,7 +71,6 @@ impl Workbench {
         };
         worker.submit(Job::Load {
             source: document.market.clone(),
-            generation: 1,
         });
         let mut undoer = Undoer::with_settings(UndoSettings {
             max_undos: 200,
@@ -122,6 +121,11 @@ impl Workbench {
     /// Selects a market row, as clicking it in a chart does.
     pub fn select(&mut self, row: Option<usize>) {
         self.selection.selected = row;
+    }
+
+    /// Stops queued and running background work (the toolbar's Cancel).
+    pub fn cancel_jobs(&mut self) {
+        self.worker.cancel();
     }
 
     /// Whether background work is queued or running.
@@ -235,8 +239,16 @@ impl Workbench {
                 }
             }
             JobResult::Cancelled => {
-                self.runtime.loading = None;
-                self.runtime.fitting = None;
+                // A cancelled import leaves the loaded market in place, as a failed one does; a
+                // cancelled fit is not asked for again until its inputs change.
+                if self.runtime.loading.take().is_some() {
+                    if let Some(loaded) = self.runtime.market_source.clone() {
+                        self.document.market = loaded;
+                    }
+                }
+                if let Some(key) = self.runtime.fitting.take() {
+                    self.runtime.fit_cancelled = Some(key);
+                }
             }
         }
     }
@@ -256,7 +268,6 @@ impl Workbench {
                 self.runtime.loading = Some(self.document.market.clone());
                 self.worker.submit(Job::Load {
                     source: self.document.market.clone(),
-                    generation: self.runtime.market_generation + 1,
                 });
                 return;
             }
@@ -273,6 +284,7 @@ impl Workbench {
         };
         if self.runtime.fit_key.as_ref() == Some(&key)
             || self.runtime.fitting.as_ref() == Some(&key)
+            || self.runtime.fit_cancelled.as_ref() == Some(&key)
         {
             return;
         }
@@ -287,7 +299,6 @@ impl Workbench {
             settings: key.settings,
             overrides: key.overrides,
             level: self.document.level,
-            generation: key.market_generation,
         });
     }
 
@@ -530,7 +541,7 @@ impl Workbench {
             if self.worker.is_busy() {
                 ui.spinner();
                 if ui.button("Cancel").clicked() {
-                    self.worker.cancel();
+                    self.cancel_jobs();
                 }
             }
         });

@@ -358,3 +358,31 @@ fn a_cleaning_override_made_on_screen_refits_the_market() {
             .is_included(excluded)
     );
 }
+
+#[test]
+fn cancelling_an_import_keeps_the_loaded_market_and_does_not_restart_it() {
+    // Regression: Cancel used to drop the result but leave the document naming the new market,
+    // so the next frame started the same import again.
+    let dir = std::env::temp_dir().join(format!("comptrail-cancel-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let big = dir.join("big.csv");
+    // Large enough that the import is still running when Cancel is pressed.
+    std::fs::write(&big, model::demo::demo_csv_bytes(300_000, 4)).unwrap();
+    let wb = workbench();
+    let before = indicated(&wb);
+    let mut harness = Harness::new_ui_state(|ui, wb: &mut Workbench| wb.ui(ui), wb);
+    harness.state_mut().apply(Command::OpenMarket(big));
+    harness.step(); // submits the import
+    assert!(harness.state().is_busy());
+    harness.state_mut().cancel_jobs();
+    harness.state_mut().wait_for_jobs();
+    harness.step();
+    let wb = harness.state();
+    assert!(!wb.is_busy(), "the import was not restarted");
+    assert_eq!(
+        wb.document().market,
+        MarketSource::Demo { rows: SMALL_DEMO }
+    );
+    assert_eq!(indicated(wb), before);
+    std::fs::remove_dir_all(&dir).ok();
+}
