@@ -171,11 +171,25 @@ fn non_utf8_bytes_are_located() {
 
 #[test]
 fn a_line_with_too_many_fields_is_an_error_not_a_panic() {
-    let r = import("model_year,make,model,asking_price,miles\n2021,Q,T,1000,5,extra,fields\n");
-    // Either rejected cleanly by the tokenizer or read with the extra fields ignored; never a panic.
-    if let Err(e) = r {
-        assert!(e.to_string().contains("test.csv"), "{e}");
-    }
+    let r = import(
+        "model_year,make,model,asking_price,miles\n2021,Q,T,1000,5\n\"2020\",Q,\"T, with a comma\",900,6\n2021,Q,T,1000,5,extra,fields\n",
+    );
+    // Regression: the error used to carry the tokenizer's two-line hint and no line number.
+    let e = r.unwrap_err();
+    assert!(e.to_string().contains("test.csv"), "{e}");
+    assert!(
+        matches!(
+            e,
+            ImportError::RaggedLine {
+                line: 4,
+                fields: 7,
+                header_fields: 5,
+                ..
+            }
+        ),
+        "{e}"
+    );
+    assert_eq!(e.to_string().lines().count(), 1, "{e}");
 }
 
 #[test]

@@ -161,14 +161,7 @@ use eframe::egui;
 fn the_real_ui_shows_the_value_and_responds_to_its_controls() {
     let mut harness = harness();
     harness.get_by_label(app::panes::value::INDICATED_VALUE_LABEL);
-    let value = harness
-        .state()
-        .runtime()
-        .appraisal
-        .as_ref()
-        .unwrap()
-        .reconciliation
-        .indicated_value;
+    let value = indicated(harness.state());
     harness.get_by_label(&model::format::money(value));
     // Exclude the first comparable through its button (the table starts in ranking order, so
     // the first button is the most similar comparable's), then undo through the toolbar.
@@ -185,14 +178,7 @@ fn the_real_ui_shows_the_value_and_responds_to_its_controls() {
         .copied()
         .collect();
     assert_eq!(excluded, vec![first]);
-    let after = harness
-        .state()
-        .runtime()
-        .appraisal
-        .as_ref()
-        .unwrap()
-        .reconciliation
-        .indicated_value;
+    let after = indicated(harness.state());
     assert_ne!(after, value);
     harness.get_by_label("Undo").click();
     harness.run_steps(3);
@@ -311,17 +297,7 @@ fn your_own_adjustment_lines_are_itemized_and_removable() {
     harness.get_by_label("Remove").click();
     harness.run_steps(3);
     assert!(harness.state().document().user_adjustments.is_empty());
-    assert_eq!(
-        harness
-            .state()
-            .runtime()
-            .appraisal
-            .as_ref()
-            .unwrap()
-            .reconciliation
-            .indicated_value,
-        before
-    );
+    assert_eq!(indicated(harness.state()), before);
 }
 
 #[test]

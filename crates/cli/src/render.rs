@@ -210,12 +210,8 @@ fn comparable(o: &mut String, number: usize, c: &model::appraisal::AdjustedCompa
     );
     let _ = writeln!(
         o,
-        "   source: {}, {}, VIN {}, listed {}{}",
-        l.seller.as_deref().unwrap_or("unknown seller"),
-        l.location.as_deref().unwrap_or("unknown place"),
-        l.vin.as_deref().unwrap_or("none"),
-        l.listed_on
-            .map_or_else(|| "on an unknown date".to_owned(), |d| d.to_string()),
+        "   source: {}{}",
+        l.source(),
         c.days_listed
             .map(|d| format!(" ({d} day{})", if d == 1 { "" } else { "s" }))
             .unwrap_or_default()

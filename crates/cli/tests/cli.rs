@@ -182,8 +182,15 @@ fn bad_input_gives_a_non_zero_exit_and_one_line() {
     std::fs::create_dir_all(&dir).unwrap();
     let bad = dir.join("bad.csv");
     std::fs::write(&bad, "make;model;price\nQ;T;1\n").unwrap();
+    let ragged = dir.join("ragged.csv");
+    std::fs::write(
+        &ragged,
+        "model_year,make,model,asking_price,miles\n2021,Q,T,1000,5,extra\n",
+    )
+    .unwrap();
     let cases: Vec<Vec<String>> = vec![
         vec!["fit".into(), bad.display().to_string()],
+        vec!["fit".into(), ragged.display().to_string()],
         vec!["fit".into(), dir.join("missing.csv").display().to_string()],
         vec![
             "appraise".into(),

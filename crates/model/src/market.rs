@@ -118,6 +118,20 @@ pub struct Listing {
 }
 
 impl Listing {
+    /// Where the evidence came from: "Seller 075, Marrow Bend, VIN QUT…, listed 2026-11-20"
+    /// (source, identifier, location and date, as a valuation report must give them).
+    #[must_use]
+    pub fn source(&self) -> String {
+        format!(
+            "{}, {}, VIN {}, listed {}",
+            self.seller.as_deref().unwrap_or("unknown seller"),
+            self.location.as_deref().unwrap_or("unknown place"),
+            self.vin.as_deref().unwrap_or("none"),
+            self.listed_on
+                .map_or_else(|| "on an unknown date".to_owned(), |d| d.to_string())
+        )
+    }
+
     /// One line for tooltips and tables: "line 812: 2021 Tessel Plus, 41,000 mi, used, $30,400".
     #[must_use]
     pub fn describe(&self) -> String {

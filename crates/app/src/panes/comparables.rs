@@ -123,14 +123,7 @@ fn row_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, c: &AdjustedComparable) {
     if r.hovered() {
         cx.selection.hovered = Some(l.row);
     }
-    let source = format!(
-        "{}, {}, VIN {}, listed {}",
-        l.seller.as_deref().unwrap_or("unknown seller"),
-        l.location.as_deref().unwrap_or("unknown place"),
-        l.vin.as_deref().unwrap_or("none"),
-        l.listed_on
-            .map_or_else(|| "on an unknown date".into(), |d| d.to_string())
-    );
+    let source = l.source();
     let vehicle = format!(
         "{} {} {}{}",
         l.model_year,

@@ -135,6 +135,20 @@ pub enum ImportError {
         /// polars' message.
         message: String,
     },
+    /// A record has more fields than the header.
+    #[error(
+        "{file}: line {line} has {fields} fields but the header has {header_fields}; check the separator and quoting on that line"
+    )]
+    RaggedLine {
+        /// File name.
+        file: String,
+        /// Line where the record starts.
+        line: u64,
+        /// Fields found.
+        fields: usize,
+        /// Fields in the header.
+        header_fields: usize,
+    },
     /// Every row was rejected (or there were none).
     #[error("{file}: no usable rows: {} read, all rejected{}", report.rows_read, summary_of(report))]
     NoUsableRows {
@@ -194,7 +208,12 @@ pub fn import_csv_bytes(
     let hash = content_hash(&bytes);
     let record_lines = record_start_lines(&bytes);
 
-    let df = read_frame(&file, bytes, delimiter)?;
+    let df = match read_frame(&bytes, delimiter) {
+        Ok(df) => df,
+        Err(message) => return Err(malformed(&file, &bytes, delimiter, &message)),
+    };
+    // The frame holds its own copy of the text; the file's bytes are not needed any more.
+    drop(bytes);
     let mut report = ImportReport {
         file_name: file.clone(),
         delimiter: delimiter_name(delimiter),
@@ -416,17 +435,68 @@ fn try_map_header(
     })
 }
 
-fn read_frame(file: &str, bytes: Vec<u8>, delimiter: u8) -> Result<DataFrame, ImportError> {
+fn read_frame(bytes: &[u8], delimiter: u8) -> Result<DataFrame, String> {
     CsvReadOptions::default()
         .with_has_header(true)
         .with_infer_schema_length(Some(0))
         .map_parse_options(|o| o.with_separator(delimiter).with_quote_char(Some(b'"')))
         .into_reader_with_file_handle(Cursor::new(bytes))
         .finish()
-        .map_err(|e| ImportError::Malformed {
+        .map_err(|e| e.to_string())
+}
+
+/// Turns a tokenizer failure into an error that names the line where it can: a record with more
+/// fields than the header is found by scanning; otherwise the tokenizer's first line is kept
+/// (its hints name options of the library, not of comptrail).
+fn malformed(file: &str, bytes: &[u8], delimiter: u8, message: &str) -> ImportError {
+    if let Some((line, fields, header_fields)) = first_ragged_record(bytes, delimiter) {
+        return ImportError::RaggedLine {
             file: file.to_owned(),
-            message: e.to_string(),
-        })
+            line,
+            fields,
+            header_fields,
+        };
+    }
+    ImportError::Malformed {
+        file: file.to_owned(),
+        message: message.lines().next().unwrap_or("").trim().to_owned(),
+    }
+}
+
+/// The first record with more fields than the header: (line, its fields, the header's fields).
+fn first_ragged_record(bytes: &[u8], delimiter: u8) -> Option<(u64, usize, usize)> {
+    let mut header_fields = None;
+    let (mut line, mut record_line) = (1u64, 1u64);
+    let (mut fields, mut quoted, mut content) = (1usize, false, false);
+    for &b in bytes.iter().chain(std::iter::once(&b'\n')) {
+        match b {
+            b'"' => {
+                quoted = !quoted;
+                content = true;
+            }
+            b'\n' if !quoted => {
+                if content {
+                    match header_fields {
+                        None => header_fields = Some(fields),
+                        Some(h) if fields > h => return Some((record_line, fields, h)),
+                        Some(_) => {}
+                    }
+                }
+                line += 1;
+                record_line = line;
+                fields = 1;
+                content = false;
+            }
+            b'\n' => line += 1,
+            b'\r' => {}
+            _ if b == delimiter && !quoted => {
+                fields += 1;
+                content = true;
+            }
+            _ => content = true,
+        }
+    }
+    None
 }
 
 /// The file line on which each data record starts, honouring quoted fields that span lines
