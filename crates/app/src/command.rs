@@ -98,12 +98,11 @@ pub fn apply(document: &mut AppraisalDocument, command: Command) -> bool {
         }
         Command::OpenMarket(path) => {
             document.market = MarketSource::File(path);
-            // Manual choices and overrides name lines of the old file.
+            // Manual choices and overrides name lines of the old file, and a new market is
+            // appraised as of its own latest date.
             document.choices = model::comparables::ComparableChoices::default();
             document.overrides.clear();
-            if document.fit.as_of == Some(model::demo::demo_as_of()) {
-                document.fit.as_of = None;
-            }
+            document.fit.as_of = None;
         }
     }
     *document != before

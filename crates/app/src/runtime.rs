@@ -47,6 +47,9 @@ pub struct Runtime {
     pub market_generation: u64,
     /// Market requested and not yet loaded.
     pub loading: Option<MarketSource>,
+    /// The document as it was before a market was opened, to restore if the import fails or is
+    /// cancelled.
+    pub before_open: Option<crate::document::AppraisalDocument>,
     /// Last import failure, shown until dismissed.
     pub import_failure: Option<ImportFailure>,
     /// The last good fit.

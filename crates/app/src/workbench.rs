@@ -154,6 +154,7 @@ impl Workbench {
     pub fn apply(&mut self, command: Command) {
         if let Command::OpenMarket(path) = &command {
             self.preferences.remember(path.clone());
+            self.runtime.before_open = Some(self.document.clone());
         }
         let continuous = command.is_continuous();
         if !continuous {
@@ -195,15 +196,14 @@ impl Workbench {
                         self.runtime.import_report = Some(report);
                         self.runtime.market_generation += 1;
                         self.runtime.import_failure = None;
+                        self.runtime.before_open = None;
                         self.selection = Selection::default();
                     }
                     Err(error) => {
                         // The previous market and appraisal stay; the document goes back to
                         // the market that is actually loaded.
                         self.runtime.import_failure = Some(ImportFailure { source, error });
-                        if let Some(loaded) = self.runtime.market_source.clone() {
-                            self.document.market = loaded;
-                        }
+                        self.restore_before_open();
                     }
                 }
             }
@@ -242,14 +242,25 @@ impl Workbench {
                 // A cancelled import leaves the loaded market in place, as a failed one does; a
                 // cancelled fit is not asked for again until its inputs change.
                 if self.runtime.loading.take().is_some() {
-                    if let Some(loaded) = self.runtime.market_source.clone() {
-                        self.document.market = loaded;
-                    }
+                    self.restore_before_open();
                 }
                 if let Some(key) = self.runtime.fitting.take() {
                     self.runtime.fit_cancelled = Some(key);
                 }
             }
+        }
+    }
+
+    /// After a failed or cancelled import: the document goes back to the market that is loaded,
+    /// with the hand choices, overrides and date that opening the new one had cleared.
+    fn restore_before_open(&mut self) {
+        if let Some(before) = self.runtime.before_open.take() {
+            self.document.market = before.market;
+            self.document.choices = before.choices;
+            self.document.overrides = before.overrides;
+            self.document.fit.as_of = before.fit.as_of;
+        } else if let Some(loaded) = self.runtime.market_source.clone() {
+            self.document.market = loaded;
         }
     }
 

@@ -101,9 +101,21 @@ fn a_bad_file_shows_the_import_report_and_keeps_the_market() {
     )
     .unwrap();
     let mut wb = workbench();
+    // A hand choice made before the failed open must survive it, with the appraisal date.
+    let first = wb.runtime().appraisal.as_ref().unwrap().comparables[0]
+        .listing
+        .line;
+    wb.apply(Command::ExcludeComparable(first));
+    wb.wait_for_jobs();
     let before = indicated(&wb);
+    let before_document = wb.document().clone();
     wb.apply(Command::OpenMarket(bad.clone()));
     wb.wait_for_jobs();
+    assert_eq!(
+        wb.document(),
+        &before_document,
+        "the failed open is undone in full"
+    );
     let failure = wb.runtime().import_failure.as_ref().expect("failure shown");
     assert!(
         failure.error.to_string().contains("line 2"),

@@ -105,7 +105,6 @@ pub struct OlsFit {
     rss: f64,
     tss: f64,
     rows: usize,
-    intercept: bool,
     factor: QrFactor,
 }
 
@@ -217,7 +216,6 @@ impl OlsFit {
             rss: factor.rss(),
             tss,
             rows,
-            intercept,
             factor,
         };
         fit.set_rss(fit.rss);
@@ -234,17 +232,6 @@ impl OlsFit {
             .unscaled_variances()
             .into_iter()
             .map(|v| (s2 * v).sqrt())
-            .collect();
-    }
-
-    /// Scales every standard error by `sd / residual_sd` (used by the robust fit, whose
-    /// coefficient covariance is `sd² (X'X)^-1` with its own scale).
-    pub fn set_coefficient_scale(&mut self, sd: f64) {
-        self.std_errors = self
-            .factor
-            .unscaled_variances()
-            .into_iter()
-            .map(|v| sd * v.sqrt())
             .collect();
     }
 
@@ -296,16 +283,10 @@ impl OlsFit {
         1.0 - self.rss / self.tss
     }
 
-    /// Whether the first coefficient is an intercept.
+    /// The QR factor, for leverage and covariance computations (consumes the fit).
     #[must_use]
-    pub fn has_intercept(&self) -> bool {
-        self.intercept
-    }
-
-    /// The QR factor, for leverage and covariance computations.
-    #[must_use]
-    pub fn factor(&self) -> &QrFactor {
-        &self.factor
+    pub fn into_factor(self) -> QrFactor {
+        self.factor
     }
 
     /// `x' b` for a full design row (including the leading 1 when there is an intercept).

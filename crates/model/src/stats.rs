@@ -61,14 +61,6 @@ pub fn quantile(values: &[f64], q: f64) -> Option<f64> {
     Some(v[lo] + (h - lo as f64) * (v[hi] - v[lo]))
 }
 
-/// Median absolute deviation from the median, scaled by 1/0.6745 to estimate a normal SD.
-#[must_use]
-pub fn mad_sd(values: &[f64]) -> Option<f64> {
-    let m = median(values)?;
-    let dev: Vec<f64> = values.iter().map(|v| (v - m).abs()).collect();
-    median(&dev).map(|d| d / 0.674_489_750_196_081_7)
-}
-
 /// Weighted mean and weighted standard deviation (reliability weights, `V1²/(V1² - V2)` bias
 /// correction); the SD is `None` when fewer than two weights are positive.
 #[must_use]

@@ -254,7 +254,7 @@ impl ValidHedonicParams {
             coefficient_sd = outcome.coefficient_sd;
             iterations = outcome.iterations;
         }
-        let factor = ols.factor().clone();
+        let factor = ols.into_factor();
         let std_errors = factor
             .unscaled_variances()
             .into_iter()
