@@ -50,14 +50,15 @@ fn trade_in_offer_by_hand() {
 fn holding_cost_as_a_rate_on_the_offer() {
     // 7.3 % a year for 45 days is 0.073 × 45 / 365 = 0.009 of the offer.
     // Before holding: 28,800 − 3,750 = 25,050; offer = 25,050 / 1.009 = 24,826.5609…;
-    // holding = 0.009 × offer = 223.4390…; offer + holding = 25,050.
+    // holding = 0.009 × offer = 223.4390…, paid to the cent: 223.44; offer = 25,050 − 223.44
+    // = 24,826.56, so offer + holding = 25,050 exactly as printed.
     let mut inputs = trade_in();
     inputs.holding = HoldingCost::RateOnOffer { annual_pct: 7.3 };
     let o = offer(&inputs).unwrap();
-    assert!((o.offer - 25_050.0 / 1.009).abs() < 1e-6, "{}", o.offer);
     let holding = o.deductions.last().unwrap().amount;
-    assert!((holding - 0.009 * o.offer).abs() < 1e-6);
-    assert!((o.offer + holding - 25_050.0).abs() < 1e-6);
+    assert_eq!(holding, 223.44);
+    assert_eq!(o.offer, 24_826.56);
+    assert!((o.offer + holding - 25_050.0).abs() < 1e-9);
 }
 
 #[test]

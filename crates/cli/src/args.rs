@@ -31,7 +31,7 @@ pub enum Command {
     /// Fit the market: terms, standard errors, R², annual depreciation, import and cleaning summary.
     Fit(MarketArgs),
     /// Appraise a subject: comparables, itemized adjustments, indicated value and band.
-    Appraise(AppraiseArgs),
+    Appraise(Box<AppraiseArgs>),
     /// Depreciation table by variant, variant premiums by age, and the ranking of models in the file.
     Depreciation {
         /// Market options.
@@ -52,6 +52,26 @@ pub enum Command {
         /// Rows to print at each end (human output).
         #[arg(long, default_value_t = 15)]
         top: usize,
+    },
+    /// Print a saved session's report as PDF and/or self-contained HTML.
+    Report {
+        /// The session file.
+        session: PathBuf,
+        /// Write the PDF here.
+        #[arg(long)]
+        pdf: Option<PathBuf>,
+        /// Write the HTML page here.
+        #[arg(long)]
+        html: Option<PathBuf>,
+    },
+    /// List the jurisdiction profiles with each rule and its citation.
+    Profiles {
+        /// A profile file of your own instead of the shipped one.
+        #[arg(long)]
+        profiles: Option<PathBuf>,
+        /// Print JSON instead of a table.
+        #[arg(long)]
+        json: bool,
     },
     /// K-fold cross-validated accuracy of the model and of the comparables method.
     Backtest {
@@ -190,4 +210,35 @@ pub struct AppraiseArgs {
     /// Miles added over the holding period (default: the market's typical pace).
     #[arg(long)]
     pub hold_miles: Option<f64>,
+
+    /// Re-run a saved session: recompute it from its evidence and say whether it reproduces
+    /// the stored value (exit status 2 when it does not). Other market options are ignored.
+    #[arg(long, value_name = "SESSION.ron")]
+    pub session: Option<PathBuf>,
+    /// With --session: also appraise again on the market file as it is now (at its saved
+    /// path, or the FILE given) and show how the value moves.
+    #[arg(long, requires = "session")]
+    pub rerun: bool,
+    /// Save the appraisal as a session file.
+    #[arg(long, value_name = "OUT.ron")]
+    pub save_session: Option<PathBuf>,
+    /// Work a trade-in offer from this worksheet file (RON, see sample-sessions/README.md).
+    #[arg(long, value_name = "TRADE_IN.ron", conflicts_with = "claim")]
+    pub trade_in: Option<PathBuf>,
+    /// Work a total-loss claim from this worksheet file (RON); its profile's filters apply to
+    /// the comparable search.
+    #[arg(long, value_name = "CLAIM.ron")]
+    pub claim: Option<PathBuf>,
+    /// A jurisdiction profile file of your own instead of the shipped one.
+    #[arg(long, value_name = "PROFILES.ron")]
+    pub profiles: Option<PathBuf>,
+    /// The appraiser's name, saved with the session.
+    #[arg(long, default_value = "")]
+    pub appraiser: String,
+    /// Notes saved with the session.
+    #[arg(long, default_value = "")]
+    pub notes: String,
+    /// Keep every listing of the segment in the session (larger file; the fit can be redone).
+    #[arg(long)]
+    pub keep_segment: bool,
 }

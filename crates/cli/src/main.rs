@@ -4,6 +4,7 @@ mod args;
 mod load;
 mod output;
 mod render;
+mod session;
 
 use std::io::Write;
 use std::process::ExitCode;
@@ -33,7 +34,7 @@ const DEMO_SUBJECT: &str =
 fn main() -> ExitCode {
     let cli = Cli::parse();
     match run(cli) {
-        Ok(()) => ExitCode::SUCCESS,
+        Ok(code) => code,
         Err(e) => {
             // One line: the outermost context and each cause, most specific last.
             let chain: Vec<String> = e.chain().map(ToString::to_string).collect();
@@ -43,9 +44,9 @@ fn main() -> ExitCode {
     }
 }
 
-fn run(cli: Cli) -> Result<()> {
+fn run(cli: Cli) -> Result<ExitCode> {
     let command = cli.command.unwrap_or_else(|| {
-        Command::Appraise(AppraiseArgs {
+        Command::Appraise(Box::new(AppraiseArgs {
             market: default_market_args(),
             subject: None,
             level: 0.8,
@@ -60,12 +61,31 @@ fn run(cli: Cli) -> Result<()> {
             adjust: Vec::new(),
             hold_months: Some(6.0),
             hold_miles: None,
-        })
+            session: None,
+            rerun: false,
+            save_session: None,
+            trade_in: None,
+            claim: None,
+            profiles: None,
+            appraiser: String::new(),
+            notes: String::new(),
+            keep_segment: false,
+        }))
     });
     match command {
         Command::DemoMarket { rows, seed, out } => demo_market(rows, seed, &out),
         Command::Fit(args) => fit(&args),
-        Command::Appraise(args) => appraise_command(&args),
+        Command::Appraise(args) => {
+            if let Some(path) = &args.session {
+                // Exit status 2 says "read fine, but does not reproduce".
+                return Ok(if session::check(&args, path)? {
+                    ExitCode::SUCCESS
+                } else {
+                    ExitCode::from(2)
+                });
+            }
+            appraise_command(&args)
+        }
         Command::Depreciation { market, max_age } => depreciation(&market, max_age),
         Command::Gaps { market, level, top } => gaps(&market, level, top),
         Command::Backtest {
@@ -74,7 +94,14 @@ fn run(cli: Cli) -> Result<()> {
             level,
             comparable_subjects,
         } => backtest_command(&market, folds, level, comparable_subjects),
-    }
+        Command::Report {
+            session: path,
+            pdf,
+            html,
+        } => session::report(&path, pdf.as_deref(), html.as_deref()),
+        Command::Profiles { profiles, json } => session::profiles(profiles.as_deref(), json),
+    }?;
+    Ok(ExitCode::SUCCESS)
 }
 
 fn default_market_args() -> MarketArgs {
@@ -217,7 +244,22 @@ fn appraise_command(args: &AppraiseArgs) -> Result<()> {
         .iter()
         .map(|s| parse_adjustment(s))
         .collect::<Result<_>>()?;
+    let purpose = session::purpose(args, &mut request)?;
     let appraisal = appraise(&loaded.market, &fit, &request)?;
+    let worked = model::session::work_out(&purpose, &appraisal, &request)?;
+    if let Some(out) = &args.save_session {
+        session::save(
+            args,
+            out,
+            &session::SaveInputs {
+                loaded: &loaded,
+                fit: &fit,
+                request: &request,
+                appraisal: &appraisal,
+                purpose: &purpose,
+            },
+        )?;
+    }
     let forecast = args
         .hold_months
         .map(|months| {
@@ -237,6 +279,7 @@ fn appraise_command(args: &AppraiseArgs) -> Result<()> {
         indicated_value: appraisal.reconciliation.indicated_value,
         value_band: appraisal.reconciliation.value_band,
         appraisal,
+        worksheet: worked.worksheet,
         forecast,
         cautions: model::cautions::CAUTIONS.to_vec(),
     };

@@ -120,6 +120,8 @@ pub struct AppraisalDocument {
     pub appraisal: Appraisal,
     pub indicated_value: f64,
     pub value_band: model::ols::Interval,
+    /// The trade-in offer or claim settlement, when one was asked for.
+    pub worksheet: Option<model::session::WorksheetOutcome>,
     pub forecast: Option<Forecast>,
     pub cautions: Vec<&'static str>,
 }

@@ -185,11 +185,95 @@ pub fn appraisal(doc: &AppraisalDocument) -> String {
             }
         );
     }
+    if let Some(w) = &doc.worksheet {
+        worksheet(&mut o, w);
+    }
     let _ = writeln!(o);
     for c in &doc.cautions {
         let _ = writeln!(o, "Caution: {c}");
     }
     o
+}
+
+fn amount_line(o: &mut String, label: &str, amount: f64) {
+    let _ = writeln!(
+        o,
+        "  {label:<58} {:>12}",
+        model::format::signed_cents(amount)
+    );
+}
+
+/// The trade-in offer or the claim, every part on its own line.
+fn worksheet(o: &mut String, w: &model::session::WorksheetOutcome) {
+    use model::session::WorksheetOutcome;
+    let _ = writeln!(o);
+    match w {
+        WorksheetOutcome::TradeIn { offer, sensitivity } => {
+            let _ = writeln!(o, "Trade-in offer");
+            amount_line(o, "expected retail value", offer.retail_value);
+            amount_line(
+                o,
+                "expected sale after the list-to-sale discount",
+                offer.expected_sale,
+            );
+            for d in &offer.deductions {
+                amount_line(o, &format!("less {}", d.label), -d.amount);
+            }
+            let _ = writeln!(
+                o,
+                "  {:<58} {:>12}",
+                "ACV offer",
+                model::format::cents(offer.offer)
+            );
+            let days: Vec<String> = sensitivity
+                .by_days
+                .iter()
+                .map(|(d, v)| format!("{d:.0} days {}", money(*v)))
+                .collect();
+            let _ = writeln!(o, "  offer by days to sell: {}", days.join(", "));
+            let [low, mid, high] = sensitivity.by_value;
+            let _ = writeln!(
+                o,
+                "  offer across the value band: {} at {}, {} at {}, {} at {}",
+                money(low.1),
+                money(low.0),
+                money(mid.1),
+                money(mid.0),
+                money(high.1),
+                money(high.0)
+            );
+        }
+        WorksheetOutcome::Claim(c) => {
+            let _ = writeln!(o, "Total-loss settlement ({})", c.check.profile_id);
+            amount_line(o, "actual cash value", c.acv);
+            for l in &c.itemized_in_acv {
+                amount_line(o, &format!("  of which itemized: {}", l.label), l.amount);
+            }
+            for l in &c.settlement.additions {
+                amount_line(o, &format!("plus {}", l.label), l.amount);
+            }
+            for l in &c.settlement.deductions {
+                amount_line(o, &format!("less {}", l.label), -l.amount);
+            }
+            let _ = writeln!(
+                o,
+                "  {:<58} {:>12}",
+                "settlement payment",
+                model::format::cents(c.settlement.payment)
+            );
+            for n in &c.not_paid {
+                let _ = writeln!(o, "  not paid: {} ({})", n.label, n.citation);
+            }
+            let _ = writeln!(o, "Total-loss test: {}", c.verdict.explanation);
+            let _ = writeln!(o, "  rule: {}", c.total_loss_citation);
+            let _ = writeln!(o, "Comparables against the profile: {}", c.check.summary());
+            for (i, cc) in c.check.comparables.iter().enumerate() {
+                for b in &cc.breaks {
+                    let _ = writeln!(o, "  comparable {} (line {}): {b}", i + 1, cc.line);
+                }
+            }
+        }
+    }
 }
 
 /// One comparable: identity and source, broken rules, every adjustment line, totals and weight.

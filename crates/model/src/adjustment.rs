@@ -108,70 +108,106 @@ pub fn model_lines(
     row: usize,
     subject: &SubjectTerms,
 ) -> Vec<AdjustmentLine> {
-    let price = market.asking_price[row];
     let as_of_year = model.as_of_year();
-    let line = |kind, log_change: f64, basis: String| AdjustmentLine {
-        kind,
-        amount: price * (log_change.exp() - 1.0),
-        basis,
-    };
-    let mut lines = Vec::with_capacity(4);
-
-    let d_miles = subject.miles - market.miles[row];
-    let slope = model.miles_slope();
-    lines.push(line(
-        AdjustmentKind::Mileage,
-        slope * d_miles,
-        format!(
-            "fitted {:+.2} % per 10,000 mi × ({} − {}) mi",
-            100.0 * ((slope * 10_000.0).exp() - 1.0),
-            thousands(subject.miles),
-            thousands(market.miles[row])
-        ),
-    ));
-
     let (age_s, age_c) = (
         age_years(subject.model_year, as_of_year),
         age_years(market.model_year[row], as_of_year),
     );
-    let d_age = model.age_effect(age_s) - model.age_effect(age_c);
-    lines.push(line(
-        AdjustmentKind::ModelYear,
-        d_age,
-        format!(
-            "fitted age curve: model year {} vs {} ({:+.1} %)",
-            subject.model_year,
-            market.model_year[row],
-            100.0 * (d_age.exp() - 1.0)
-        ),
-    ));
-
-    let d_variant =
-        model.variant_effect(subject.variant) - model.variant_effect(market.variant[row]);
-    lines.push(line(
-        AdjustmentKind::Variant,
-        d_variant,
-        format!(
-            "fitted variant terms: {} vs {} ({:+.1} %)",
+    grid_lines(&GridInputs {
+        price: market.asking_price[row],
+        miles_slope: model.miles_slope(),
+        miles: (subject.miles, market.miles[row]),
+        model_year: (subject.model_year, market.model_year[row]),
+        age_log_change: model.age_effect(age_s) - model.age_effect(age_c),
+        variant: (
             variant_label(market, subject.variant),
             market.variant_name(row),
-            100.0 * (d_variant.exp() - 1.0)
         ),
-    ));
+        variant_log_change: model.variant_effect(subject.variant)
+            - model.variant_effect(market.variant[row]),
+        condition: (subject.condition, market.condition[row]),
+        condition_log_change: model.condition_effect(subject.condition)
+            - model.condition_effect(market.condition[row]),
+    })
+}
 
-    let d_condition =
-        model.condition_effect(subject.condition) - model.condition_effect(market.condition[row]);
-    lines.push(line(
-        AdjustmentKind::Condition,
-        d_condition,
-        format!(
-            "fitted condition terms: {} vs {} ({:+.1} %)",
-            subject.condition,
-            market.condition[row],
-            100.0 * (d_condition.exp() - 1.0)
+/// Everything one comparable's model lines are computed from: each pair is (subject,
+/// comparable), each log change is the fitted effect of the subject's value minus the
+/// comparable's.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct GridInputs<'a> {
+    /// The comparable's asking price.
+    pub price: f64,
+    /// Fitted change in ln price per mile.
+    pub miles_slope: f64,
+    /// Odometers.
+    pub miles: (f64, f64),
+    /// Model years.
+    pub model_year: (i32, i32),
+    /// Fitted age effect difference.
+    pub age_log_change: f64,
+    /// Variant labels.
+    pub variant: (&'a str, &'a str),
+    /// Fitted variant effect difference.
+    pub variant_log_change: f64,
+    /// Condition classes.
+    pub condition: (Condition, Condition),
+    /// Fitted condition effect difference.
+    pub condition_log_change: f64,
+}
+
+/// The four model lines (mileage, model year, variant, condition) from their inputs; the one
+/// place the grid's arithmetic and wording live, used for a live fit and for a saved session.
+#[must_use]
+pub fn grid_lines(g: &GridInputs<'_>) -> Vec<AdjustmentLine> {
+    let line = |kind, log_change: f64, basis: String| AdjustmentLine {
+        kind,
+        amount: g.price * (log_change.exp() - 1.0),
+        basis,
+    };
+    let d_miles = g.miles.0 - g.miles.1;
+    vec![
+        line(
+            AdjustmentKind::Mileage,
+            g.miles_slope * d_miles,
+            format!(
+                "fitted {:+.2} % per 10,000 mi × ({} − {}) mi",
+                100.0 * ((g.miles_slope * 10_000.0).exp() - 1.0),
+                thousands(g.miles.0),
+                thousands(g.miles.1)
+            ),
         ),
-    ));
-    lines
+        line(
+            AdjustmentKind::ModelYear,
+            g.age_log_change,
+            format!(
+                "fitted age curve: model year {} vs {} ({:+.1} %)",
+                g.model_year.0,
+                g.model_year.1,
+                100.0 * (g.age_log_change.exp() - 1.0)
+            ),
+        ),
+        line(
+            AdjustmentKind::Variant,
+            g.variant_log_change,
+            format!(
+                "fitted variant terms: {} vs {} ({:+.1} %)",
+                g.variant.0,
+                g.variant.1,
+                100.0 * (g.variant_log_change.exp() - 1.0)
+            ),
+        ),
+        line(
+            AdjustmentKind::Condition,
+            g.condition_log_change,
+            format!(
+                "fitted condition terms: {} vs {} ({:+.1} %)",
+                g.condition.0,
+                g.condition.1,
+                100.0 * (g.condition_log_change.exp() - 1.0)
+            ),
+        ),
+    ]
 }
 
 fn variant_label(market: &Market, variant: NameId) -> &str {

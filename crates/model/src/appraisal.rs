@@ -188,6 +188,59 @@ impl AppraisalRequest {
     }
 }
 
+impl AdjustedComparable {
+    /// A comparable with its grid totalled (weight 0 until reconciled).
+    #[must_use]
+    pub fn new(
+        listing: Listing,
+        days_listed: Option<i64>,
+        gower_distance: f64,
+        manual: bool,
+        rule_breaks: Vec<RuleBreak>,
+        adjustments: Vec<AdjustmentLine>,
+    ) -> Self {
+        let price = listing.asking_price;
+        let (net, gross) = net_and_gross(&adjustments);
+        Self {
+            listing,
+            days_listed,
+            gower_distance,
+            similarity: 1.0 - gower_distance,
+            manual,
+            rule_breaks,
+            adjustments,
+            net_adjustment: net,
+            gross_adjustment: gross,
+            net_pct: 100.0 * net.abs() / price,
+            gross_pct: 100.0 * gross / price,
+            adjusted_price: price + net,
+            weight: 0.0,
+        }
+    }
+}
+
+/// Reconciles adjusted comparables with the model's estimate and writes each one's weight.
+pub fn reconcile_comparables(
+    comparables: &mut [AdjustedComparable],
+    model_estimate: &ValueEstimate,
+    model_df: f64,
+    level: f64,
+) -> Reconciliation {
+    let inputs: Vec<ReconcileInput> = comparables
+        .iter()
+        .map(|c| ReconcileInput {
+            adjusted_price: c.adjusted_price,
+            similarity: c.similarity,
+            gross_fraction: c.gross_pct / 100.0,
+        })
+        .collect();
+    let reconciliation = reconcile(&inputs, model_estimate, model_df, level);
+    for (c, w) in comparables.iter_mut().zip(&reconciliation.weights) {
+        c.weight = *w;
+    }
+    reconciliation
+}
+
 /// A comparable with its adjustment grid and weight.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct AdjustedComparable {
@@ -330,42 +383,22 @@ pub fn appraise_among(
         .map(|c| {
             let mut adjustments = model_lines(&fit.model, market, c.row, &terms);
             adjustments.extend(user_lines(&request.user_adjustments, market.line[c.row]));
-            let price = market.asking_price[c.row];
-            let (net, gross) = net_and_gross(&adjustments);
-            AdjustedComparable {
-                listing: market.listing(c.row),
-                days_listed: market.listed_on[c.row].map(|d| (fit.as_of - d).num_days()),
-                gower_distance: c.gower_distance,
-                similarity: 1.0 - c.gower_distance,
-                manual: c.manual,
-                rule_breaks: c.breaks.clone(),
+            AdjustedComparable::new(
+                market.listing(c.row),
+                market.listed_on[c.row].map(|d| (fit.as_of - d).num_days()),
+                c.gower_distance,
+                c.manual,
+                c.breaks.clone(),
                 adjustments,
-                net_adjustment: net,
-                gross_adjustment: gross,
-                net_pct: 100.0 * net.abs() / price,
-                gross_pct: 100.0 * gross / price,
-                adjusted_price: price + net,
-                weight: 0.0,
-            }
+            )
         })
         .collect();
-    let inputs: Vec<ReconcileInput> = comparables
-        .iter()
-        .map(|c| ReconcileInput {
-            adjusted_price: c.adjusted_price,
-            similarity: c.similarity,
-            gross_fraction: c.gross_pct / 100.0,
-        })
-        .collect();
-    let reconciliation = reconcile(
-        &inputs,
+    let reconciliation = reconcile_comparables(
+        &mut comparables,
         &model_estimate,
         fit.model.df_residual() as f64,
         request.level,
     );
-    for (c, w) in comparables.iter_mut().zip(&reconciliation.weights) {
-        c.weight = *w;
-    }
     Ok(Appraisal {
         subject: request.subject.clone(),
         as_of: fit.as_of,

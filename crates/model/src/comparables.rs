@@ -127,7 +127,7 @@ impl Default for ComparableRules {
 
 /// A hard filter a listing fails.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-#[serde(tag = "rule", rename_all = "snake_case")]
+#[serde(rename_all = "snake_case")]
 pub enum RuleBreak {
     /// Model year outside the window.
     ModelYearOutsideWindow {
@@ -634,4 +634,25 @@ fn gower_to_subject(
         ),
     ];
     gower_distance(&parts).unwrap_or(1.0)
+}
+
+impl std::fmt::Display for MileageRule {
+    /// "at most the greater of 4,000 mi or 10 % above the subject; no limit below".
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        use crate::format::thousands;
+        let side = |a: Option<Allowance>, which: &str| match a {
+            Some(a) => format!(
+                "at most the greater of {} mi or {} % {which} the subject",
+                thousands(a.miles),
+                a.percent
+            ),
+            None => format!("no limit {which}"),
+        };
+        write!(
+            f,
+            "{}; {}",
+            side(self.max_over, "above"),
+            side(self.max_under, "below")
+        )
+    }
 }

@@ -36,6 +36,26 @@ pub fn signed_money(value: f64) -> String {
     }
 }
 
+/// 22708.674 → "$22,708.67"; -1000 → "-$1,000.00": worksheet amounts, paid to the cent.
+#[must_use]
+pub fn cents(value: f64) -> String {
+    let total = (value * 100.0).round();
+    let sign = if total < 0.0 { "-" } else { "" };
+    let whole = (total.abs() / 100.0).trunc();
+    let rest = total.abs() - whole * 100.0;
+    format!("{sign}${}.{:02}", thousands(whole), rest as u64)
+}
+
+/// As [`cents`] with a "+" on positive amounts.
+#[must_use]
+pub fn signed_cents(value: f64) -> String {
+    if (value * 100.0).round() > 0.0 {
+        format!("+{}", cents(value))
+    } else {
+        cents(value)
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -51,5 +71,9 @@ mod tests {
         assert_eq!(money(-812.0), "-$812");
         assert_eq!(signed_money(812.0), "+$812");
         assert_eq!(signed_money(0.2), "$0");
+        assert_eq!(cents(22_708.674), "$22,708.67");
+        assert_eq!(cents(-1000.0), "-$1,000.00");
+        assert_eq!(cents(0.005), "$0.01");
+        assert_eq!(signed_cents(12.5), "+$12.50");
     }
 }

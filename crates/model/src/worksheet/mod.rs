@@ -2,9 +2,16 @@
 //! settlement. Pure arithmetic with every part shown, so the worksheet can be printed and
 //! checked by hand.
 
+mod claim;
+mod profile;
 mod total_loss;
 mod trade_in;
 
+pub use claim::{ClaimInputs, ClaimWorksheet, NotPaid, claim};
+pub use profile::{
+    Cited, ComparableCheck, JurisdictionProfile, PROFILES_FORMAT_VERSION, ProfileCheck,
+    ProfileError, ProfileFile, RegistrationPaid, SHIPPED_PROFILES, shipped_profiles,
+};
 pub use total_loss::{
     Boundary, Settlement, SettlementInputs, TotalLossRule, TotalLossVerdict, settle,
     total_loss_test,
@@ -20,4 +27,11 @@ pub struct Line {
     pub label: String,
     /// Amount in currency (deductions positive; the worksheet says which way it goes).
     pub amount: f64,
+}
+
+/// Rounds an amount to the cent: every worksheet line is a payable amount, and the bottom line
+/// is the sum of the lines as printed.
+#[must_use]
+pub fn to_cents(amount: f64) -> f64 {
+    (amount * 100.0).round() / 100.0
 }

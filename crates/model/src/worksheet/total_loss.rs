@@ -9,8 +9,9 @@
 
 use serde::{Deserialize, Serialize};
 
-use super::Line;
 use super::trade_in::WorksheetError;
+use super::{Line, to_cents};
+use crate::format::cents;
 
 /// Whether reaching the threshold exactly makes a total loss.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
@@ -33,7 +34,7 @@ impl Boundary {
 
 /// The jurisdiction's total-loss rule.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
-#[serde(tag = "kind", rename_all = "snake_case")]
+#[serde(rename_all = "snake_case")]
 pub enum TotalLossRule {
     /// Repair cost as a percentage of ACV against a threshold.
     Percentage {
@@ -108,7 +109,9 @@ pub fn total_loss_test(
                 measure,
                 threshold: threshold_pct,
                 explanation: format!(
-                    "repair {repair_estimate:.2} is {measure:.2} % of ACV {acv:.2}; total loss when {} {threshold_pct} %: {}",
+                    "repair {} is {measure:.2} % of ACV {}; total loss when {} {threshold_pct} %: {}",
+                    cents(repair_estimate),
+                    cents(acv),
                     sign(boundary),
                     if total_loss { "yes" } else { "no" }
                 ),
@@ -122,8 +125,12 @@ pub fn total_loss_test(
                 measure,
                 threshold: acv,
                 explanation: format!(
-                    "repair {repair_estimate:.2} + salvage {salvage_value:.2} = {measure:.2}; total loss when {} ACV {acv:.2}: {}",
+                    "repair {} + salvage {} = {}; total loss when {} ACV {}: {}",
+                    cents(repair_estimate),
+                    cents(salvage_value),
+                    cents(measure),
                     sign(boundary),
+                    cents(acv),
                     if total_loss { "yes" } else { "no" }
                 ),
             }
@@ -194,38 +201,63 @@ pub fn settle(inputs: &SettlementInputs) -> Result<Settlement, WorksheetError> {
             why: "0 to 12 months",
         });
     }
+    // The ACV is paid to the cent; each line is rounded and the payment is their sum.
+    let acv = to_cents(inputs.acv);
     let additions = vec![
         Line {
             label: format!("sales tax {} %", inputs.sales_tax_pct),
-            amount: inputs.acv * inputs.sales_tax_pct / 100.0,
+            amount: to_cents(acv * inputs.sales_tax_pct / 100.0),
         },
         Line {
             label: "title and transfer fees".into(),
-            amount: inputs.title_and_transfer_fees,
+            amount: to_cents(inputs.title_and_transfer_fees),
         },
         Line {
             label: format!(
                 "registration, {} of 12 months remaining",
                 inputs.registration_months_remaining
             ),
-            amount: inputs.annual_registration * inputs.registration_months_remaining / 12.0,
+            amount: to_cents(
+                inputs.annual_registration * inputs.registration_months_remaining / 12.0,
+            ),
         },
     ];
     let mut deductions = vec![Line {
         label: "deductible".into(),
-        amount: inputs.deductible,
+        amount: to_cents(inputs.deductible),
     }];
     if let Some(salvage) = inputs.owner_retains_salvage {
         deductions.push(Line {
             label: "salvage retained by the owner".into(),
-            amount: salvage,
+            amount: to_cents(salvage),
         });
     }
-    let payment = inputs.acv + additions.iter().map(|l| l.amount).sum::<f64>()
-        - deductions.iter().map(|l| l.amount).sum::<f64>();
+    let payment = to_cents(
+        acv + additions.iter().map(|l| l.amount).sum::<f64>()
+            - deductions.iter().map(|l| l.amount).sum::<f64>(),
+    );
     Ok(Settlement {
         additions,
         deductions,
         payment,
     })
+}
+
+impl std::fmt::Display for TotalLossRule {
+    /// "repair ≥ 75 % of ACV" or "repair + salvage ≥ ACV".
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let sign = |b: Boundary| match b {
+            Boundary::AtLeast => "≥",
+            Boundary::GreaterThan => ">",
+        };
+        match *self {
+            TotalLossRule::Percentage {
+                threshold_pct,
+                boundary,
+            } => write!(f, "repair {} {threshold_pct} % of ACV", sign(boundary)),
+            TotalLossRule::Formula { boundary } => {
+                write!(f, "repair + salvage {} ACV", sign(boundary))
+            }
+        }
+    }
 }

@@ -4,7 +4,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use super::Line;
+use super::{Line, to_cents};
 
 /// Why a worksheet cannot be computed.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -23,7 +23,7 @@ pub enum WorksheetError {
 
 /// How holding the unit until it sells is costed.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
-#[serde(tag = "kind", rename_all = "snake_case")]
+#[serde(rename_all = "snake_case")]
 pub enum HoldingCost {
     /// A fixed amount per day held.
     PerDay {
@@ -40,9 +40,12 @@ pub enum HoldingCost {
 /// The trade-in worksheet's inputs.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct TradeInInputs {
-    /// Expected retail asking value (the appraisal's indicated value, or an edited one).
+    /// Expected retail asking value (the appraisal's indicated value, or an edited one; may be
+    /// left out of a worksheet file, where the indicated value is used).
+    #[serde(default)]
     pub retail_value: f64,
     /// Why the retail value was edited, if it was.
+    #[serde(default)]
     pub retail_value_note: Option<String>,
     /// Expected discount from list to sale, percent.
     pub list_to_sale_discount_pct: f64,
@@ -123,39 +126,40 @@ pub fn offer(inputs: &TradeInInputs) -> Result<TradeInOffer, WorksheetError> {
     for line in &inputs.recon {
         check("recon", line.amount, 1e8, "a non-negative amount")?;
     }
-    let expected_sale = inputs.retail_value * (1.0 - inputs.list_to_sale_discount_pct / 100.0);
+    let expected_sale =
+        to_cents(inputs.retail_value * (1.0 - inputs.list_to_sale_discount_pct / 100.0));
     let mut deductions: Vec<Line> = inputs
         .recon
         .iter()
         .map(|l| Line {
             label: format!("recon: {}", l.label),
-            amount: l.amount,
+            amount: to_cents(l.amount),
         })
         .collect();
     deductions.push(Line {
         label: "transport and fees".into(),
-        amount: inputs.transport_and_fees,
+        amount: to_cents(inputs.transport_and_fees),
     });
     deductions.push(Line {
         label: "pack".into(),
-        amount: inputs.pack,
+        amount: to_cents(inputs.pack),
     });
     deductions.push(Line {
         label: "target front gross".into(),
-        amount: inputs.target_front_gross,
+        amount: to_cents(inputs.target_front_gross),
     });
     let before_holding = expected_sale - deductions.iter().map(|l| l.amount).sum::<f64>();
     let (offer, holding) = match inputs.holding {
         HoldingCost::PerDay { amount } => {
             check("holding per day", amount, 1e6, "a non-negative amount")?;
-            let holding = amount * inputs.days_to_sell;
+            let holding = to_cents(amount * inputs.days_to_sell);
             (before_holding - holding, holding)
         }
         HoldingCost::RateOnOffer { annual_pct } => {
             check("holding rate", annual_pct, 100.0, "0 to 100 % a year")?;
             let factor = annual_pct / 100.0 * inputs.days_to_sell / 365.0;
-            let offer = before_holding / (1.0 + factor);
-            (offer, offer * factor)
+            let holding = to_cents(before_holding / (1.0 + factor) * factor);
+            (before_holding - holding, holding)
         }
     };
     deductions.push(Line {
@@ -166,7 +170,7 @@ pub fn offer(inputs: &TradeInInputs) -> Result<TradeInOffer, WorksheetError> {
         retail_value: inputs.retail_value,
         expected_sale,
         deductions,
-        offer,
+        offer: to_cents(offer),
     })
 }
 

@@ -1,0 +1,137 @@
+//! The fitted rates an appraisal's adjustment grid used, kept with a saved session so the grid
+//! can be recomputed line by line without the market file or the fit.
+
+use std::collections::BTreeMap;
+
+use serde::{Deserialize, Serialize};
+
+use crate::adjustment::{AdjustmentLine, GridInputs, grid_lines};
+use crate::appraisal::{Appraisal, MarketFit};
+use crate::condition::Condition;
+use crate::hedonic::age_years;
+use crate::market::{Listing, Market};
+use crate::subject::Subject;
+
+/// Label of a listing or subject without a variant, as the grid prints it.
+pub const NO_VARIANT: &str = "(no variant)";
+
+/// The part of a fitted model an adjustment grid reads: effects in ln price.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct FittedRates {
+    /// Change in ln price per mile.
+    pub miles_slope: f64,
+    /// Fitted age effect for each model year the grid needs (at the appraisal's date).
+    pub model_year_effects: BTreeMap<i32, f64>,
+    /// Fitted effect of each variant the model knows, by its label.
+    pub variant_effects: BTreeMap<String, f64>,
+    /// Fitted effect of each condition class the model knows.
+    pub condition_effects: BTreeMap<Condition, f64>,
+    /// Residual degrees of freedom of the fit (the model band's t quantile uses them).
+    pub df_residual: f64,
+}
+
+/// Why the stored rates cannot adjust a comparable.
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+pub enum RatesError {
+    /// No age effect stored for this model year.
+    #[error("the saved fit has no rate for model year {0}")]
+    ModelYear(i32),
+    /// No effect stored for this variant.
+    #[error("the saved fit has no rate for variant \"{0}\"")]
+    Variant(String),
+    /// No effect stored for this condition.
+    #[error("the saved fit has no rate for condition \"{0}\"")]
+    Condition(Condition),
+}
+
+fn variant_label(variant: Option<&str>) -> &str {
+    variant.unwrap_or(NO_VARIANT)
+}
+
+impl FittedRates {
+    /// The rates of `fit` that `appraisal`'s subject and comparables need.
+    #[must_use]
+    pub fn of(market: &Market, fit: &MarketFit, appraisal: &Appraisal) -> Self {
+        let model = &fit.model;
+        let as_of_year = model.as_of_year();
+        let years = std::iter::once(appraisal.subject.model_year)
+            .chain(appraisal.comparables.iter().map(|c| c.listing.model_year));
+        let model_year_effects = years
+            .map(|y| (y, model.age_effect(age_years(y, as_of_year))))
+            .collect();
+        let design = model.design();
+        let variant_effects = design
+            .variants
+            .iter()
+            .map(|&v| {
+                let label = if v == crate::vocabulary::NO_NAME {
+                    NO_VARIANT.to_owned()
+                } else {
+                    market.names.name(v).to_owned()
+                };
+                (label, model.variant_effect(v))
+            })
+            .collect();
+        let condition_effects = Condition::ALL
+            .into_iter()
+            .filter(|c| design.knows_condition(*c))
+            .map(|c| (c, model.condition_effect(c)))
+            .collect();
+        Self {
+            miles_slope: model.miles_slope(),
+            model_year_effects,
+            variant_effects,
+            condition_effects,
+            df_residual: model.df_residual() as f64,
+        }
+    }
+
+    fn year(&self, year: i32) -> Result<f64, RatesError> {
+        self.model_year_effects
+            .get(&year)
+            .copied()
+            .ok_or(RatesError::ModelYear(year))
+    }
+
+    fn variant(&self, label: &str) -> Result<f64, RatesError> {
+        self.variant_effects
+            .iter()
+            .find(|(k, _)| k.eq_ignore_ascii_case(label))
+            .map(|(_, v)| *v)
+            .ok_or_else(|| RatesError::Variant(label.to_owned()))
+    }
+
+    fn condition(&self, condition: Condition) -> Result<f64, RatesError> {
+        self.condition_effects
+            .get(&condition)
+            .copied()
+            .ok_or(RatesError::Condition(condition))
+    }
+
+    /// The model lines that adjust `comparable` to `subject`, exactly as the live grid
+    /// computes them.
+    pub fn lines(
+        &self,
+        subject: &Subject,
+        comparable: &Listing,
+    ) -> Result<Vec<AdjustmentLine>, RatesError> {
+        let (vs, vc) = (
+            variant_label(subject.variant.as_deref()),
+            variant_label(comparable.variant.as_deref()),
+        );
+        // Labels as the live grid writes them: the market's spelling for the comparable and
+        // the subject's own when it has one.
+        Ok(grid_lines(&GridInputs {
+            price: comparable.asking_price,
+            miles_slope: self.miles_slope,
+            miles: (subject.miles, comparable.miles),
+            model_year: (subject.model_year, comparable.model_year),
+            age_log_change: self.year(subject.model_year)? - self.year(comparable.model_year)?,
+            variant: (vs, vc),
+            variant_log_change: self.variant(vs)? - self.variant(vc)?,
+            condition: (subject.condition, comparable.condition),
+            condition_log_change: self.condition(subject.condition)?
+                - self.condition(comparable.condition)?,
+        }))
+    }
+}

@@ -1,0 +1,164 @@
+//! The session file: one appraisal with its evidence, saved as human-readable RON.
+//!
+//! A session holds what is needed to defend and reproduce the value without the market file:
+//! every comparable with every field, each adjustment line with its basis, the fitted rates the
+//! grid used, the model's estimate for the subject, the settings, the worksheet inputs and the
+//! result. Reopening recomputes the grid, the reconciliation and the worksheet from that
+//! evidence ([`reproduce`]) and compares them with the stored result.
+
+mod file;
+mod outcome;
+mod replay;
+
+pub use file::{
+    SESSION_FORMAT_VERSION, SessionError, parse_session, read_session, session_to_ron,
+    write_atomically, write_session,
+};
+pub use outcome::{
+    Outcome, Purpose, SENSITIVITY_DAYS, WorksheetOutcome, itemized_deductions, trade_in_inputs,
+    work_out,
+};
+pub use replay::{Difference, Reproduction, reproduce};
+
+use chrono::{DateTime, Utc};
+use serde::{Deserialize, Serialize};
+
+use crate::appraisal::{Appraisal, AppraisalRequest, FitSettings, MarketFit};
+use crate::clean::Overrides;
+use crate::hedonic::AnnualDepreciation;
+use crate::market::{Listing, Market, MarketSource};
+use crate::rates::FittedRates;
+use crate::worksheet::WorksheetError;
+
+/// The market an appraisal was made on.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct MarketRecord {
+    /// File name, row count and content hash of the market file.
+    pub source: MarketSource,
+    /// Where the file was when the session was saved (may have moved since).
+    pub path: Option<String>,
+    /// The segment appraised ("Quellmark Tessel").
+    pub segment: String,
+    /// Listings of the segment in the file.
+    pub segment_rows: usize,
+}
+
+/// The fit the grid came from.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct FitRecord {
+    /// Fit and cleaning settings.
+    pub settings: FitSettings,
+    /// Manual overrides of the cleaning rules, by file line.
+    pub overrides: Overrides,
+    /// Listings the fit used.
+    pub rows_used: usize,
+    /// R² of the fit.
+    pub r_squared: f64,
+    /// Residual SD of ln price.
+    pub residual_sd: f64,
+    /// Fitted annual depreciation over five years.
+    pub annual_depreciation: AnnualDepreciation,
+    /// The rates the grid used.
+    pub rates: FittedRates,
+}
+
+/// Who made the appraisal and when.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Authorship {
+    /// The appraiser's name.
+    pub appraiser: String,
+    /// First saved.
+    pub created: DateTime<Utc>,
+    /// Last saved.
+    pub saved: DateTime<Utc>,
+    /// Free notes.
+    pub notes: String,
+}
+
+/// One appraisal with its evidence.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Session {
+    /// Format version; see [`SESSION_FORMAT_VERSION`].
+    pub format_version: u32,
+    /// Who and when.
+    pub authorship: Authorship,
+    /// The market.
+    pub market: MarketRecord,
+    /// The fit.
+    pub fit: FitRecord,
+    /// Subject, comparable rules and choices, the appraiser's adjustment lines, the level.
+    pub request: AppraisalRequest,
+    /// The appraisal: model estimate, comparables with every field and line, reconciliation.
+    pub appraisal: Appraisal,
+    /// What the value is for, with the worksheet's inputs.
+    pub purpose: Purpose,
+    /// The result as saved.
+    pub result: Outcome,
+    /// Optionally, every listing of the segment (so the fit itself can be redone).
+    #[serde(default)]
+    pub segment_listings: Option<Vec<Listing>>,
+}
+
+/// Everything [`Session::capture`] records.
+#[derive(Debug, Clone, Copy)]
+pub struct Capture<'a> {
+    /// The market.
+    pub market: &'a Market,
+    /// Where its file was, if it came from one.
+    pub market_path: Option<&'a str>,
+    /// The fit.
+    pub fit: &'a MarketFit,
+    /// Settings the fit used.
+    pub settings: &'a FitSettings,
+    /// Overrides the fit used.
+    pub overrides: &'a Overrides,
+    /// The request.
+    pub request: &'a AppraisalRequest,
+    /// The appraisal made from it.
+    pub appraisal: &'a Appraisal,
+    /// The purpose and worksheet inputs.
+    pub purpose: &'a Purpose,
+    /// Keep every listing of the segment in the file.
+    pub keep_segment: bool,
+}
+
+impl Session {
+    /// Records an appraisal as a session; the result is worked out from the same evidence a
+    /// reopened session uses, so saving and reopening agree by construction.
+    pub fn capture(c: &Capture<'_>, authorship: Authorship) -> Result<Self, WorksheetError> {
+        let rates = FittedRates::of(c.market, c.fit, c.appraisal);
+        let result = work_out(c.purpose, c.appraisal, c.request)?;
+        let segment_rows = c.fit.cleaning.rows.len();
+        Ok(Self {
+            format_version: SESSION_FORMAT_VERSION,
+            authorship,
+            market: MarketRecord {
+                source: c.market.source.clone(),
+                path: c.market_path.map(str::to_owned),
+                segment: c.market.segment_name(c.fit.segment),
+                segment_rows,
+            },
+            fit: FitRecord {
+                settings: *c.settings,
+                overrides: c.overrides.clone(),
+                rows_used: c.fit.model.rows(),
+                r_squared: c.fit.model.r_squared(),
+                residual_sd: c.fit.model.residual_sd(),
+                annual_depreciation: c.fit.model.annual_depreciation(5),
+                rates,
+            },
+            request: c.request.clone(),
+            appraisal: c.appraisal.clone(),
+            purpose: c.purpose.clone(),
+            result,
+            segment_listings: c.keep_segment.then(|| {
+                c.fit
+                    .cleaning
+                    .rows
+                    .iter()
+                    .map(|&r| c.market.listing(r))
+                    .collect()
+            }),
+        })
+    }
+}

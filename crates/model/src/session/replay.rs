@@ -1,0 +1,228 @@
+//! Reopening a session: recompute the grid, the reconciliation and the worksheet from the saved
+//! evidence and say whether they match what was saved.
+
+use serde::{Deserialize, Serialize};
+
+use super::Session;
+use super::outcome::{Outcome, WorksheetOutcome, work_out};
+use crate::adjustment::user_lines;
+use crate::appraisal::{AdjustedComparable, Appraisal, reconcile_comparables};
+use crate::rates::RatesError;
+use crate::worksheet::WorksheetError;
+
+/// Why a session's evidence cannot be recomputed.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum ReplayError {
+    /// A comparable cannot be adjusted with the saved rates.
+    #[error("comparable on market line {line}: {source}")]
+    Rates {
+        /// The comparable's market line.
+        line: u64,
+        /// What is missing.
+        source: RatesError,
+    },
+    /// A comparable's price is not a positive amount.
+    #[error("comparable on market line {line}: asking price {price} is not a positive amount")]
+    BadPrice {
+        /// The comparable's market line.
+        line: u64,
+        /// Its price.
+        price: f64,
+    },
+    /// The interval level is outside (0, 1).
+    #[error("request.level = {0} is not between 0 and 1")]
+    BadLevel(f64),
+    /// The worksheet's inputs are not valid.
+    #[error("worksheet: {0}")]
+    Worksheet(#[from] WorksheetError),
+}
+
+/// A number that did not come out as saved.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Difference {
+    /// What it is.
+    pub what: String,
+    /// As saved.
+    pub stored: f64,
+    /// As recomputed.
+    pub now: f64,
+}
+
+/// The recomputed appraisal and how it compares with the saved one.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Reproduction {
+    /// The appraisal recomputed from the evidence.
+    pub appraisal: Appraisal,
+    /// Its outcome.
+    pub outcome: Outcome,
+    /// Every saved number that differs by a cent or more (weights: by 1e-9).
+    pub differences: Vec<Difference>,
+}
+
+impl Reproduction {
+    /// Whether every number came out as saved.
+    #[must_use]
+    pub fn reproduces(&self) -> bool {
+        self.differences.is_empty()
+    }
+}
+
+struct Comparer(Vec<Difference>);
+
+impl Comparer {
+    fn money(&mut self, what: impl Into<String>, stored: f64, now: f64) {
+        let cents = |x: f64| (x * 100.0).round();
+        // NaN compares unequal, so a damaged number is reported too.
+        if cents(stored).total_cmp(&cents(now)) != std::cmp::Ordering::Equal || stored.is_nan() {
+            self.0.push(Difference {
+                what: what.into(),
+                stored,
+                now,
+            });
+        }
+    }
+
+    fn fraction(&mut self, what: impl Into<String>, stored: f64, now: f64) {
+        if (stored - now).abs().partial_cmp(&1e-9) != Some(std::cmp::Ordering::Less) {
+            self.0.push(Difference {
+                what: what.into(),
+                stored,
+                now,
+            });
+        }
+    }
+}
+
+/// Recomputes `session` from its evidence and compares it with its saved result.
+pub fn reproduce(session: &Session) -> Result<Reproduction, ReplayError> {
+    let request = &session.request;
+    if !(request.level > 0.0 && request.level < 1.0) {
+        return Err(ReplayError::BadLevel(request.level));
+    }
+    let rates = &session.fit.rates;
+    let mut comparables = session
+        .appraisal
+        .comparables
+        .iter()
+        .map(|c| {
+            let line = c.listing.line;
+            if !(c.listing.asking_price.is_finite() && c.listing.asking_price > 0.0) {
+                return Err(ReplayError::BadPrice {
+                    line,
+                    price: c.listing.asking_price,
+                });
+            }
+            let mut lines = rates
+                .lines(&request.subject, &c.listing)
+                .map_err(|source| ReplayError::Rates { line, source })?;
+            lines.extend(user_lines(&request.user_adjustments, line));
+            Ok(AdjustedComparable::new(
+                c.listing.clone(),
+                c.days_listed,
+                c.gower_distance,
+                c.manual,
+                c.rule_breaks.clone(),
+                lines,
+            ))
+        })
+        .collect::<Result<Vec<_>, _>>()?;
+    let reconciliation = reconcile_comparables(
+        &mut comparables,
+        &session.appraisal.model_estimate,
+        rates.df_residual,
+        request.level,
+    );
+    let appraisal = Appraisal {
+        subject: request.subject.clone(),
+        comparables,
+        reconciliation,
+        ..session.appraisal.clone()
+    };
+    let outcome = work_out(&session.purpose, &appraisal, request)?;
+    let differences = compare(session, &appraisal, &outcome);
+    Ok(Reproduction {
+        appraisal,
+        outcome,
+        differences,
+    })
+}
+
+fn compare(session: &Session, appraisal: &Appraisal, outcome: &Outcome) -> Vec<Difference> {
+    let mut d = Comparer(Vec::new());
+    let saved = &session.appraisal;
+    if saved.comparables.len() != appraisal.comparables.len() {
+        d.fraction(
+            "number of comparables",
+            saved.comparables.len() as f64,
+            appraisal.comparables.len() as f64,
+        );
+    }
+    for (s, n) in saved.comparables.iter().zip(&appraisal.comparables) {
+        let line = s.listing.line;
+        for (i, (ls, ln)) in s.adjustments.iter().zip(&n.adjustments).enumerate() {
+            d.money(
+                format!(
+                    "comparable line {line}, adjustment {} ({})",
+                    i + 1,
+                    ls.kind.label()
+                ),
+                ls.amount,
+                ln.amount,
+            );
+        }
+        if s.adjustments.len() != n.adjustments.len() {
+            d.fraction(
+                format!("comparable line {line}, number of adjustment lines"),
+                s.adjustments.len() as f64,
+                n.adjustments.len() as f64,
+            );
+        }
+        d.money(
+            format!("comparable line {line}, adjusted price"),
+            s.adjusted_price,
+            n.adjusted_price,
+        );
+        d.fraction(
+            format!("comparable line {line}, weight"),
+            s.weight,
+            n.weight,
+        );
+    }
+    let stored = &session.result;
+    d.money(
+        "indicated value",
+        stored.indicated_value,
+        outcome.indicated_value,
+    );
+    d.money(
+        "value band, low",
+        stored.value_band.lower,
+        outcome.value_band.lower,
+    );
+    d.money(
+        "value band, high",
+        stored.value_band.upper,
+        outcome.value_band.upper,
+    );
+    match (stored.bottom_line(), outcome.bottom_line()) {
+        (Some((label, s)), Some((_, n))) => d.money(label, s, n),
+        (None, None) => {}
+        (s, n) => d.fraction(
+            "worksheet present",
+            f64::from(u8::from(s.is_some())),
+            f64::from(u8::from(n.is_some())),
+        ),
+    }
+    if let (Some(WorksheetOutcome::Claim(s)), Some(WorksheetOutcome::Claim(n))) =
+        (&stored.worksheet, &outcome.worksheet)
+    {
+        if s.verdict.total_loss != n.verdict.total_loss {
+            d.fraction(
+                "total loss (1 = yes)",
+                f64::from(u8::from(s.verdict.total_loss)),
+                f64::from(u8::from(n.verdict.total_loss)),
+            );
+        }
+    }
+    d.0
+}

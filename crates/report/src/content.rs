@@ -1,0 +1,582 @@
+//! What the report says, built from a saved session.
+
+use model::format::{cents, money, signed_cents, signed_money, thousands};
+use model::reconcile::{BandSource, GROSS_PENALTY};
+use model::session::{Purpose, Session, WorksheetOutcome};
+use model::worksheet::{ClaimWorksheet, HoldingCost, OfferSensitivity, TradeInOffer};
+
+use crate::blocks::{Block, Column, Report};
+use crate::figure;
+
+/// Where the report's session came from, for its identity block.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Identity {
+    /// The session file's name.
+    pub session_file: String,
+    /// XXH3-64 of the session file's bytes.
+    pub session_hash: String,
+    /// What reopening the session found ("recomputed from the saved evidence: every number
+    /// matches to the cent").
+    pub reproduction: String,
+}
+
+fn pct(x: f64) -> String {
+    format!("{x:.1} %")
+}
+
+impl Report {
+    /// The report for `session`.
+    #[must_use]
+    pub fn from_session(session: &Session, identity: &Identity) -> Self {
+        let subject = &session.request.subject;
+        let mut blocks = Vec::new();
+        headline(session, &mut blocks);
+        blocks.push(Block::Heading("The vehicle appraised".into()));
+        blocks.push(Block::Facts(subject_facts(session)));
+        blocks.push(Block::Heading("The market".into()));
+        blocks.push(Block::Facts(market_facts(session)));
+        blocks.push(Block::Chart(figure::price_by_year(session)));
+        blocks.push(Block::Chart(figure::price_by_mileage(session)));
+        comparables(session, &mut blocks);
+        reconciliation(session, &mut blocks);
+        match (&session.purpose, &session.result.worksheet) {
+            (Purpose::TradeIn(inputs), Some(WorksheetOutcome::TradeIn { offer, sensitivity })) => {
+                trade_in(inputs, offer, sensitivity, &mut blocks);
+            }
+            (Purpose::Claim { profile, .. }, Some(WorksheetOutcome::Claim(worked))) => {
+                claim(session, profile, worked, &mut blocks);
+            }
+            _ => {}
+        }
+        method(session, &mut blocks);
+        if !session.authorship.notes.trim().is_empty() {
+            blocks.push(Block::Heading("Notes".into()));
+            blocks.push(Block::Paragraph(session.authorship.notes.clone()));
+        }
+        blocks.push(Block::Heading("Cautions".into()));
+        blocks.push(Block::Cautions(
+            model::cautions::CAUTIONS
+                .iter()
+                .map(|c| (*c).to_owned())
+                .collect(),
+        ));
+        blocks.push(Block::Heading("This report's identity".into()));
+        blocks.push(Block::Facts(vec![
+            ("Session file".into(), identity.session_file.clone()),
+            (
+                "Session file hash (XXH3-64)".into(),
+                identity.session_hash.clone(),
+            ),
+            ("Reopened".into(), identity.reproduction.clone()),
+            (
+                "Market file".into(),
+                session.market.source.file_name.clone(),
+            ),
+            (
+                "Market file hash (XXH3-64)".into(),
+                session.market.source.content_hash.clone(),
+            ),
+            ("Appraiser".into(), session.authorship.appraiser.clone()),
+            (
+                "Saved".into(),
+                session
+                    .authorship
+                    .saved
+                    .format("%Y-%m-%d %H:%M UTC")
+                    .to_string(),
+            ),
+            (
+                "Program".into(),
+                format!(
+                    "comptrail {} (session format {})",
+                    env!("CARGO_PKG_VERSION"),
+                    session.format_version
+                ),
+            ),
+        ]));
+        Report {
+            title: format!("{}: {}", session.purpose.title(), subject.describe()),
+            subtitle: format!(
+                "Prepared by {} · value as of {} · {}",
+                session.authorship.appraiser,
+                session.appraisal.as_of,
+                session.authorship.saved.format("%Y-%m-%d")
+            ),
+            footer: format!(
+                "comptrail · {} · session {} · an estimate, not a certified appraisal",
+                identity.session_file, identity.session_hash
+            ),
+            blocks,
+        }
+    }
+}
+
+fn headline(session: &Session, blocks: &mut Vec<Block>) {
+    let r = &session.result;
+    let band = &r.value_band;
+    let mut items = vec![
+        ("Indicated value".to_owned(), money(r.indicated_value)),
+        (
+            format!("Value band ({:.0} %)", 100.0 * band.level),
+            format!("{} to {}", money(band.lower), money(band.upper)),
+        ),
+    ];
+    if let Some((label, amount)) = r.bottom_line() {
+        let mut label = label.to_owned();
+        label[..1].make_ascii_uppercase();
+        items.push((label, cents(amount)));
+    }
+    if let Some(WorksheetOutcome::Claim(c)) = &r.worksheet {
+        items.push((
+            "Total loss".into(),
+            if c.verdict.total_loss { "yes" } else { "no" }.into(),
+        ));
+    }
+    blocks.push(Block::Headline(items));
+}
+
+fn subject_facts(session: &Session) -> Vec<(String, String)> {
+    let s = &session.request.subject;
+    let mut facts = vec![
+        ("Model year".into(), s.model_year.to_string()),
+        ("Make and model".into(), format!("{} {}", s.make, s.model)),
+        (
+            "Variant".into(),
+            s.variant.clone().unwrap_or_else(|| "(none)".into()),
+        ),
+        ("Odometer".into(), format!("{} mi", thousands(s.miles))),
+        ("Condition class".into(), s.condition.to_string()),
+    ];
+    if let Some(vin) = &s.vin {
+        facts.push(("VIN".into(), vin.clone()));
+    }
+    if let Some(options) = &s.options {
+        facts.push(("Options".into(), options.clone()));
+    }
+    facts
+}
+
+fn market_facts(session: &Session) -> Vec<(String, String)> {
+    let m = &session.market;
+    let f = &session.fit;
+    let a = &session.appraisal;
+    vec![
+        (
+            "Market file".into(),
+            format!(
+                "{} ({} rows)",
+                m.source.file_name,
+                thousands(m.source.rows_read as f64)
+            ),
+        ),
+        (
+            "Segment".into(),
+            format!(
+                "{}: {} listings, {} used in the fit after cleaning",
+                m.segment,
+                thousands(m.segment_rows as f64),
+                thousands(f.rows_used as f64)
+            ),
+        ),
+        ("Value as of".into(), a.as_of.to_string()),
+        (
+            "Fit".into(),
+            format!(
+                "log-price hedonic regression, {:?} age form{}; R² {:.3}, residual SD {:.3} in ln price",
+                f.settings.age_form,
+                if f.settings.robust {
+                    ", Huber robust"
+                } else {
+                    ""
+                },
+                f.r_squared,
+                f.residual_sd
+            ),
+        ),
+        (
+            "Depreciation".into(),
+            format!(
+                "{} per year over the first {} years from age alone; {} with typical mileage",
+                pct(f.annual_depreciation.age_only_pct),
+                f.annual_depreciation.horizon_years,
+                pct(f.annual_depreciation.with_typical_miles_pct)
+            ),
+        ),
+        (
+            "Model's own estimate".into(),
+            format!(
+                "{} (median); {:.0} % prediction interval {} to {}",
+                money(a.model_estimate.median),
+                100.0 * a.model_estimate.prediction_interval.level,
+                money(a.model_estimate.prediction_interval.lower),
+                money(a.model_estimate.prediction_interval.upper)
+            ),
+        ),
+        (
+            "Comparable search".into(),
+            format!(
+                "{} listings considered, {} passed the filters, {} used",
+                thousands(a.candidates_considered as f64),
+                thousands(a.candidates_passed as f64),
+                a.comparables.len()
+            ),
+        ),
+    ]
+}
+
+fn comparables(session: &Session, blocks: &mut Vec<Block>) {
+    let a = &session.appraisal;
+    blocks.push(Block::Heading("Comparables".into()));
+    if a.comparables.is_empty() {
+        blocks.push(Block::Paragraph(
+            "No listing passed the filters: the value rests on the model's estimate alone.".into(),
+        ));
+        return;
+    }
+    blocks.push(Block::Paragraph(
+        "Each comparable as listed, with its source, and its price adjusted to the subject. The numbers match the charts.".into(),
+    ));
+    let rows = a
+        .comparables
+        .iter()
+        .enumerate()
+        .map(|(i, c)| {
+            let l = &c.listing;
+            vec![
+                format!("{}", i + 1),
+                format!(
+                    "{} {}, {} mi, {}",
+                    l.model_year,
+                    l.variant.as_deref().unwrap_or("(no variant)"),
+                    thousands(l.miles),
+                    l.condition
+                ),
+                format!(
+                    "{} (market line {}{})",
+                    l.source(),
+                    l.line,
+                    c.days_listed
+                        .map(|d| format!(", {d} days listed"))
+                        .unwrap_or_default()
+                ),
+                money(l.asking_price),
+                money(c.adjusted_price),
+                format!("{:.1}", c.net_pct),
+                format!("{:.1}", c.gross_pct),
+                format!("{:.1} %", 100.0 * c.weight),
+            ]
+        })
+        .collect();
+    blocks.push(Block::Table {
+        columns: vec![
+            Column::number("#", 0.3),
+            Column::text("Vehicle", 2.2),
+            Column::text("Source", 3.6),
+            Column::number("Asking", 1.0),
+            Column::number("Adjusted", 1.0),
+            Column::number("Net %", 0.7),
+            Column::number("Gross %", 0.7),
+            Column::number("Weight", 0.8),
+        ],
+        rows,
+    });
+    adjustments(session, blocks);
+}
+
+fn adjustments(session: &Session, blocks: &mut Vec<Block>) {
+    let a = &session.appraisal;
+    blocks.push(Block::Heading("Adjustments, line by line".into()));
+    let rows = a
+        .comparables
+        .iter()
+        .enumerate()
+        .flat_map(|(i, c)| {
+            c.adjustments.iter().map(move |line| {
+                vec![
+                    format!("{}", i + 1),
+                    line.kind.label().to_owned(),
+                    signed_money(line.amount),
+                    line.basis.clone(),
+                ]
+            })
+        })
+        .collect();
+    blocks.push(Block::Table {
+        columns: vec![
+            Column::number("#", 0.3),
+            Column::text("For", 1.1),
+            Column::number("Amount", 1.0),
+            Column::text("Basis", 7.0),
+        ],
+        rows,
+    });
+    let breaking: Vec<String> = a
+        .comparables
+        .iter()
+        .enumerate()
+        .filter(|(_, c)| !c.rule_breaks.is_empty())
+        .map(|(i, c)| {
+            format!(
+                "Comparable {} was included by hand although it breaks the search filters: {}.",
+                i + 1,
+                c.rule_breaks
+                    .iter()
+                    .map(ToString::to_string)
+                    .collect::<Vec<_>>()
+                    .join("; ")
+            )
+        })
+        .collect();
+    if !breaking.is_empty() {
+        blocks.push(Block::List(breaking));
+    }
+}
+
+fn reconciliation(session: &Session, blocks: &mut Vec<Block>) {
+    let r = &session.appraisal.reconciliation;
+    blocks.push(Block::Heading("Reconciliation".into()));
+    let band = match r.band_source {
+        BandSource::Comparables => format!(
+            "The band comes from the spread of the adjusted comparables ({:.3} in ln price, wider than the model's {:.3}).",
+            r.comparables_sigma.unwrap_or(f64::NAN),
+            r.model_sigma
+        ),
+        BandSource::Model => format!(
+            "The band comes from the model's prediction interval ({:.3} in ln price), which is wider than the comparables' spread.",
+            r.model_sigma
+        ),
+        BandSource::ModelOnly => {
+            "With no comparables, the value and band are the model's own estimate and prediction interval.".to_owned()
+        }
+    };
+    blocks.push(Block::Paragraph(format!(
+        "The indicated value {} is the weighted mean of the adjusted comparable prices. Each comparable's weight is its similarity to the subject (1 − Gower distance) divided by (1 + {GROSS_PENALTY} × its gross adjustment as a fraction of its price), so comparables that needed less adjustment and are more alike count more; the weights add to 100 % and are shown in the table above. The weights amount to {:.1} equally weighted comparables. {band} The indicated value is {:+.1} % from the model's own estimate.",
+        money(r.indicated_value),
+        r.effective_count,
+        r.model_gap_pct
+    )));
+}
+
+fn trade_in(
+    inputs: &model::worksheet::TradeInInputs,
+    offer: &TradeInOffer,
+    sensitivity: &OfferSensitivity,
+    blocks: &mut Vec<Block>,
+) {
+    blocks.push(Block::Heading("Trade-in offer".into()));
+    let mut rows = vec![vec![
+        match &inputs.retail_value_note {
+            Some(note) => format!("Expected retail value (edited: {note})"),
+            None => "Expected retail value (the indicated value)".to_owned(),
+        },
+        cents(offer.retail_value),
+    ]];
+    rows.push(vec![
+        format!(
+            "Expected sale after a {} % list-to-sale discount",
+            inputs.list_to_sale_discount_pct
+        ),
+        cents(offer.expected_sale),
+    ]);
+    for d in &offer.deductions {
+        rows.push(vec![format!("less {}", d.label), signed_cents(-d.amount)]);
+    }
+    rows.push(vec!["ACV offer".into(), cents(offer.offer)]);
+    blocks.push(Block::Table {
+        columns: vec![Column::text("", 5.0), Column::number("Amount", 1.2)],
+        rows,
+    });
+    let holding = match inputs.holding {
+        HoldingCost::PerDay { amount } => format!("{} per day", money(amount)),
+        HoldingCost::RateOnOffer { annual_pct } => {
+            format!("{annual_pct} % a year on the offer")
+        }
+    };
+    blocks.push(Block::Paragraph(format!(
+        "Holding cost: {holding} for {} days. The offer at other days to sell and across the value band:",
+        inputs.days_to_sell
+    )));
+    let mut rows: Vec<Vec<String>> = sensitivity
+        .by_days
+        .iter()
+        .map(|(d, o)| vec![format!("{d:.0} days to sell"), money(*o)])
+        .collect();
+    for ((v, o), name) in sensitivity
+        .by_value
+        .iter()
+        .zip(["band low", "indicated", "band high"])
+    {
+        rows.push(vec![format!("retail {} ({name})", money(*v)), money(*o)]);
+    }
+    blocks.push(Block::Table {
+        columns: vec![Column::text("If", 5.0), Column::number("Offer", 1.2)],
+        rows,
+    });
+}
+
+fn claim(
+    session: &Session,
+    profile: &model::worksheet::JurisdictionProfile,
+    worked: &ClaimWorksheet,
+    blocks: &mut Vec<Block>,
+) {
+    blocks.push(Block::Heading(format!(
+        "Total-loss settlement under the {} profile",
+        profile.name
+    )));
+    let mut rows = vec![vec![
+        "Actual cash value (the indicated value)".to_owned(),
+        cents(worked.acv),
+    ]];
+    for l in &worked.itemized_in_acv {
+        rows.push(vec![
+            format!("   of which, itemized: {}", l.label),
+            signed_cents(l.amount),
+        ]);
+    }
+    for l in &worked.settlement.additions {
+        rows.push(vec![format!("plus {}", l.label), signed_cents(l.amount)]);
+    }
+    for l in &worked.settlement.deductions {
+        rows.push(vec![format!("less {}", l.label), signed_cents(-l.amount)]);
+    }
+    rows.push(vec![
+        "Settlement payment".into(),
+        cents(worked.settlement.payment),
+    ]);
+    blocks.push(Block::Table {
+        columns: vec![Column::text("", 5.0), Column::number("Amount", 1.2)],
+        rows,
+    });
+    if !worked.not_paid.is_empty() {
+        blocks.push(Block::List(
+            worked
+                .not_paid
+                .iter()
+                .map(|n| format!("Not paid: {} ({})", n.label, n.citation))
+                .collect(),
+        ));
+    }
+    blocks.push(Block::Heading("Total-loss test".into()));
+    blocks.push(Block::Paragraph(format!(
+        "{}. Rule: {}.",
+        worked.verdict.explanation, worked.total_loss_citation
+    )));
+    blocks.push(Block::Heading("Comparables against the profile".into()));
+    blocks.push(Block::Paragraph(worked.check.summary()));
+    let breaks: Vec<String> = worked
+        .check
+        .comparables
+        .iter()
+        .enumerate()
+        .flat_map(|(i, c)| {
+            c.breaks
+                .iter()
+                .map(move |b| format!("Comparable {} (market line {}): {b}", i + 1, c.line))
+        })
+        .collect();
+    if !breaks.is_empty() {
+        blocks.push(Block::List(breaks));
+    }
+    profile_rules(session, profile, blocks);
+}
+
+fn profile_rules(
+    session: &Session,
+    profile: &model::worksheet::JurisdictionProfile,
+    blocks: &mut Vec<Block>,
+) {
+    blocks.push(Block::Heading(
+        "The profile's rules and their sources".into(),
+    ));
+    let mut rows = vec![
+        vec![
+            "Fewest comparables".into(),
+            profile.min_comparables.value.to_string(),
+            profile.min_comparables.source(),
+        ],
+        vec![
+            "Listing age".into(),
+            profile
+                .max_listing_age_days
+                .value
+                .map_or("no limit".into(), |d| format!("at most {d} days")),
+            profile.max_listing_age_days.source(),
+        ],
+        vec![
+            "Distance".into(),
+            profile
+                .max_distance_miles
+                .value
+                .map_or("no limit".into(), |d| format!("at most {d:.0} mi")),
+            profile.max_distance_miles.source(),
+        ],
+        vec![
+            "Mileage".into(),
+            profile
+                .mileage_rule
+                .value
+                .map_or("no rule".into(), |m| m.to_string()),
+            profile.mileage_rule.source(),
+        ],
+        vec![
+            "Sales tax".into(),
+            if profile.sales_tax_paid.value {
+                "paid"
+            } else {
+                "not paid"
+            }
+            .into(),
+            profile.sales_tax_paid.source(),
+        ],
+        vec![
+            "Title and transfer fees".into(),
+            if profile.title_and_transfer_fees_paid.value {
+                "paid"
+            } else {
+                "not paid"
+            }
+            .into(),
+            profile.title_and_transfer_fees_paid.source(),
+        ],
+        vec![
+            "Total-loss rule".into(),
+            profile.total_loss_rule.value.to_string(),
+            profile.total_loss_rule.source(),
+        ],
+        vec![
+            "Registration".into(),
+            profile.registration.value.to_string(),
+            profile.registration.source(),
+        ],
+    ];
+    if let Some(doc) = &profile.documentation {
+        rows.push(vec!["Records".into(), doc.value.clone(), doc.source()]);
+    }
+    blocks.push(Block::Table {
+        columns: vec![
+            Column::text("Rule", 1.3),
+            Column::text("Value", 1.8),
+            Column::text("Source", 4.5),
+        ],
+        rows,
+    });
+    blocks.push(Block::Paragraph(format!(
+        "Profile reviewed {}. The policy and the jurisdiction's current rules govern; check them before relying on this settlement. Appraiser: {}.",
+        profile.reviewed, session.authorship.appraiser
+    )));
+}
+
+fn method(session: &Session, blocks: &mut Vec<Block>) {
+    let level = 100.0 * session.request.level;
+    blocks.push(Block::Heading("How the value was reached".into()));
+    blocks.push(Block::Paragraph(format!(
+        "The market file's listings of the same make and model were cleaned (duplicates, old model years still listed as new, robust outliers and implausibly cheap listings set aside, each with its reason) and a hedonic regression was fitted: the logarithm of asking price against age, mileage, variant and condition class. The fit gives the rate at which price falls with each, and the model's own estimate for the subject with a {level:.0} % prediction interval."
+    )));
+    blocks.push(Block::Paragraph(
+        "Comparables are listings of the same make and model that pass the filters (model-year window, mileage rule, listing age, distance), ranked by Gower similarity to the subject. Each is adjusted to the subject line by line, as in a sales-comparison grid: a fitted effect b for a difference d changes the price P by P × (exp(b × d) − 1); a comparable better than the subject takes a minus adjustment. The appraiser's own lines carry their stated basis.".into(),
+    ));
+    blocks.push(Block::Paragraph(
+        "Asking prices are not sale prices: the value is a market asking value unless the worksheet says otherwise.".into(),
+    ));
+}

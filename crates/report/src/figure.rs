@@ -1,0 +1,277 @@
+//! Charts as data: what to draw, in data coordinates. The HTML and PDF writers map them to
+//! their own drawing calls.
+
+use model::session::Session;
+
+use crate::palette;
+
+/// How a set of points is drawn.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Marker {
+    /// Small faint dot (market listings).
+    Dot,
+    /// Filled circle with a number beside it (comparables).
+    Numbered,
+    /// Diamond (the subject).
+    Diamond,
+}
+
+/// One layer of a chart.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Mark {
+    /// Points.
+    Points {
+        /// (x, y).
+        points: Vec<(f64, f64)>,
+        /// Marker.
+        marker: Marker,
+        /// Colour.
+        rgb: [u8; 3],
+    },
+    /// A polyline.
+    Line {
+        /// (x, y).
+        points: Vec<(f64, f64)>,
+        /// Colour.
+        rgb: [u8; 3],
+        /// Dashed.
+        dashed: bool,
+    },
+    /// A vertical bar from `low` to `high` at `x` (the subject's value band).
+    Range {
+        /// x.
+        x: f64,
+        /// Low end.
+        low: f64,
+        /// High end.
+        high: f64,
+        /// Colour.
+        rgb: [u8; 3],
+    },
+}
+
+/// A chart.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Figure {
+    /// Title.
+    pub title: String,
+    /// x-axis label.
+    pub x_label: String,
+    /// y-axis label.
+    pub y_label: String,
+    /// Whether x is a year (ticks without thousands separators).
+    pub x_is_year: bool,
+    /// Layers, back to front.
+    pub marks: Vec<Mark>,
+    /// Legend: (colour, text).
+    pub legend: Vec<([u8; 3], String)>,
+}
+
+impl Figure {
+    /// The data range of every layer, padded by 5 %: ((x0, x1), (y0, y1)).
+    #[must_use]
+    pub fn bounds(&self) -> ((f64, f64), (f64, f64)) {
+        let mut xs = (f64::INFINITY, f64::NEG_INFINITY);
+        let mut ys = (f64::INFINITY, f64::NEG_INFINITY);
+        let mut take = |x: f64, y: f64| {
+            if x.is_finite() && y.is_finite() {
+                xs = (xs.0.min(x), xs.1.max(x));
+                ys = (ys.0.min(y), ys.1.max(y));
+            }
+        };
+        for m in &self.marks {
+            match m {
+                Mark::Points { points, .. } | Mark::Line { points, .. } => {
+                    for &(x, y) in points {
+                        take(x, y);
+                    }
+                }
+                Mark::Range { x, low, high, .. } => {
+                    take(*x, *low);
+                    take(*x, *high);
+                }
+            }
+        }
+        let pad = |(a, b): (f64, f64)| {
+            if !(a.is_finite() && b.is_finite()) {
+                return (0.0, 1.0);
+            }
+            let span = if b > a { b - a } else { a.abs().max(1.0) };
+            (a - 0.06 * span, b + 0.06 * span)
+        };
+        (pad(xs), pad(ys))
+    }
+}
+
+/// Round tick positions covering `lo..hi`, about `n` of them.
+#[must_use]
+pub fn ticks(lo: f64, hi: f64, n: usize) -> Vec<f64> {
+    if hi.partial_cmp(&lo) != Some(std::cmp::Ordering::Greater) || n == 0 {
+        return vec![lo];
+    }
+    let raw = (hi - lo) / n as f64;
+    let magnitude = 10f64.powf(raw.log10().floor());
+    let step = [1.0, 2.0, 2.5, 5.0, 10.0]
+        .iter()
+        .map(|m| m * magnitude)
+        .find(|s| *s >= raw)
+        .unwrap_or(10.0 * magnitude);
+    let first = (lo / step).ceil() * step;
+    (0..=n * 3)
+        .map(|i| first + i as f64 * step)
+        .take_while(|t| *t <= hi + step * 1e-9)
+        .collect()
+}
+
+fn market_points(session: &Session, x: impl Fn(&model::market::Listing) -> f64) -> Vec<Mark> {
+    session
+        .segment_listings
+        .as_ref()
+        .map(|listings| {
+            // Thin very large saved segments: a printed chart cannot show more dots.
+            let step = (listings.len() / 4_000).max(1);
+            vec![Mark::Points {
+                points: listings
+                    .iter()
+                    .step_by(step)
+                    .map(|l| (x(l), l.asking_price))
+                    .collect(),
+                marker: Marker::Dot,
+                rgb: palette::MARKET,
+            }]
+        })
+        .unwrap_or_default()
+}
+
+fn legend(session: &Session) -> Vec<([u8; 3], String)> {
+    let mut legend = Vec::new();
+    if session.segment_listings.is_some() {
+        legend.push((palette::MARKET, "market listings".to_owned()));
+    }
+    legend.push((
+        palette::COMPARABLE,
+        "comparables (asking price, numbered as in the table)".to_owned(),
+    ));
+    legend.push((
+        palette::SUBJECT,
+        "subject: indicated value and value band".to_owned(),
+    ));
+    legend
+}
+
+/// Asking price against model year, with the comparables numbered and the subject's value and
+/// band at its model year.
+#[must_use]
+pub fn price_by_year(session: &Session) -> Figure {
+    let a = &session.appraisal;
+    let r = &session.result;
+    let mut marks = market_points(session, |l| f64::from(l.model_year));
+    marks.push(Mark::Points {
+        points: a
+            .comparables
+            .iter()
+            .map(|c| (f64::from(c.listing.model_year), c.listing.asking_price))
+            .collect(),
+        marker: Marker::Numbered,
+        rgb: palette::COMPARABLE,
+    });
+    let x = f64::from(session.request.subject.model_year);
+    marks.push(Mark::Range {
+        x,
+        low: r.value_band.lower,
+        high: r.value_band.upper,
+        rgb: palette::SUBJECT,
+    });
+    marks.push(Mark::Points {
+        points: vec![(x, r.indicated_value)],
+        marker: Marker::Diamond,
+        rgb: palette::SUBJECT,
+    });
+    Figure {
+        title: "Asking price by model year".into(),
+        x_label: "model year".into(),
+        y_label: "asking price".into(),
+        x_is_year: true,
+        marks,
+        legend: legend(session),
+    }
+}
+
+/// Asking price against mileage, with the model's line for the subject (its median value at
+/// each odometer reading, from the fitted mileage slope) and its prediction band.
+#[must_use]
+pub fn price_by_mileage(session: &Session) -> Figure {
+    let a = &session.appraisal;
+    let r = &session.result;
+    let subject_miles = session.request.subject.miles;
+    let mut marks = market_points(session, |l| l.miles);
+    let comparables: Vec<(f64, f64)> = a
+        .comparables
+        .iter()
+        .map(|c| (c.listing.miles, c.listing.asking_price))
+        .collect();
+    let (lo, hi) = comparables
+        .iter()
+        .map(|p| p.0)
+        .chain([subject_miles])
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), m| {
+            (a.min(m), b.max(m))
+        });
+    let slope = session.fit.rates.miles_slope;
+    let estimate = &a.model_estimate;
+    let along = |scale: f64| -> Vec<(f64, f64)> {
+        (0..=24)
+            .map(|i| {
+                let m = lo + (hi - lo) * f64::from(i) / 24.0;
+                (m, scale * (slope * (m - subject_miles)).exp())
+            })
+            .collect()
+    };
+    marks.push(Mark::Line {
+        points: along(estimate.prediction_interval.lower),
+        rgb: palette::FIT,
+        dashed: true,
+    });
+    marks.push(Mark::Line {
+        points: along(estimate.prediction_interval.upper),
+        rgb: palette::FIT,
+        dashed: true,
+    });
+    marks.push(Mark::Line {
+        points: along(estimate.median),
+        rgb: palette::FIT,
+        dashed: false,
+    });
+    marks.push(Mark::Points {
+        points: comparables,
+        marker: Marker::Numbered,
+        rgb: palette::COMPARABLE,
+    });
+    marks.push(Mark::Range {
+        x: subject_miles,
+        low: r.value_band.lower,
+        high: r.value_band.upper,
+        rgb: palette::SUBJECT,
+    });
+    marks.push(Mark::Points {
+        points: vec![(subject_miles, r.indicated_value)],
+        marker: Marker::Diamond,
+        rgb: palette::SUBJECT,
+    });
+    let mut legend = legend(session);
+    legend.push((
+        palette::FIT,
+        format!(
+            "model: the subject's median value by mileage, dashed its {:.0} % prediction interval",
+            100.0 * estimate.prediction_interval.level
+        ),
+    ));
+    Figure {
+        title: "Asking price by mileage".into(),
+        x_label: "miles".into(),
+        y_label: "asking price".into(),
+        x_is_year: false,
+        marks,
+        legend,
+    }
+}
