@@ -104,3 +104,81 @@ pub fn fit_demo(
     model::appraisal::fit_market(market, segment, &settings, &model::clean::Overrides::new())
         .expect("fit")
 }
+
+/// Path of a file in the repository (`sample-sessions/…`, `assets/…`).
+#[must_use]
+pub fn repo_path(relative: &str) -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("..")
+        .join(relative)
+}
+
+/// A fresh empty folder under the system's temporary folder, unique to this call.
+///
+/// # Panics
+/// If the folder cannot be created.
+#[must_use]
+#[allow(clippy::expect_used)]
+pub fn scratch_dir(name: &str) -> PathBuf {
+    use std::sync::atomic::{AtomicU32, Ordering};
+    static NEXT: AtomicU32 = AtomicU32::new(0);
+    let dir = std::env::temp_dir().join(format!(
+        "comptrail-{name}-{}-{}",
+        std::process::id(),
+        NEXT.fetch_add(1, Ordering::Relaxed)
+    ));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).expect("scratch folder");
+    dir
+}
+
+/// A demo appraisal of the 2022 Tessel Plus, 41,000 mi, used, as the workbench opens with,
+/// captured as a session for `purpose` (market: 2,000 demo listings, seed 1).
+///
+/// # Panics
+/// If the demo cannot be appraised.
+#[must_use]
+#[allow(clippy::expect_used, clippy::needless_pass_by_value)]
+pub fn demo_session(
+    purpose: model::session::Purpose,
+    market_path: Option<&str>,
+) -> model::session::Session {
+    let market = demo_market(2_000, 1);
+    let settings = model::appraisal::FitSettings {
+        as_of: Some(model::demo::demo_as_of()),
+        ..model::appraisal::FitSettings::default()
+    };
+    let fit = fit_demo(&market, "Quellmark", "Tessel", settings);
+    let subject = model::subject::Subject::parse(
+        "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used",
+    )
+    .expect("subject");
+    let mut request = model::appraisal::AppraisalRequest::new(subject);
+    if let model::session::Purpose::Claim { profile, .. } = &purpose {
+        request.rules = profile.comparable_rules(&request.rules);
+    }
+    let appraisal = model::appraisal::appraise(&market, &fit, &request).expect("appraisal");
+    let at = chrono::DateTime::parse_from_rfc3339("2026-12-01T10:00:00Z")
+        .expect("time")
+        .to_utc();
+    model::session::Session::capture(
+        &model::session::Capture {
+            market: &market,
+            market_path,
+            fit: &fit,
+            settings: &settings,
+            overrides: &model::clean::Overrides::new(),
+            request: &request,
+            appraisal: &appraisal,
+            purpose: &purpose,
+            keep_segment: false,
+        },
+        model::session::Authorship {
+            appraiser: "Test Appraiser (invented)".into(),
+            created: at,
+            saved: at,
+            notes: String::new(),
+        },
+    )
+    .expect("session")
+}

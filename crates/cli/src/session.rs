@@ -178,14 +178,22 @@ pub struct SessionCheck {
     pub cautions: Vec<&'static str>,
 }
 
-fn market_status(session: &Session, given: Option<&PathBuf>) -> MarketFileStatus {
-    let path = given
-        .map(|p| p.display().to_string())
-        .or_else(|| session.market.path.clone());
-    let Some(path) = path else {
-        return MarketFileStatus::Missing { path: None };
+fn market_status(
+    session: &Session,
+    session_path: &Path,
+    given: Option<&PathBuf>,
+) -> MarketFileStatus {
+    let candidates = match given {
+        Some(p) => vec![p.clone()],
+        None => session.market.location.candidates(session_path),
     };
-    match std::fs::read(&path) {
+    let Some(found) = candidates.iter().find(|p| p.is_file()) else {
+        return MarketFileStatus::Missing {
+            path: candidates.first().map(|p| p.display().to_string()),
+        };
+    };
+    let path = found.display().to_string();
+    match std::fs::read(found) {
         Ok(bytes) => {
             let hash = content_hash(&bytes);
             if hash == session.market.source.content_hash {
@@ -224,13 +232,17 @@ fn rerun(session: &Session, path: &str) -> Result<Outcome> {
 /// `appraise --session`: recompute, compare, and say so. Returns whether it reproduced.
 pub fn check(args: &AppraiseArgs, path: &Path) -> Result<bool> {
     let session = read_session(path)?;
+    let on_disk = std::fs::read_to_string(path)
+        .ok()
+        .and_then(|t| model::session::format_version_of(&t))
+        .unwrap_or(session.format_version);
     let reproduction = reproduce(&session).with_context(|| {
         format!(
             "{}: the saved evidence cannot be recomputed",
             path.display()
         )
     })?;
-    let status = market_status(&session, args.market.file.as_ref());
+    let status = market_status(&session, path, args.market.file.as_ref());
     let rerun_numbers = if args.rerun {
         match &status {
             MarketFileStatus::Unchanged { path } | MarketFileStatus::Changed { path, .. } => {
@@ -246,7 +258,7 @@ pub fn check(args: &AppraiseArgs, path: &Path) -> Result<bool> {
     };
     let doc = SessionCheck {
         session: path.display().to_string(),
-        format_version: session.format_version,
+        format_version: on_disk,
         purpose: session.purpose.title(),
         appraiser: session.authorship.appraiser.clone(),
         saved: session.authorship.saved,
@@ -287,9 +299,17 @@ fn bottom(n: &Numbers) -> String {
 
 fn render_check(d: &SessionCheck) -> String {
     let mut out = format!(
-        "{} (session format {}): {} for {}, by {} on {}\n",
+        "{} (session format {}{}): {} for {}, by {} on {}\n",
         d.session,
         d.format_version,
+        if d.format_version < model::session::SESSION_FORMAT_VERSION {
+            format!(
+                ", read as format {}; saving it again writes the new format",
+                model::session::SESSION_FORMAT_VERSION
+            )
+        } else {
+            String::new()
+        },
         d.purpose,
         d.subject,
         if d.appraiser.is_empty() {

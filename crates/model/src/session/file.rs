@@ -9,7 +9,7 @@ use super::Session;
 
 /// Format version this build writes. Files with a higher number are refused; lower numbers are
 /// migrated on reading.
-pub const SESSION_FORMAT_VERSION: u32 = 1;
+pub const SESSION_FORMAT_VERSION: u32 = 2;
 
 const HEADER: &str = "\
 // comptrail appraisal session. Human-readable on purpose: every comparable, every adjustment
@@ -73,6 +73,14 @@ struct VersionProbe {
     format_version: u32,
 }
 
+/// The format version a session text declares, if it can be read.
+#[must_use]
+pub fn format_version_of(text: &str) -> Option<u32> {
+    ron::from_str::<VersionProbe>(text)
+        .ok()
+        .map(|p| p.format_version)
+}
+
 /// The session as RON text, with a header comment.
 pub fn session_to_ron(session: &Session) -> Result<String, SessionError> {
     let config = ron::ser::PrettyConfig::new()
@@ -127,13 +135,47 @@ fn offset_of(text: &str, line: usize, column: usize) -> usize {
     text.len()
 }
 
+/// Whether the text stops inside a string or with brackets still open: a file cut short.
+fn looks_cut_short(text: &str) -> bool {
+    let (mut depth, mut in_string, mut escaped) = (0_i64, false, false);
+    let mut chars = text.chars().peekable();
+    while let Some(c) = chars.next() {
+        if in_string {
+            match (escaped, c) {
+                (true, _) => escaped = false,
+                (false, '\\') => escaped = true,
+                (false, '"') => in_string = false,
+                _ => {}
+            }
+            continue;
+        }
+        match c {
+            '"' => in_string = true,
+            '(' | '[' | '{' => depth += 1,
+            ')' | ']' | '}' => depth -= 1,
+            '/' if chars.peek() == Some(&'/') => {
+                for skipped in chars.by_ref() {
+                    if skipped == '\n' {
+                        break;
+                    }
+                }
+            }
+            _ => {}
+        }
+    }
+    in_string || depth > 0
+}
+
 fn syntax_error(text: &str, source_name: &str, e: &ron::error::SpannedError) -> SessionError {
     let (line, column) = (e.span.start.line, e.span.start.col);
-    let field = field_before(text, offset_of(text, line, column))
+    let offset = offset_of(text, line, column);
+    let field = field_before(text, offset)
         .map(|f| format!(", field `{f}`"))
         .unwrap_or_default();
+    let at_end = looks_cut_short(text);
     let message = match &e.code {
         ron::Error::Eof => "the file ends too early (cut short?)".to_owned(),
+        other if at_end => format!("the file ends too early (cut short?): {other}"),
         other => other.to_string(),
     };
     SessionError::Syntax {
@@ -149,20 +191,26 @@ fn syntax_error(text: &str, source_name: &str, e: &ron::error::SpannedError) -> 
 pub fn parse_session(text: &str, source_name: &str) -> Result<Session, SessionError> {
     // The version is read first so a newer file is refused by name, not by whatever field it
     // added.
-    if let Ok(probe) = ron::from_str::<VersionProbe>(text) {
-        if probe.format_version > SESSION_FORMAT_VERSION {
+    let version = ron::from_str::<VersionProbe>(text).map(|p| p.format_version);
+    if let Ok(version) = version {
+        if version > SESSION_FORMAT_VERSION {
             return Err(SessionError::NewerVersion {
                 source_name: source_name.to_owned(),
-                found: probe.format_version,
+                found: version,
                 supported: SESSION_FORMAT_VERSION,
             });
         }
-        if probe.format_version == 0 {
+        if version == 0 {
             return Err(SessionError::UnknownVersion {
                 source_name: source_name.to_owned(),
-                found: probe.format_version,
+                found: version,
             });
         }
+    }
+    if version == Ok(1) {
+        return ron::from_str::<super::legacy::SessionV1>(text)
+            .map(super::legacy::SessionV1::migrate)
+            .map_err(|e| syntax_error(text, source_name, &e));
     }
     ron::from_str::<Session>(text).map_err(|e| syntax_error(text, source_name, &e))
 }
@@ -221,7 +269,39 @@ pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<(), SessionError> {
     Ok(())
 }
 
-/// Saves a session atomically.
+/// `to` written from `dir` ("../assets/market.csv"), when both are absolute.
+fn relative_path(dir: &Path, to: &Path) -> Option<PathBuf> {
+    use std::path::Component;
+    if !(dir.is_absolute() && to.is_absolute()) {
+        return None;
+    }
+    let (a, b): (Vec<Component<'_>>, Vec<Component<'_>>) =
+        (dir.components().collect(), to.components().collect());
+    let common = a.iter().zip(&b).take_while(|(x, y)| x == y).count();
+    let mut out = PathBuf::new();
+    for _ in common..a.len() {
+        out.push("..");
+    }
+    for c in &b[common..] {
+        out.push(c.as_os_str());
+    }
+    Some(out)
+}
+
+/// Saves a session atomically, recording where its market file is from the session's folder.
 pub fn write_session(path: &Path, session: &Session) -> Result<(), SessionError> {
-    write_atomically(path, session_to_ron(session)?.as_bytes())
+    let mut session = session.clone();
+    session.format_version = SESSION_FORMAT_VERSION;
+    let dir = path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .map_or_else(
+            || std::env::current_dir().ok(),
+            |d| std::fs::canonicalize(d).ok(),
+        );
+    if let (Some(dir), Some(market)) = (dir, session.market.location.absolute.as_deref()) {
+        session.market.location.from_session =
+            relative_path(&dir, Path::new(market)).map(|p| p.to_string_lossy().replace('\\', "/"));
+    }
+    write_atomically(path, session_to_ron(&session)?.as_bytes())
 }

@@ -7,12 +7,13 @@
 //! evidence ([`reproduce`]) and compares them with the stored result.
 
 mod file;
+mod legacy;
 mod outcome;
 mod replay;
 
 pub use file::{
-    SESSION_FORMAT_VERSION, SessionError, parse_session, read_session, session_to_ron,
-    write_atomically, write_session,
+    SESSION_FORMAT_VERSION, SessionError, format_version_of, parse_session, read_session,
+    session_to_ron, write_atomically, write_session,
 };
 pub use outcome::{
     Outcome, Purpose, SENSITIVITY_DAYS, WorksheetOutcome, itemized_deductions, trade_in_inputs,
@@ -35,12 +36,36 @@ use crate::worksheet::WorksheetError;
 pub struct MarketRecord {
     /// File name, row count and content hash of the market file.
     pub source: MarketSource,
-    /// Where the file was when the session was saved (may have moved since).
-    pub path: Option<String>,
+    /// Where the file was when the session was saved (it may have moved since).
+    pub location: MarketLocation,
     /// The segment appraised ("Quellmark Tessel").
     pub segment: String,
     /// Listings of the segment in the file.
     pub segment_rows: usize,
+}
+
+/// Where the market file was when the session was saved.
+#[derive(Debug, Clone, Default, PartialEq, Eq, Serialize, Deserialize)]
+pub struct MarketLocation {
+    /// Its absolute path.
+    pub absolute: Option<String>,
+    /// Its path from the session file's folder, so a case folder can be moved whole (written
+    /// on saving; format 2 on).
+    pub from_session: Option<String>,
+}
+
+impl MarketLocation {
+    /// Where to look for the market file of a session stored at `session_path`: the path
+    /// from the session's folder first, then the absolute path.
+    #[must_use]
+    pub fn candidates(&self, session_path: &std::path::Path) -> Vec<std::path::PathBuf> {
+        let dir = session_path.parent().unwrap_or(std::path::Path::new("."));
+        self.from_session
+            .iter()
+            .map(|r| dir.join(r))
+            .chain(self.absolute.iter().map(std::path::PathBuf::from))
+            .collect()
+    }
 }
 
 /// The fit the grid came from.
@@ -104,7 +129,7 @@ pub struct Session {
 pub struct Capture<'a> {
     /// The market.
     pub market: &'a Market,
-    /// Where its file was, if it came from one.
+    /// The absolute path of its file, if it came from one.
     pub market_path: Option<&'a str>,
     /// The fit.
     pub fit: &'a MarketFit,
@@ -134,7 +159,10 @@ impl Session {
             authorship,
             market: MarketRecord {
                 source: c.market.source.clone(),
-                path: c.market_path.map(str::to_owned),
+                location: MarketLocation {
+                    absolute: c.market_path.map(str::to_owned),
+                    from_session: None,
+                },
                 segment: c.market.segment_name(c.fit.segment),
                 segment_rows,
             },

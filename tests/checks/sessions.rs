@@ -1,0 +1,212 @@
+//! Session files: the samples reproduce, a session stands without its market file, damaged or
+//! newer files are refused by name, older ones are migrated, and a save cut short by a crash
+//! leaves the old file whole.
+
+use acceptance::{data_path, demo_session, repo_path, scratch_dir};
+use model::session::{
+    Purpose, SessionError, WorksheetOutcome, parse_session, read_session, reproduce,
+    session_to_ron, write_session,
+};
+use model::worksheet::{HoldingCost, Line, TradeInInputs};
+
+const SAMPLES: [&str; 3] = [
+    "dealer-trade-in",
+    "total-loss-claim",
+    "near-threshold-claim",
+];
+
+fn trade_in() -> Purpose {
+    Purpose::TradeIn(TradeInInputs {
+        retail_value: 0.0,
+        retail_value_note: None,
+        list_to_sale_discount_pct: 4.0,
+        recon: vec![Line {
+            label: "brakes".into(),
+            amount: 640.0,
+        }],
+        transport_and_fees: 300.0,
+        pack: 500.0,
+        target_front_gross: 1_800.0,
+        days_to_sell: 40.0,
+        holding: HoldingCost::PerDay { amount: 30.0 },
+    })
+}
+
+#[test]
+fn every_sample_session_reproduces_its_stored_value_to_the_cent() {
+    for name in SAMPLES {
+        let path = repo_path(&format!("sample-sessions/{name}.ron"));
+        let session = read_session(&path).unwrap_or_else(|e| panic!("{name}: {e}"));
+        let r = reproduce(&session).unwrap();
+        assert!(r.reproduces(), "{name}: {:?}", r.differences);
+        assert_eq!(
+            (r.outcome.indicated_value * 100.0).round(),
+            (session.result.indicated_value * 100.0).round()
+        );
+        assert!(
+            session.result.bottom_line().is_some(),
+            "{name} has a worksheet"
+        );
+        assert!(!session.authorship.appraiser.is_empty());
+        assert!(!session.appraisal.comparables.is_empty());
+    }
+}
+
+#[test]
+fn the_samples_cover_a_trade_in_a_total_loss_and_a_claim_near_the_threshold() {
+    let read =
+        |name: &str| read_session(&repo_path(&format!("sample-sessions/{name}.ron"))).unwrap();
+    assert!(matches!(
+        read("dealer-trade-in").result.worksheet,
+        Some(WorksheetOutcome::TradeIn { .. })
+    ));
+    let Some(WorksheetOutcome::Claim(total)) = read("total-loss-claim").result.worksheet else {
+        panic!("claim sample has no claim");
+    };
+    assert!(total.verdict.total_loss);
+    let Some(WorksheetOutcome::Claim(near)) = read("near-threshold-claim").result.worksheet else {
+        panic!("near-threshold sample has no claim");
+    };
+    // Within one percentage point under the threshold, and so not a total loss.
+    assert!(!near.verdict.total_loss);
+    assert!(near.verdict.threshold - near.verdict.measure < 1.0);
+    assert!(near.verdict.measure < near.verdict.threshold);
+}
+
+#[test]
+fn a_session_round_trips_through_its_text_unchanged() {
+    for name in SAMPLES {
+        let path = repo_path(&format!("sample-sessions/{name}.ron"));
+        let session = read_session(&path).unwrap();
+        let text = session_to_ron(&session).unwrap();
+        let again = parse_session(&text, name).unwrap();
+        assert_eq!(again, session, "{name}");
+    }
+}
+
+#[test]
+fn a_session_reproduces_after_its_market_file_is_deleted() {
+    let dir = scratch_dir("deleted-market");
+    let market = dir.join("market.csv");
+    std::fs::write(&market, model::demo::demo_csv_bytes(2_000, 1)).unwrap();
+    let session = demo_session(trade_in(), Some(&market.display().to_string()));
+    let path = dir.join("case.ron");
+    write_session(&path, &session).unwrap();
+    std::fs::remove_file(&market).unwrap();
+    let reopened = read_session(&path).unwrap();
+    assert_eq!(
+        reopened.market.location.from_session.as_deref(),
+        Some("market.csv")
+    );
+    assert!(!reopened.market.location.candidates(&path)[0].exists());
+    let r = reproduce(&reopened).unwrap();
+    assert!(r.reproduces(), "{:?}", r.differences);
+    assert_eq!(
+        r.outcome.bottom_line().map(|b| (b.1 * 100.0).round()),
+        session.result.bottom_line().map(|b| (b.1 * 100.0).round())
+    );
+}
+
+#[test]
+fn a_hand_edited_price_is_named_with_how_much_it_moves_the_value() {
+    let session = demo_session(trade_in(), None);
+    let mut edited = session.clone();
+    edited.appraisal.comparables[0].listing.asking_price += 1_000.0;
+    let line = edited.appraisal.comparables[0].listing.line;
+    let r = reproduce(&edited).unwrap();
+    assert!(!r.reproduces());
+    assert!(
+        r.differences
+            .iter()
+            .any(|d| d.what == format!("comparable line {line}, adjusted price")),
+        "{:?}",
+        r.differences
+    );
+    let value = r
+        .differences
+        .iter()
+        .find(|d| d.what == "indicated value")
+        .unwrap();
+    assert!(value.now > value.stored);
+}
+
+#[test]
+fn a_truncated_session_names_the_line_where_it_stops() {
+    let text = session_to_ron(&demo_session(trade_in(), None)).unwrap();
+    let cut = &text[..text.len() / 2];
+    let e = parse_session(cut, "cut.ron").unwrap_err();
+    let message = e.to_string();
+    assert!(message.starts_with("cut.ron, line "), "{message}");
+    assert!(message.contains("ends too early"), "{message}");
+}
+
+#[test]
+fn a_garbled_value_is_named_by_line_and_field() {
+    let text = session_to_ron(&demo_session(trade_in(), None)).unwrap();
+    let garbled = text.replacen("miles: 41000.0", "miles: forty-one thousand", 1);
+    let line = garbled
+        .lines()
+        .position(|l| l.contains("forty-one"))
+        .unwrap()
+        + 1;
+    let e = parse_session(&garbled, "garbled.ron").unwrap_err();
+    let SessionError::Syntax {
+        line: at, field, ..
+    } = &e
+    else {
+        panic!("{e}");
+    };
+    assert_eq!(*at, line, "{e}");
+    assert_eq!(field, ", field `miles`", "{e}");
+}
+
+#[test]
+fn a_missing_field_is_named() {
+    let text = session_to_ron(&demo_session(trade_in(), None)).unwrap();
+    let without = text.replacen("appraiser: \"Test Appraiser (invented)\",", "", 1);
+    let e = parse_session(&without, "edited.ron")
+        .unwrap_err()
+        .to_string();
+    assert!(e.contains("appraiser"), "{e}");
+}
+
+#[test]
+fn a_session_from_a_newer_version_is_refused_with_both_versions() {
+    let text = session_to_ron(&demo_session(trade_in(), None)).unwrap();
+    let newer = text.replacen("format_version: 2,", "format_version: 7,", 1);
+    let e = parse_session(&newer, "new.ron").unwrap_err();
+    assert!(matches!(
+        e,
+        SessionError::NewerVersion {
+            found: 7,
+            supported: 2,
+            ..
+        }
+    ));
+    assert!(e.to_string().contains("newer comptrail"), "{e}");
+}
+
+#[test]
+fn a_format_1_session_is_migrated_and_still_reproduces() {
+    // Written by comptrail's first session format (commit 7a9526d), which kept only the
+    // market file's absolute path.
+    let session = read_session(&data_path("sessions/format-1-trade-in.ron")).unwrap();
+    assert_eq!(session.format_version, 2);
+    assert_eq!(
+        session.market.location.absolute.as_deref(),
+        Some("/work/main/assets/demo-market.csv")
+    );
+    assert_eq!(session.market.location.from_session, None);
+    let r = reproduce(&session).unwrap();
+    assert!(r.reproduces(), "{:?}", r.differences);
+}
+
+#[test]
+fn a_session_file_that_is_not_text_is_refused_by_line() {
+    let dir = scratch_dir("binary-session");
+    let path = dir.join("x.ron");
+    std::fs::write(&path, b"(\n  format_version: 2,\n\xff\xfe").unwrap();
+    let e = read_session(&path).unwrap_err().to_string();
+    assert!(e.contains("line 3"), "{e}");
+    assert!(e.contains("not UTF-8"), "{e}");
+}
