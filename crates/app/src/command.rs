@@ -4,6 +4,7 @@ use std::path::PathBuf;
 
 use model::adjustment::UserAdjustment;
 use model::condition::Condition;
+use model::session::Purpose;
 use model::subject::Subject;
 
 use crate::document::{AppraisalDocument, MarketSource};
@@ -41,6 +42,16 @@ pub enum Command {
     SetOverride(u64, model::clean::Override),
     /// Drop the override on this file line.
     ClearOverride(u64),
+    /// Switch what the value is for (value, trade-in, claim).
+    ChoosePurpose(Purpose),
+    /// Edit the worksheet's inputs (a drag settles into one undo step).
+    SetPurpose(Purpose),
+    /// Set the appraiser's name.
+    SetAppraiser(String),
+    /// Set the notes.
+    SetNotes(String),
+    /// Replace the whole document (opening a session or recovering unsaved work).
+    ReplaceDocument(Box<AppraisalDocument>),
 }
 
 impl Command {
@@ -50,7 +61,12 @@ impl Command {
     pub fn is_continuous(&self) -> bool {
         matches!(
             self,
-            Command::SetSubjectMiles(_) | Command::SetLevel(_) | Command::SetComparableCount(_)
+            Command::SetSubjectMiles(_)
+                | Command::SetLevel(_)
+                | Command::SetComparableCount(_)
+                | Command::SetPurpose(_)
+                | Command::SetAppraiser(_)
+                | Command::SetNotes(_)
         )
     }
 }
@@ -96,6 +112,12 @@ pub fn apply(document: &mut AppraisalDocument, command: Command) -> bool {
         Command::ClearOverride(line) => {
             document.overrides.remove(&line);
         }
+        Command::SetPurpose(purpose) | Command::ChoosePurpose(purpose) => {
+            document.purpose = purpose;
+        }
+        Command::SetAppraiser(name) => document.appraiser = name,
+        Command::SetNotes(notes) => document.notes = notes,
+        Command::ReplaceDocument(replacement) => *document = *replacement,
         Command::OpenMarket(path) => {
             document.market = MarketSource::File(path);
             // Manual choices and overrides name lines of the old file, and a new market is

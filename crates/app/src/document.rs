@@ -4,10 +4,12 @@
 use std::path::PathBuf;
 
 use model::adjustment::UserAdjustment;
-use model::appraisal::FitSettings;
+use model::appraisal::{AppraisalRequest, FitSettings};
 use model::clean::Overrides;
 use model::comparables::{ComparableChoices, ComparableRules};
+use model::session::{Purpose, Session};
 use model::subject::Subject;
+use model::worksheet::{ClaimInputs, HoldingCost, JurisdictionProfile, Line, TradeInInputs};
 use serde::{Deserialize, Serialize};
 
 /// Where the market comes from.
@@ -55,6 +57,12 @@ pub struct AppraisalDocument {
     pub user_adjustments: Vec<UserAdjustment>,
     /// Level of the intervals and the value band.
     pub level: f64,
+    /// What the value is for, with the worksheet's inputs.
+    pub purpose: Purpose,
+    /// The appraiser's name.
+    pub appraiser: String,
+    /// Free notes kept with the appraisal.
+    pub notes: String,
 }
 
 /// The subject shown when the workbench starts on the demo market.
@@ -88,6 +96,86 @@ impl AppraisalDocument {
             choices: ComparableChoices::default(),
             user_adjustments: Vec::new(),
             level: 0.8,
+            purpose: Purpose::Value,
+            appraiser: String::new(),
+            notes: String::new(),
         }
+    }
+
+    /// The appraisal request the document describes; a claim searches with its profile's
+    /// filters.
+    #[must_use]
+    pub fn request(&self) -> AppraisalRequest {
+        let rules = match &self.purpose {
+            Purpose::Claim { profile, .. } => profile.comparable_rules(&self.rules),
+            _ => self.rules,
+        };
+        AppraisalRequest {
+            subject: self.subject.clone(),
+            rules,
+            choices: self.choices.clone(),
+            user_adjustments: self.user_adjustments.clone(),
+            level: self.level,
+        }
+    }
+
+    /// The document a saved session describes, on `market`.
+    #[must_use]
+    pub fn from_session(session: &Session, market: MarketSource) -> Self {
+        Self {
+            market,
+            subject: session.request.subject.clone(),
+            fit: session.fit.settings,
+            overrides: session.fit.overrides.clone(),
+            // A claim's saved rules already carry its profile's filters; applying the profile
+            // again gives the same rules.
+            rules: session.request.rules,
+            choices: session.request.choices.clone(),
+            user_adjustments: session.request.user_adjustments.clone(),
+            level: session.request.level,
+            purpose: session.purpose.clone(),
+            appraiser: session.authorship.appraiser.clone(),
+            notes: session.authorship.notes.clone(),
+        }
+    }
+}
+
+/// A trade-in worksheet with the usual starting figures (common practice, no source; every
+/// one is the user's to change).
+#[must_use]
+pub fn default_trade_in() -> TradeInInputs {
+    TradeInInputs {
+        retail_value: 0.0,
+        retail_value_note: None,
+        list_to_sale_discount_pct: 4.0,
+        recon: vec![Line {
+            label: "detail and inspection".into(),
+            amount: 300.0,
+        }],
+        transport_and_fees: 300.0,
+        pack: 500.0,
+        target_front_gross: 2_000.0,
+        days_to_sell: 45.0,
+        holding: HoldingCost::PerDay { amount: 30.0 },
+    }
+}
+
+/// A claim worksheet under `profile`, with zero amounts for the adjuster to fill in.
+#[must_use]
+pub fn default_claim(profile: JurisdictionProfile) -> Purpose {
+    Purpose::Claim {
+        inputs: ClaimInputs {
+            profile_id: profile.id.clone(),
+            sales_tax_pct: 0.0,
+            title_fee: 0.0,
+            transfer_fee: 0.0,
+            annual_registration: 0.0,
+            registration_months_remaining: 0.0,
+            deductible: 500.0,
+            repair_estimate: 0.0,
+            salvage_value: 0.0,
+            owner_retains_salvage: false,
+        },
+        profile,
     }
 }

@@ -20,9 +20,14 @@ fn main() -> eframe::Result {
                 .and_then(|s| eframe::get_value(s, KEY))
                 .unwrap_or_default();
             let ctx = cc.egui_ctx.clone();
-            Ok(Box::new(Workbench::new(preferences, move || {
+            let mut workbench = Workbench::new(preferences, move || {
                 ctx.request_repaint();
-            })))
+            });
+            // Unsaved work is written beside the preferences and offered back after a crash.
+            if let Some(dir) = eframe::storage_dir("comptrail") {
+                workbench = workbench.with_recovery_file(dir.join("unsaved-appraisal.ron"));
+            }
+            Ok(Box::new(workbench))
         }),
     )
 }

@@ -12,6 +12,7 @@ pub const RECENT_LIMIT: usize = 8;
 
 /// Preferences.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(default)]
 pub struct Preferences {
     /// Dark theme when true.
     pub dark: bool,
@@ -19,6 +20,11 @@ pub struct Preferences {
     pub recent_files: Vec<PathBuf>,
     /// Show the comparables pane.
     pub show_comparables: bool,
+    /// Recently saved or opened session files, newest first.
+    pub recent_sessions: Vec<PathBuf>,
+    /// Keep every listing of the model in saved sessions (larger files; reports show the whole
+    /// market).
+    pub keep_segment: bool,
 }
 
 impl Default for Preferences {
@@ -27,6 +33,8 @@ impl Default for Preferences {
             dark: false,
             recent_files: Vec::new(),
             show_comparables: true,
+            recent_sessions: Vec::new(),
+            keep_segment: false,
         }
     }
 }
@@ -37,5 +45,12 @@ impl Preferences {
         self.recent_files.retain(|p| p != &path);
         self.recent_files.insert(0, path);
         self.recent_files.truncate(RECENT_LIMIT);
+    }
+
+    /// Puts `path` first in the recent sessions.
+    pub fn remember_session(&mut self, path: PathBuf) {
+        self.recent_sessions.retain(|p| p != &path);
+        self.recent_sessions.insert(0, path);
+        self.recent_sessions.truncate(RECENT_LIMIT);
     }
 }

@@ -6,7 +6,12 @@ use std::sync::Arc;
 
 use eframe::egui::util::undoer::{Settings as UndoSettings, Undoer};
 use eframe::egui::{self, Key, RichText, Ui};
-use model::appraisal::{AppraisalRequest, appraise};
+use model::appraisal::appraise;
+use model::worksheet::ProfileFile;
+
+mod case_file;
+
+pub use case_file::{AUTOSAVE_SECONDS, CaseFile, FilePrompt, MarketState, Opened, Recovery};
 
 use crate::command::{Command, apply};
 use crate::document::AppraisalDocument;
@@ -36,6 +41,10 @@ pub struct Workbench {
     clock: f64,
     /// Which view the central area shows.
     view: CentralView,
+    /// The session file, recovery and close state.
+    case: CaseFile,
+    /// Jurisdiction profiles for claims.
+    profiles: ProfileFile,
 }
 
 /// The views of the central area.
@@ -48,6 +57,8 @@ pub enum CentralView {
     Depreciation,
     /// Listings ranked by their gap to the market.
     PriceGaps,
+    /// The trade-in offer or the claim.
+    Worksheet,
 }
 
 impl Workbench {
@@ -64,6 +75,7 @@ impl Workbench {
         preferences: Preferences,
         wake: impl Fn() + Send + 'static,
     ) -> Self {
+        let document_copy = document.clone();
         let mut worker = Worker::start(wake);
         let runtime = Runtime {
             loading: Some(document.market.clone()),
@@ -91,7 +103,26 @@ impl Workbench {
             appraised_for: None,
             clock: 0.0,
             view: CentralView::default(),
+            case: CaseFile {
+                saved: Some(document_copy),
+                ..CaseFile::default()
+            },
+            profiles: model::worksheet::shipped_profiles().unwrap_or(ProfileFile {
+                format_version: model::worksheet::PROFILES_FORMAT_VERSION,
+                profiles: Vec::new(),
+            }),
         }
+    }
+
+    /// Shows `view` in the central area.
+    pub fn show_view(&mut self, view: CentralView) {
+        self.view = view;
+    }
+
+    /// The jurisdiction profiles offered for claims.
+    #[must_use]
+    pub fn profiles(&self) -> &ProfileFile {
+        &self.profiles
     }
 
     /// The document.
@@ -327,13 +358,7 @@ impl Workbench {
         {
             return;
         }
-        let request = AppraisalRequest {
-            subject: self.document.subject.clone(),
-            rules: self.document.rules,
-            choices: self.document.choices.clone(),
-            user_adjustments: self.document.user_adjustments.clone(),
-            level: self.document.level,
-        };
+        let request = self.document.request();
         let same_segment = market
             .segment_name(fit.segment)
             .eq_ignore_ascii_case(&format!(
@@ -356,15 +381,19 @@ impl Workbench {
     }
 
     fn shortcuts(&mut self, ui: &Ui) {
-        let (undo, redo, open, help) = ui.input(|i| {
+        let (undo, redo, open, help, save) = ui.input(|i| {
             let command = i.modifiers.command;
             (
                 command && !i.modifiers.shift && i.key_pressed(Key::Z),
                 command && (i.key_pressed(Key::Y) || (i.modifiers.shift && i.key_pressed(Key::Z))),
-                command && i.key_pressed(Key::O),
+                command && !i.modifiers.shift && i.key_pressed(Key::O),
                 i.key_pressed(Key::F1),
+                command && i.key_pressed(Key::S),
             )
         });
+        if save {
+            self.save_or_prompt();
+        }
         if undo {
             self.undo();
         }
@@ -376,6 +405,18 @@ impl Workbench {
         }
         if help {
             self.show_help = !self.show_help;
+        }
+    }
+
+    /// Saves to the session's file, or asks where when it has none yet.
+    fn save_or_prompt(&mut self) {
+        match self.case.path.clone() {
+            Some(path) => {
+                if let Err(e) = self.save_session(&path) {
+                    self.case.message = Some((true, e));
+                }
+            }
+            None => self.prompt(FilePrompt::SaveSession),
         }
     }
 
@@ -399,6 +440,7 @@ impl Workbench {
         self.refresh_appraisal();
         self.undoer.feed_state(self.clock, &self.document);
         self.shortcuts(ui);
+        self.autosave();
         let dropped: Vec<PathBuf> = ui.input(|i| {
             i.raw
                 .dropped_files
@@ -420,6 +462,19 @@ impl Workbench {
         egui::Panel::bottom("cautions").show(ui, |ui| {
             ui.small(model::cautions::CAUTIONS[..3].join(" "));
         });
+        if self.case.message.is_some() || self.case.opened.is_some() {
+            egui::Panel::top("case_banner").show(ui, |ui| self.opened_banner_ui(ui));
+        }
+        self.case_windows(ui);
+        if let Some(opened) = self.case.opened.as_ref().filter(|o| !o.live) {
+            let (session, reproduction) = (opened.session.clone(), opened.reproduction.clone());
+            egui::CentralPanel::default().show(ui, |ui| {
+                panes::saved_session::ui(ui, &session, &reproduction);
+            });
+            self.failure_window(ui);
+            self.help_window(ui);
+            return;
+        }
         let mut commands = Vec::new();
         let (Some(market), Some(fit)) = (self.runtime.market.clone(), self.runtime.fit.clone())
         else {
@@ -438,47 +493,28 @@ impl Workbench {
             commands: &mut commands,
         };
         cx.selection.hovered = None;
-        egui::Panel::left("subject_and_value")
-            .default_size(380.0)
-            .show(ui, |ui| {
-                egui::ScrollArea::vertical().show(ui, |ui| {
-                    panes::value::ui(ui, &mut cx);
-                    if let Some(e) = &self.runtime.appraisal_error {
-                        ui.colored_label(ui.visuals().error_fg_color, e.to_string());
-                    }
-                    if let Some(e) = &self.runtime.fit_error {
-                        ui.colored_label(
-                            ui.visuals().error_fg_color,
-                            format!("The fit failed: {e}"),
-                        );
-                    }
-                    ui.separator();
-                    panes::subject::ui(ui, &mut cx);
-                });
-            });
-        if self.preferences.show_comparables {
-            egui::Panel::bottom("comparables")
-                .resizable(true)
-                .default_size(260.0)
-                .show(ui, |ui| {
-                    ui.heading("Comparables");
-                    panes::user_adjustments::ui(ui, &mut cx);
-                    panes::comparables::ui(ui, &mut cx);
-                });
-        }
+        side_panels_ui(
+            ui,
+            &mut cx,
+            &self.runtime,
+            self.preferences.show_comparables,
+        );
         let gaps = self.runtime.gaps.clone();
         let view = &mut self.view;
+        let profiles = &self.profiles;
         egui::CentralPanel::default().show(ui, |ui| {
             ui.horizontal(|ui| {
                 ui.selectable_value(view, CentralView::Charts, "Charts");
                 ui.selectable_value(view, CentralView::Depreciation, "Depreciation");
                 ui.selectable_value(view, CentralView::PriceGaps, "Price gaps");
+                ui.selectable_value(view, CentralView::Worksheet, "Worksheet");
             });
             ui.separator();
             match *view {
                 CentralView::Charts => charts_ui(ui, &mut cx),
                 CentralView::Depreciation => panes::depreciation::ui(ui, &mut cx),
                 CentralView::PriceGaps => panes::gaps::ui(ui, &mut cx, gaps.as_deref()),
+                CentralView::Worksheet => panes::worksheet::ui(ui, &mut cx, profiles),
             }
         });
         for command in commands {
@@ -507,19 +543,17 @@ impl Workbench {
             }
             let recent = self.preferences.recent_files.clone();
             if !recent.is_empty() {
-                egui::ComboBox::from_id_salt("recent_files")
-                    .selected_text("Recent")
-                    .show_ui(ui, |ui| {
-                        for path in recent {
-                            if ui
-                                .selectable_label(false, path.display().to_string())
-                                .clicked()
-                            {
-                                self.apply(Command::OpenMarket(path));
-                            }
+                ui.menu_button("Recent markets", |ui| {
+                    for path in recent {
+                        if ui.button(path.display().to_string()).clicked() {
+                            self.apply(Command::OpenMarket(path));
+                            ui.close();
                         }
-                    });
+                    }
+                });
             }
+            ui.separator();
+            self.session_buttons_ui(ui);
             ui.separator();
             if ui
                 .add_enabled(
@@ -556,6 +590,44 @@ impl Workbench {
                 }
             }
         });
+    }
+
+    fn session_buttons_ui(&mut self, ui: &mut Ui) {
+        if ui.button("Open session…").clicked() {
+            self.prompt(FilePrompt::OpenSession);
+        }
+        let recent = self.preferences.recent_sessions.clone();
+        if !recent.is_empty() {
+            ui.menu_button("Recent sessions", |ui| {
+                for path in recent {
+                    if ui.button(path.display().to_string()).clicked() {
+                        if let Err(e) = self.open_session(&path) {
+                            self.case.message = Some((true, e));
+                        }
+                        ui.close();
+                    }
+                }
+            });
+        }
+        let unsaved = self.has_unsaved_changes();
+        let save_label = if unsaved {
+            "Save session*"
+        } else {
+            "Save session"
+        };
+        if ui
+            .button(save_label)
+            .on_hover_text("Ctrl+S; * marks unsaved changes")
+            .clicked()
+        {
+            self.save_or_prompt();
+        }
+        if ui.button("Save as…").clicked() {
+            self.prompt(FilePrompt::SaveSession);
+        }
+        if ui.button("Report…").clicked() {
+            self.prompt(FilePrompt::Report);
+        }
     }
 
     fn status_text(&self) -> String {
@@ -633,6 +705,7 @@ impl Workbench {
                 egui::Grid::new("shortcuts").show(ui, |ui| {
                     for (keys, what) in [
                         ("Ctrl+O", "open a market file"),
+                        ("Ctrl+S", "save the session"),
                         ("Ctrl+Z", "undo"),
                         ("Ctrl+Shift+Z or Ctrl+Y", "redo"),
                         ("F1", "show or hide this help"),
@@ -644,6 +717,35 @@ impl Workbench {
                         ui.end_row();
                     }
                 });
+            });
+    }
+}
+
+/// The subject and value on the left, the comparables below.
+fn side_panels_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, runtime: &Runtime, comparables: bool) {
+    egui::Panel::left("subject_and_value")
+        .default_size(380.0)
+        .show(ui, |ui| {
+            egui::ScrollArea::vertical().show(ui, |ui| {
+                panes::value::ui(ui, cx);
+                if let Some(e) = &runtime.appraisal_error {
+                    ui.colored_label(ui.visuals().error_fg_color, e.to_string());
+                }
+                if let Some(e) = &runtime.fit_error {
+                    ui.colored_label(ui.visuals().error_fg_color, format!("The fit failed: {e}"));
+                }
+                ui.separator();
+                panes::subject::ui(ui, cx);
+            });
+        });
+    if comparables {
+        egui::Panel::bottom("comparables")
+            .resizable(true)
+            .default_size(260.0)
+            .show(ui, |ui| {
+                ui.heading("Comparables");
+                panes::user_adjustments::ui(ui, cx);
+                panes::comparables::ui(ui, cx);
             });
     }
 }

@@ -5,9 +5,11 @@ pub mod comparables;
 pub mod depreciation;
 pub mod gaps;
 pub mod mileage_chart;
+pub mod saved_session;
 pub mod subject;
 pub mod user_adjustments;
 pub mod value;
+pub mod worksheet;
 pub mod year_chart;
 
 use eframe::egui;

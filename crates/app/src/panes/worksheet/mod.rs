@@ -1,0 +1,186 @@
+//! The worksheet: what the value is for. A trade-in offer with every deduction and its
+//! sensitivity, or a total-loss claim under a jurisdiction's profile with the settlement, the
+//! total-loss test and the comparables checked against the profile's rules.
+
+mod claim;
+mod trade_in;
+
+use eframe::egui::{self, RichText, Ui};
+use model::format::{cents, money, signed_cents};
+use model::session::{Outcome, Purpose, WorksheetOutcome, work_out};
+use model::worksheet::ProfileFile;
+
+use super::PaneContext;
+use crate::command::Command;
+use crate::document::{default_claim, default_trade_in};
+
+/// Accessible label of the worksheet's bottom line ("ACV offer" or "Settlement payment").
+pub const OFFER_LABEL: &str = "ACV offer";
+/// Accessible label of the claim's payment.
+pub const PAYMENT_LABEL: &str = "Settlement payment";
+
+/// Draws the pane.
+pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>, profiles: &ProfileFile) {
+    case_details_ui(ui, cx);
+    purpose_selector(ui, cx, profiles);
+    ui.separator();
+    let Some(appraisal) = cx.appraisal else {
+        ui.label("No appraisal yet: the worksheet needs a value.");
+        return;
+    };
+    let request = cx.document.request();
+    let outcome = work_out(&cx.document.purpose, appraisal, &request);
+    egui::ScrollArea::vertical().show(ui, |ui| match &cx.document.purpose {
+        Purpose::Value => {
+            ui.label(
+                "A value only. Choose a trade-in offer or a total-loss claim above to work the value into a decision.",
+            );
+        }
+        Purpose::TradeIn(inputs) => {
+            ui.columns(2, |columns| {
+                trade_in::inputs_ui(&mut columns[0], cx, inputs, appraisal);
+                match &outcome {
+                    Ok(o) => outcome_ui(&mut columns[1], o),
+                    Err(e) => {
+                        columns[1].colored_label(columns[1].visuals().error_fg_color, e.to_string());
+                    }
+                }
+                trade_in::supply_ui(&mut columns[1], cx);
+            });
+        }
+        Purpose::Claim { profile, inputs } => {
+            ui.columns(2, |columns| {
+                claim::inputs_ui(&mut columns[0], cx, profile, inputs, profiles);
+                match &outcome {
+                    Ok(o) => outcome_ui(&mut columns[1], o),
+                    Err(e) => {
+                        columns[1].colored_label(columns[1].visuals().error_fg_color, e.to_string());
+                    }
+                }
+            });
+        }
+    });
+}
+
+/// Who is appraising, and notes kept with the session.
+fn case_details_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
+    ui.horizontal(|ui| {
+        let mut name = cx.document.appraiser.clone();
+        let label = ui.label("Appraiser");
+        if ui
+            .add(
+                egui::TextEdit::singleline(&mut name)
+                    .hint_text("your name")
+                    .desired_width(220.0),
+            )
+            .labelled_by(label.id)
+            .changed()
+        {
+            cx.commands.push(Command::SetAppraiser(name));
+        }
+        let mut notes = cx.document.notes.clone();
+        let label = ui.label("Notes");
+        if ui
+            .add(
+                egui::TextEdit::multiline(&mut notes)
+                    .desired_rows(1)
+                    .desired_width(ui.available_width()),
+            )
+            .labelled_by(label.id)
+            .changed()
+        {
+            cx.commands.push(Command::SetNotes(notes));
+        }
+    });
+}
+
+fn purpose_selector(ui: &mut Ui, cx: &mut PaneContext<'_>, profiles: &ProfileFile) {
+    ui.horizontal(|ui| {
+        ui.label("This appraisal is for:");
+        let current = &cx.document.purpose;
+        if ui
+            .selectable_label(matches!(current, Purpose::Value), "A value")
+            .clicked()
+            && !matches!(current, Purpose::Value)
+        {
+            cx.commands.push(Command::ChoosePurpose(Purpose::Value));
+        }
+        if ui
+            .selectable_label(matches!(current, Purpose::TradeIn(_)), "A trade-in offer")
+            .clicked()
+            && !matches!(current, Purpose::TradeIn(_))
+        {
+            cx.commands
+                .push(Command::ChoosePurpose(Purpose::TradeIn(default_trade_in())));
+        }
+        if ui
+            .selectable_label(
+                matches!(current, Purpose::Claim { .. }),
+                "A total-loss claim",
+            )
+            .clicked()
+            && !matches!(current, Purpose::Claim { .. })
+        {
+            if let Some(first) = profiles.profiles.first() {
+                cx.commands
+                    .push(Command::ChoosePurpose(default_claim(first.clone())));
+            }
+        }
+    });
+}
+
+fn amount_row(ui: &mut Ui, label: &str, amount: String) {
+    ui.label(label);
+    ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
+        ui.monospace(amount);
+    });
+    ui.end_row();
+}
+
+/// The worked worksheet, every part on its own line (shared with the saved-session view).
+pub fn outcome_ui(ui: &mut Ui, outcome: &Outcome) {
+    match &outcome.worksheet {
+        None => {
+            ui.label(format!(
+                "Indicated value {}",
+                money(outcome.indicated_value)
+            ));
+        }
+        Some(WorksheetOutcome::TradeIn { offer, sensitivity }) => {
+            ui.heading("Trade-in offer");
+            egui::Grid::new("offer_lines").striped(true).show(ui, |ui| {
+                amount_row(ui, "Expected retail value", cents(offer.retail_value));
+                amount_row(
+                    ui,
+                    "Expected sale after the list-to-sale discount",
+                    cents(offer.expected_sale),
+                );
+                for d in &offer.deductions {
+                    amount_row(ui, &format!("less {}", d.label), signed_cents(-d.amount));
+                }
+            });
+            ui.label(
+                RichText::new(format!("{OFFER_LABEL}: {}", cents(offer.offer)))
+                    .size(22.0)
+                    .strong(),
+            );
+            ui.label("The offer at other days to sell:");
+            ui.horizontal_wrapped(|ui| {
+                for (days, o) in &sensitivity.by_days {
+                    ui.label(format!("{days:.0} days {}", money(*o)));
+                }
+            });
+            let [low, mid, high] = sensitivity.by_value;
+            ui.label(format!(
+                "Across the value band: {} if retail is {} (band low), {} at {}, {} at {} (band high).",
+                money(low.1),
+                money(low.0),
+                money(mid.1),
+                money(mid.0),
+                money(high.1),
+                money(high.0)
+            ));
+        }
+        Some(WorksheetOutcome::Claim(c)) => claim::worked_ui(ui, c),
+    }
+}

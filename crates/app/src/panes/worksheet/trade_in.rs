@@ -1,0 +1,211 @@
+//! The trade-in worksheet's inputs.
+
+use eframe::egui::{self, Ui};
+use model::appraisal::Appraisal;
+use model::format::money;
+use model::session::Purpose;
+use model::worksheet::{HoldingCost, Line, TradeInInputs};
+
+use super::super::PaneContext;
+use crate::command::Command;
+
+fn money_input(ui: &mut Ui, label: &str, value: &mut f64) -> bool {
+    let label = ui.label(label);
+    let changed = ui
+        .add(
+            egui::DragValue::new(value)
+                .prefix("$")
+                .speed(10.0)
+                .range(0.0..=1e7),
+        )
+        .labelled_by(label.id)
+        .changed();
+    ui.end_row();
+    changed
+}
+
+/// Edits the trade-in inputs; every change is one command.
+pub fn inputs_ui(
+    ui: &mut Ui,
+    cx: &mut PaneContext<'_>,
+    inputs: &TradeInInputs,
+    appraisal: &Appraisal,
+) {
+    let mut edited = inputs.clone();
+    let mut changed = false;
+    ui.heading("What it costs to retail");
+    changed |= retail_value_ui(ui, &mut edited, appraisal);
+    egui::Grid::new("trade_in_inputs")
+        .num_columns(2)
+        .show(ui, |ui| {
+            let label = ui.label("List-to-sale discount");
+            changed |= ui
+                .add(
+                    egui::DragValue::new(&mut edited.list_to_sale_discount_pct)
+                        .suffix(" %")
+                        .speed(0.1)
+                        .range(0.0..=50.0),
+                )
+                .labelled_by(label.id)
+                .changed();
+            ui.end_row();
+            changed |= money_input(ui, "Transport and fees", &mut edited.transport_and_fees);
+            changed |= money_input(ui, "Pack", &mut edited.pack);
+            changed |= money_input(ui, "Target front gross", &mut edited.target_front_gross);
+            let label = ui.label("Days to sell");
+            changed |= ui
+                .add(
+                    egui::DragValue::new(&mut edited.days_to_sell)
+                        .suffix(" days")
+                        .range(0.0..=365.0),
+                )
+                .labelled_by(label.id)
+                .changed();
+            ui.end_row();
+            ui.label("Holding cost");
+            ui.horizontal(|ui| {
+                let per_day = matches!(edited.holding, HoldingCost::PerDay { .. });
+                if ui.radio(per_day, "per day").clicked() && !per_day {
+                    edited.holding = HoldingCost::PerDay { amount: 30.0 };
+                    changed = true;
+                }
+                if ui.radio(!per_day, "rate on the offer").clicked() && per_day {
+                    edited.holding = HoldingCost::RateOnOffer { annual_pct: 7.0 };
+                    changed = true;
+                }
+                match &mut edited.holding {
+                    HoldingCost::PerDay { amount } => {
+                        changed |= ui
+                            .add(
+                                egui::DragValue::new(amount)
+                                    .prefix("$")
+                                    .suffix(" a day")
+                                    .range(0.0..=1e4),
+                            )
+                            .changed();
+                    }
+                    HoldingCost::RateOnOffer { annual_pct } => {
+                        changed |= ui
+                            .add(
+                                egui::DragValue::new(annual_pct)
+                                    .suffix(" % a year")
+                                    .speed(0.1)
+                                    .range(0.0..=100.0),
+                            )
+                            .changed();
+                    }
+                }
+            });
+            ui.end_row();
+        });
+    changed |= recon_ui(ui, &mut edited.recon);
+    if changed {
+        cx.commands
+            .push(Command::SetPurpose(Purpose::TradeIn(edited)));
+    }
+}
+
+/// The retail value: the indicated value, or the appraiser's with a reason.
+fn retail_value_ui(ui: &mut Ui, edited: &mut TradeInInputs, appraisal: &Appraisal) -> bool {
+    let mut changed = false;
+    let mut edit_retail = edited.retail_value_note.is_some();
+    if ui
+        .checkbox(
+            &mut edit_retail,
+            format!(
+                "Use another retail value than the indicated {}",
+                money(appraisal.reconciliation.indicated_value)
+            ),
+        )
+        .changed()
+    {
+        changed = true;
+        if edit_retail {
+            edited.retail_value = appraisal.reconciliation.indicated_value.round();
+            edited.retail_value_note = Some(String::new());
+        } else {
+            edited.retail_value_note = None;
+        }
+    }
+    if let Some(note) = edited.retail_value_note.as_mut() {
+        ui.horizontal(|ui| {
+            changed |= ui
+                .add(
+                    egui::DragValue::new(&mut edited.retail_value)
+                        .prefix("$")
+                        .speed(10.0),
+                )
+                .changed();
+            ui.label("because");
+            changed |= ui
+                .add(egui::TextEdit::singleline(note).hint_text("the reason (required)"))
+                .changed();
+        });
+        if note.trim().is_empty() {
+            ui.colored_label(
+                ui.visuals().warn_fg_color,
+                "Give the reason: until then the indicated value is used.",
+            );
+        }
+    }
+    changed
+}
+
+/// The reconditioning lines.
+fn recon_ui(ui: &mut Ui, recon: &mut Vec<Line>) -> bool {
+    let mut changed = false;
+    ui.strong("Reconditioning");
+    let mut remove = None;
+    for (i, line) in recon.iter_mut().enumerate() {
+        ui.horizontal(|ui| {
+            changed |= ui
+                .add(egui::TextEdit::singleline(&mut line.label).desired_width(200.0))
+                .changed();
+            changed |= ui
+                .add(
+                    egui::DragValue::new(&mut line.amount)
+                        .prefix("$")
+                        .speed(5.0)
+                        .range(0.0..=1e6),
+                )
+                .changed();
+            if ui.small_button("Remove").clicked() {
+                remove = Some(i);
+            }
+        });
+    }
+    if let Some(i) = remove {
+        recon.remove(i);
+        changed = true;
+    }
+    if ui.button("Add recon line").clicked() {
+        recon.push(Line {
+            label: "recon".into(),
+            amount: 0.0,
+        });
+        changed = true;
+    }
+    changed
+}
+
+/// Days' supply of the subject's segment, when the market file has sale dates.
+pub fn supply_ui(ui: &mut Ui, cx: &PaneContext<'_>) {
+    ui.separator();
+    match model::supply::segment_supply(cx.market, &cx.fit.cleaning.rows, cx.fit.as_of, 30) {
+        None => {
+            ui.label("Days' supply: the market file has no sale dates.");
+        }
+        Some(s) => {
+            ui.label(match s.days_supply {
+                Some(d) => format!(
+                    "Days' supply of this model: {d:.0} days ({} listed, {} sold in the last {} days).",
+                    s.listed, s.sold_in_window, s.window_days
+                ),
+                None => format!(
+                    "Days' supply: none of the {} listed sold in the last {} days.",
+                    s.listed, s.window_days
+                ),
+            });
+        }
+    }
+}

@@ -1,0 +1,305 @@
+//! The appraisal workflows in the workbench: a trade-in and a claim from the demo, saved as
+//! sessions and reopened to the same numbers; a session whose market file is gone or changed;
+//! unsaved work recovered after a crash; closing with unsaved changes asks first.
+
+// Tests unwrap (a failure is the report) and compare money to the cent exactly.
+#![allow(clippy::unwrap_used, clippy::expect_used, clippy::float_cmp)]
+
+use std::path::PathBuf;
+
+use app::Workbench;
+use app::command::Command;
+use app::document::{AppraisalDocument, MarketSource, default_claim, default_trade_in};
+use app::preferences::Preferences;
+use app::workbench::{CentralView, MarketState};
+use eframe::egui;
+use egui_kittest::Harness;
+use egui_kittest::kittest::Queryable;
+use model::format::cents;
+use model::session::{Purpose, WorksheetOutcome, work_out};
+
+const SMALL_DEMO: usize = 4_000;
+
+fn scratch(name: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("comptrail-app-{name}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    dir
+}
+
+fn workbench_on(document: AppraisalDocument) -> Workbench {
+    let mut wb = Workbench::with_document(document, Preferences::default(), || {});
+    wb.wait_for_jobs();
+    wb
+}
+
+fn bottom_line(wb: &Workbench) -> f64 {
+    let doc = wb.document();
+    let outcome = work_out(
+        &doc.purpose,
+        wb.runtime().appraisal.as_ref().unwrap(),
+        &doc.request(),
+    )
+    .unwrap();
+    outcome.bottom_line().unwrap().1
+}
+
+fn harness_on(wb: Workbench) -> Harness<'static, Workbench> {
+    let mut harness = Harness::builder()
+        .with_size(egui::Vec2::new(1500.0, 950.0))
+        .build_ui_state(|ui, wb: &mut Workbench| wb.ui(ui), wb);
+    harness.run_steps(3);
+    harness
+}
+
+#[test]
+fn a_trade_in_from_the_demo_is_worked_saved_and_reopened_to_the_same_numbers() {
+    let mut wb = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
+    assert!(!wb.has_unsaved_changes());
+    wb.show_view(CentralView::Worksheet);
+    let mut harness = harness_on(wb);
+    // Choose the trade-in through the real UI.
+    harness.get_by_label("A trade-in offer").click();
+    harness.run_steps(2);
+    harness.state_mut().wait_for_jobs();
+    harness.run_steps(1);
+    assert!(matches!(
+        harness.state().document().purpose,
+        Purpose::TradeIn(_)
+    ));
+    let offer = bottom_line(harness.state());
+    harness.get_by_label(&format!("ACV offer: {}", cents(offer)));
+    assert!(harness.state().has_unsaved_changes());
+
+    let dir = scratch("trade-in");
+    let path = dir.join("trade.ron");
+    harness.state_mut().save_session(&path).unwrap();
+    assert!(!harness.state().has_unsaved_changes());
+    let value = harness
+        .state()
+        .runtime()
+        .appraisal
+        .as_ref()
+        .unwrap()
+        .reconciliation
+        .indicated_value;
+
+    // A fresh workbench reopens it live (the demo market regenerates to the same bytes).
+    let mut other = workbench_on(AppraisalDocument::demo(SMALL_DEMO / 2));
+    other.open_session(&path).unwrap();
+    other.wait_for_jobs();
+    let opened = other.case_file().opened.as_ref().unwrap();
+    assert!(opened.reproduction.reproduces());
+    assert!(opened.live);
+    assert_eq!(
+        opened.market,
+        MarketState::Unchanged(MarketSource::Demo { rows: SMALL_DEMO })
+    );
+    let again = other.runtime().appraisal.as_ref().unwrap();
+    assert_eq!(cents(again.reconciliation.indicated_value), cents(value));
+    assert_eq!(cents(bottom_line(&other)), cents(offer));
+    assert!(!other.has_unsaved_changes());
+}
+
+#[test]
+fn a_claim_shows_the_settlement_the_profile_check_and_the_cautions() {
+    let mut wb = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
+    let ny = wb.profiles().get("ny").unwrap().clone();
+    let Purpose::Claim {
+        profile,
+        mut inputs,
+    } = default_claim(ny)
+    else {
+        unreachable!()
+    };
+    inputs.sales_tax_pct = 8.0;
+    inputs.title_fee = 50.0;
+    inputs.repair_estimate = 25_000.0;
+    inputs.salvage_value = 5_000.0;
+    wb.apply(Command::ChoosePurpose(Purpose::Claim { profile, inputs }));
+    wb.wait_for_jobs();
+    wb.show_view(CentralView::Worksheet);
+    let payment = bottom_line(&wb);
+    let mut harness = harness_on(wb);
+    harness.get_by_label(&format!("Settlement payment: {}", cents(payment)));
+    harness.get_by_label("Total loss: yes");
+    harness.get_by_label_contains("meet every rule of the profile");
+    for caution in model::cautions::CAUTIONS {
+        harness.get_by_label(&format!("• {caution}"));
+    }
+    // The claim searched with the profile's mileage rule (11 NYCRR 216.7).
+    let subject_miles = harness.state().document().subject.miles;
+    for c in &harness
+        .state()
+        .runtime()
+        .appraisal
+        .as_ref()
+        .unwrap()
+        .comparables
+    {
+        assert!(c.listing.miles <= subject_miles + 4_000f64.max(0.1 * subject_miles));
+    }
+    // And it saves and reopens to the same payment.
+    let dir = scratch("claim");
+    let path = dir.join("claim.ron");
+    harness.state_mut().save_session(&path).unwrap();
+    let session = model::session::read_session(&path).unwrap();
+    assert!(matches!(
+        session.result.worksheet,
+        Some(WorksheetOutcome::Claim(_))
+    ));
+    assert_eq!(
+        cents(session.result.bottom_line().unwrap().1),
+        cents(payment)
+    );
+}
+
+fn file_market(dir: &std::path::Path) -> PathBuf {
+    let market = dir.join("market.csv");
+    std::fs::write(&market, model::demo::demo_csv_bytes(3_000, 5)).unwrap();
+    market
+}
+
+fn file_document(market: PathBuf) -> AppraisalDocument {
+    AppraisalDocument {
+        market: MarketSource::File(market),
+        ..AppraisalDocument::demo(3_000)
+    }
+}
+
+#[test]
+fn a_session_whose_market_file_is_gone_shows_its_saved_evidence() {
+    let dir = scratch("gone");
+    let market = file_market(&dir);
+    let mut wb = workbench_on(file_document(market.clone()));
+    wb.apply(Command::ChoosePurpose(Purpose::TradeIn(default_trade_in())));
+    wb.wait_for_jobs();
+    let offer = bottom_line(&wb);
+    let path = dir.join("case.ron");
+    wb.save_session(&path).unwrap();
+    std::fs::remove_file(&market).unwrap();
+
+    let mut other = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
+    other.open_session(&path).unwrap();
+    let opened = other.case_file().opened.as_ref().unwrap();
+    assert_eq!(opened.market, MarketState::Missing);
+    assert!(!opened.live);
+    assert!(opened.reproduction.reproduces());
+    let harness = harness_on(other);
+    harness.get_by_label_contains("the saved evidence reproduces");
+    harness.get_by_label_contains("is not where it was");
+    harness.get_by_label("Locate the market file…");
+    harness.get_by_label(&format!("ACV offer: {}", cents(offer)));
+}
+
+#[test]
+fn a_session_whose_market_file_changed_offers_to_rerun_on_the_new_data() {
+    let dir = scratch("changed");
+    let market = file_market(&dir);
+    let mut wb = workbench_on(file_document(market.clone()));
+    wb.wait_for_jobs();
+    let path = dir.join("case.ron");
+    wb.save_session(&path).unwrap();
+    let saved_value = wb
+        .runtime()
+        .appraisal
+        .as_ref()
+        .unwrap()
+        .reconciliation
+        .indicated_value;
+    // Another market in the same place.
+    std::fs::write(&market, model::demo::demo_csv_bytes(3_000, 6)).unwrap();
+
+    let mut other = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
+    other.open_session(&path).unwrap();
+    assert!(matches!(
+        other.case_file().opened.as_ref().unwrap().market,
+        MarketState::Changed(_)
+    ));
+    let mut harness = harness_on(other);
+    harness.get_by_label_contains("has changed since the session was saved");
+    harness.get_by_label("Re-run on the current file").click();
+    harness.run_steps(2);
+    harness.state_mut().wait_for_jobs();
+    harness.run_steps(2);
+    let wb = harness.state();
+    assert!(wb.case_file().opened.as_ref().unwrap().live);
+    assert_eq!(wb.document().market, MarketSource::File(market));
+    let now = wb
+        .runtime()
+        .appraisal
+        .as_ref()
+        .unwrap()
+        .reconciliation
+        .indicated_value;
+    assert_ne!(
+        cents(now),
+        cents(saved_value),
+        "the new data gives a new value"
+    );
+}
+
+#[test]
+fn unsaved_work_is_offered_back_after_a_crash() {
+    let dir = scratch("recovery");
+    let recovery = dir.join("unsaved.ron");
+    let mut wb =
+        workbench_on(AppraisalDocument::demo(SMALL_DEMO)).with_recovery_file(recovery.clone());
+    wb.set_autosave_seconds(0.0);
+    let mut harness = harness_on(wb);
+    harness.state_mut().apply(Command::SetNotes(
+        "customer mentioned a windscreen chip".into(),
+    ));
+    harness.run_steps(2);
+    assert!(recovery.exists(), "the recovery file is written");
+    let changed = harness.state().document().clone();
+    // "Crash": the workbench goes away without saving or cleaning up.
+    drop(harness);
+
+    let wb = workbench_on(AppraisalDocument::demo(SMALL_DEMO)).with_recovery_file(recovery.clone());
+    assert!(wb.case_file().recovery_offer.is_some());
+    let mut harness = harness_on(wb);
+    harness.get_by_label_contains("closed with unsaved work");
+    harness.get_by_label("Recover").click();
+    harness.run_steps(2);
+    assert_eq!(harness.state().document(), &changed);
+    assert!(harness.state().has_unsaved_changes());
+}
+
+#[test]
+fn closing_with_unsaved_changes_asks_first() {
+    let wb = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
+    let mut harness = harness_on(wb);
+    harness
+        .state_mut()
+        .apply(Command::SetAppraiser("Test".into()));
+    harness
+        .input_mut()
+        .viewports
+        .entry(egui::ViewportId::ROOT)
+        .or_default()
+        .events
+        .push(egui::ViewportEvent::Close);
+    harness.run_steps(2);
+    harness.get_by_label("This appraisal has changes that are not saved in a session file.");
+    harness.get_by_label("Cancel").click();
+    harness.run_steps(2);
+    assert!(harness.query_by_label("Close without saving").is_none());
+}
+
+#[test]
+fn a_damaged_session_leaves_the_workbench_as_it_was_and_says_where() {
+    let dir = scratch("damaged");
+    let path = dir.join("bad.ron");
+    std::fs::write(
+        &path,
+        "(\n  format_version: 2,\n  authorship: (appraiser: 12),\n)",
+    )
+    .unwrap();
+    let mut wb = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
+    let before = wb.document().clone();
+    let e = wb.open_session(&path).unwrap_err();
+    assert!(e.contains("line 3"), "{e}");
+    assert!(e.contains("appraiser"), "{e}");
+    assert_eq!(wb.document(), &before);
+}
