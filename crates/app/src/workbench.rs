@@ -628,6 +628,12 @@ impl Workbench {
         if ui.button("Report…").clicked() {
             self.prompt(FilePrompt::Report);
         }
+        ui.menu_button("Session options", |ui| {
+            ui.checkbox(
+                &mut self.preferences.keep_segment,
+                "Keep every listing of the model in saved sessions (larger files)",
+            );
+        });
     }
 
     fn status_text(&self) -> String {

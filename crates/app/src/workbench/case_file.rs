@@ -234,8 +234,9 @@ impl Workbench {
         }
     }
 
-    /// The current appraisal as a session (not written anywhere).
-    pub fn capture_session(&self) -> Result<Session, String> {
+    /// The current appraisal as a session (not written anywhere); `keep_segment` keeps every
+    /// listing of the model in it.
+    pub fn capture_session(&self, keep_segment: bool) -> Result<Session, String> {
         let (Some(market), Some(fit), Some(appraisal)) = (
             &self.runtime.market,
             &self.runtime.fit,
@@ -266,7 +267,7 @@ impl Workbench {
                 request: &self.document.request(),
                 appraisal,
                 purpose: &self.document.purpose,
-                keep_segment: self.preferences.keep_segment,
+                keep_segment,
             },
             Authorship {
                 appraiser: self.document.appraiser.clone(),
@@ -280,7 +281,7 @@ impl Workbench {
 
     /// Saves the appraisal as a session at `path` (atomically).
     pub fn save_session(&mut self, path: &Path) -> Result<(), String> {
-        let session = self.capture_session()?;
+        let session = self.capture_session(self.preferences.keep_segment)?;
         write_session(path, &session).map_err(|e| e.to_string())?;
         self.case.path = Some(path.to_owned());
         self.case.saved = Some(self.document.clone());
@@ -345,7 +346,8 @@ impl Workbench {
 
     /// Writes the report for the current appraisal as `base`.pdf and `base`.html.
     pub fn write_report(&mut self, base: &Path) -> Result<(PathBuf, PathBuf), String> {
-        let session = self.capture_session()?;
+        // The report's charts show the whole model's market, whether or not sessions keep it.
+        let session = self.capture_session(true)?;
         let saved_bytes = self
             .case
             .path
