@@ -279,6 +279,19 @@ fn appraise_command(args: &AppraiseArgs) -> Result<()> {
         indicated_value: appraisal.reconciliation.indicated_value,
         value_band: appraisal.reconciliation.value_band,
         appraisal,
+        segment_supply: matches!(purpose, model::session::Purpose::TradeIn(_))
+            .then(|| {
+                model::supply::segment_supply(
+                    &loaded.market,
+                    &fit.cleaning.rows,
+                    fit.as_of,
+                    model::session::SUPPLY_WINDOW_DAYS,
+                    load::fit_settings(&args.market)
+                        .ok()
+                        .and_then(|s| s.cleaning.stale_after_days),
+                )
+            })
+            .flatten(),
         worksheet: worked.worksheet,
         forecast,
         cautions: model::cautions::CAUTIONS.to_vec(),

@@ -122,6 +122,8 @@ pub struct AppraisalDocument {
     pub value_band: model::ols::Interval,
     /// The trade-in offer or claim settlement, when one was asked for.
     pub worksheet: Option<model::session::WorksheetOutcome>,
+    /// Days' supply of the segment, with a trade-in when the file has sale dates.
+    pub segment_supply: Option<model::supply::SegmentSupply>,
     pub forecast: Option<Forecast>,
     pub cautions: Vec<&'static str>,
 }

@@ -188,6 +188,9 @@ pub fn appraisal(doc: &AppraisalDocument) -> String {
     if let Some(w) = &doc.worksheet {
         worksheet(&mut o, w);
     }
+    if let Some(s) = &doc.segment_supply {
+        let _ = writeln!(o, "  {}", s.describe());
+    }
     let _ = writeln!(o);
     for c in &doc.cautions {
         let _ = writeln!(o, "Caution: {c}");

@@ -42,6 +42,10 @@ impl Report {
         match (&session.purpose, &session.result.worksheet) {
             (Purpose::TradeIn(inputs), Some(WorksheetOutcome::TradeIn { offer, sensitivity })) => {
                 trade_in(inputs, offer, sensitivity, &mut blocks);
+                blocks.push(Block::Paragraph(session.segment_supply.map_or_else(
+                    || "Days' supply: the market file has no sale dates.".to_owned(),
+                    |s| s.describe(),
+                )));
             }
             (Purpose::Claim { profile, .. }, Some(WorksheetOutcome::Claim(worked))) => {
                 claim(session, profile, worked, &mut blocks);

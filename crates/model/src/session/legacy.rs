@@ -53,6 +53,7 @@ impl SessionV1 {
             appraisal: self.appraisal,
             purpose: self.purpose,
             result: self.result,
+            segment_supply: None,
             segment_listings: self.segment_listings,
         }
     }

@@ -31,6 +31,9 @@ use crate::market::{Listing, Market, MarketSource};
 use crate::rates::FittedRates;
 use crate::worksheet::WorksheetError;
 
+/// Trailing window of the days'-supply figure, days.
+pub const SUPPLY_WINDOW_DAYS: u32 = 30;
+
 /// The market an appraisal was made on.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct MarketRecord {
@@ -119,6 +122,10 @@ pub struct Session {
     pub purpose: Purpose,
     /// The result as saved.
     pub result: Outcome,
+    /// Days' supply of the segment on the appraisal date, when the market file has sale dates
+    /// (a fact of the market at the time, kept as evidence).
+    #[serde(default)]
+    pub segment_supply: Option<crate::supply::SegmentSupply>,
     /// Optionally, every listing of the segment (so the fit itself can be redone).
     #[serde(default)]
     pub segment_listings: Option<Vec<Listing>>,
@@ -179,6 +186,13 @@ impl Session {
             appraisal: c.appraisal.clone(),
             purpose: c.purpose.clone(),
             result,
+            segment_supply: crate::supply::segment_supply(
+                c.market,
+                &c.fit.cleaning.rows,
+                c.fit.as_of,
+                SUPPLY_WINDOW_DAYS,
+                c.settings.cleaning.stale_after_days,
+            ),
             segment_listings: c.keep_segment.then(|| {
                 c.fit
                     .cleaning

@@ -191,21 +191,18 @@ fn recon_ui(ui: &mut Ui, recon: &mut Vec<Line>) -> bool {
 /// Days' supply of the subject's segment, when the market file has sale dates.
 pub fn supply_ui(ui: &mut Ui, cx: &PaneContext<'_>) {
     ui.separator();
-    match model::supply::segment_supply(cx.market, &cx.fit.cleaning.rows, cx.fit.as_of, 30) {
+    match model::supply::segment_supply(
+        cx.market,
+        &cx.fit.cleaning.rows,
+        cx.fit.as_of,
+        model::session::SUPPLY_WINDOW_DAYS,
+        cx.document.fit.cleaning.stale_after_days,
+    ) {
         None => {
             ui.label("Days' supply: the market file has no sale dates.");
         }
         Some(s) => {
-            ui.label(match s.days_supply {
-                Some(d) => format!(
-                    "Days' supply of this model: {d:.0} days ({} listed, {} sold in the last {} days).",
-                    s.listed, s.sold_in_window, s.window_days
-                ),
-                None => format!(
-                    "Days' supply: none of the {} listed sold in the last {} days.",
-                    s.listed, s.window_days
-                ),
-            });
+            ui.label(s.describe());
         }
     }
 }
