@@ -8,79 +8,86 @@ use eframe::egui::{Color32, Ui};
 use egui_plot::{Legend, Line, MarkerShape, Plot, PlotPoints, PlotUi, Points};
 use model::hedonic::{Attributes, age_years};
 
+use super::density::{Bounds, Plotted, View, cached_view, extent};
 use super::year_chart::hover_and_click;
-use super::{PaneContext, cached, decimate, fit_id, inputs_key, nearest};
+use super::{
+    MAX_POINTS, PaneContext, cached, cached_in, draw_cells, fit_id, inputs_key, nearest,
+    view_bounds, view_note,
+};
 use crate::palette::{SUBJECT, faded, variant_colour};
 
-/// What the chart draws, gathered before drawing.
-struct MileageChartData {
-    /// Points by (variant index, model year, included).
-    bubbles: BTreeMap<(usize, i32, bool), Vec<[f64; 2]>>,
-    /// Drawn points with their market rows, for picking.
-    drawn: Vec<(usize, [f64; 2])>,
-    /// Listings asking less than the lower end of their own prediction interval.
-    below: Vec<[f64; 2]>,
-    /// The subject's fitted median, lower and upper prediction bound across mileage.
+/// A series of the chart: (variant index, model year, included in the fit).
+type Series = (usize, i32, bool);
+
+/// The listings of the subject's model-year window, placed; gathered once per fit and window.
+pub struct MileageChartData {
+    /// Every listing in the window.
+    pub all: Vec<Plotted>,
+    /// The series a listing's `series` indexes.
+    pub series: Vec<Series>,
+    /// The window's extent, kept in the auto-fitted view.
+    extent: Option<Bounds>,
+}
+
+/// The subject's fitted median, lower and upper prediction bound across mileage.
+struct SubjectCurve {
     median: Vec<[f64; 2]>,
     lower: Vec<[f64; 2]>,
     upper: Vec<[f64; 2]>,
-    /// Listings in the window, and the decimation step.
-    in_window: usize,
-    step: usize,
 }
 
-fn gather(cx: &PaneContext<'_>) -> MileageChartData {
+/// Places the listings of the subject's model-year window.
+#[must_use]
+pub fn gather(cx: &PaneContext<'_>) -> MileageChartData {
     let market = cx.market;
     let fit = cx.fit;
-    let subject = &cx.document.subject;
+    let subject_year = cx.document.subject.model_year;
     let window = cx.document.rules.model_year_window;
-    let level = cx.document.level;
-    let in_window: Vec<usize> = fit
+    let mut index: BTreeMap<Series, u32> = BTreeMap::new();
+    let mut series = Vec::new();
+    let all: Vec<Plotted> = fit
         .cleaning
         .rows
         .iter()
         .copied()
-        .filter(|&r| (market.model_year[r] - subject.model_year).abs() <= window)
-        .collect();
-    let (rows, step) = decimate(&in_window);
-    let mut data = MileageChartData {
-        bubbles: BTreeMap::new(),
-        drawn: Vec::with_capacity(rows.len()),
-        below: Vec::new(),
-        median: Vec::new(),
-        lower: Vec::new(),
-        upper: Vec::new(),
-        in_window: in_window.len(),
-        step,
-    };
-    for &row in &rows {
-        let p = [market.miles[row], market.asking_price[row]];
-        data.bubbles
-            .entry((
+        .filter(|&r| (market.model_year[r] - subject_year).abs() <= window)
+        .map(|row| {
+            let key = (
                 cx.variant_index(row),
                 market.model_year[row],
                 fit.cleaning.is_included(row),
-            ))
-            .or_default()
-            .push(p);
-        data.drawn.push((row, p));
-        let own = fit
-            .model
-            .estimate(&fit.model.attributes_of_row(market, row), level);
-        if market.asking_price[row] < own.prediction_interval.lower {
-            data.below.push(p);
-        }
+            );
+            let s = *index.entry(key).or_insert_with(|| {
+                series.push(key);
+                series.len() as u32 - 1
+            });
+            Plotted {
+                row,
+                at: [market.miles[row], market.asking_price[row]],
+                series: s,
+            }
+        })
+        .collect();
+    MileageChartData {
+        extent: extent(&all),
+        all,
+        series,
     }
+}
+
+fn subject_curve(cx: &PaneContext<'_>, max_miles: f64) -> SubjectCurve {
+    let fit = cx.fit;
+    let subject = &cx.document.subject;
     let variant = subject
         .variant
         .as_deref()
-        .and_then(|v| market.names.id_ignore_case(v))
+        .and_then(|v| cx.market.names.id_ignore_case(v))
         .unwrap_or(model::vocabulary::NO_NAME);
-    let max_miles = rows
-        .iter()
-        .map(|&r| market.miles[r])
-        .fold(subject.miles, f64::max)
-        * 1.05;
+    let mut curve = SubjectCurve {
+        median: Vec::new(),
+        lower: Vec::new(),
+        upper: Vec::new(),
+    };
     let steps = 60;
     for i in 0..=steps {
         let miles = max_miles * f64::from(i) / f64::from(steps);
@@ -90,12 +97,32 @@ fn gather(cx: &PaneContext<'_>) -> MileageChartData {
             variant,
             condition: subject.condition,
         };
-        let e = fit.model.estimate(&a, level);
-        data.median.push([miles, e.median]);
-        data.lower.push([miles, e.prediction_interval.lower]);
-        data.upper.push([miles, e.prediction_interval.upper]);
+        let e = fit.model.estimate(&a, cx.document.level);
+        curve.median.push([miles, e.median]);
+        curve.lower.push([miles, e.prediction_interval.lower]);
+        curve.upper.push([miles, e.prediction_interval.upper]);
     }
-    data
+    curve
+}
+
+/// The drawn listings asking less than the lower end of their own prediction interval.
+fn below_band(cx: &PaneContext<'_>, data: &MileageChartData, view: &View) -> Vec<[f64; 2]> {
+    let View::Exact(shown) = view else {
+        return Vec::new();
+    };
+    let fit = cx.fit;
+    shown
+        .iter()
+        .map(|&i| data.all[i as usize])
+        .filter(|p| {
+            let own = fit.model.estimate(
+                &fit.model.attributes_of_row(cx.market, p.row),
+                cx.document.level,
+            );
+            cx.market.asking_price[p.row] < own.prediction_interval.lower
+        })
+        .map(|p| p.at)
+        .collect()
 }
 
 /// Draws the pane.
@@ -103,39 +130,90 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     let doc = cx.document;
     let key = inputs_key(&[
         &fit_id(cx),
-        &doc.subject,
+        &doc.subject.model_year,
         &doc.rules.model_year_window,
-        &doc.level,
     ]);
     let data = cached(ui, "mileage_chart_data", key, || gather(cx));
+    let max_miles = data
+        .extent
+        .map_or(doc.subject.miles, |e| e.max[0].max(doc.subject.miles))
+        * 1.05;
+    let curve_key = inputs_key(&[&key, &doc.subject, &doc.level]);
+    let curve = cached(ui, "mileage_chart_curve", curve_key, || {
+        subject_curve(cx, max_miles)
+    });
     let subject = &cx.document.subject;
     let window = cx.document.rules.model_year_window;
     ui.label(format!(
-        "Model years {}–{}{}",
+        "Model years {}–{}",
         subject.model_year - window,
         subject.model_year + window,
-        if data.step > 1 {
-            format!(", 1 in {} of {} listings shown", data.step, data.in_window)
-        } else {
-            String::new()
-        }
     ));
+    let view_id = ui.scope_id().with("mileage_chart_view");
+    let below_id = ui.scope_id().with("mileage_chart_below");
     let mut hovered = None;
-    let response = Plot::new("value_by_mileage")
-        .legend(Legend::default())
+    let mut shown = None;
+    let mut plot = Plot::new("value_by_mileage")
+        .legend(
+            Legend::default().color_conflict_handling(egui_plot::ColorConflictHandling::PickFirst),
+        )
         .x_axis_label("miles")
         .y_axis_label("asking price")
-        .show(ui, |plot| {
-            draw(plot, cx, &data);
-            hovered = nearest(plot, &data.drawn, 8.0);
+        .height((ui.available_height() - 24.0).max(120.0));
+    if let Some(e) = data.extent {
+        plot = plot
+            .include_x(e.min[0])
+            .include_x(e.max[0])
+            .include_y(e.min[1])
+            .include_y(e.max[1]);
+    }
+    let response = plot.show(ui, |plot| {
+        let bounds = view_bounds(plot);
+        let (view, fresh) = cached_view(plot.ctx(), view_id, key, &data.all, &bounds, MAX_POINTS);
+        if fresh {
+            plot.ctx().request_repaint();
+        }
+        let below_key = inputs_key(&[&key, &bounds.key(), &cx.document.level]);
+        let below = cached_in(plot.ctx(), below_id, below_key, || {
+            below_band(cx, &data, &view)
         });
+        let drawn = draw(plot, cx, &data, &view, &curve, &below);
+        hovered = nearest(plot, &drawn, 8.0);
+        shown = Some(view);
+    });
     hover_and_click(cx, hovered, &response.response);
+    if let Some(note) = shown.and_then(|v| view_note(&v, data.all.len())) {
+        ui.small(note);
+    }
 }
 
-fn draw(plot: &mut PlotUi<'_>, cx: &PaneContext<'_>, data: &MileageChartData) {
+/// Draws the chart; returns the listings drawn one by one (for picking).
+fn draw(
+    plot: &mut PlotUi<'_>,
+    cx: &PaneContext<'_>,
+    data: &MileageChartData,
+    view: &View,
+    curve: &SubjectCurve,
+    below: &[[f64; 2]],
+) -> Vec<(usize, [f64; 2])> {
     let subject = &cx.document.subject;
     let oldest = subject.model_year - cx.document.rules.model_year_window;
-    for (&(variant, year, included), points) in &data.bubbles {
+    let mut drawn = Vec::new();
+    let mut groups: BTreeMap<u32, Vec<[f64; 2]>> = BTreeMap::new();
+    if let View::Exact(shown) = view {
+        drawn.reserve(shown.len());
+        for &i in shown {
+            let p = data.all[i as usize];
+            groups.entry(p.series).or_default().push(p.at);
+            drawn.push((p.row, p.at));
+        }
+    }
+    draw_cells(plot, view, |s| {
+        let (variant, _, _) = data.series[s as usize];
+        (cx.variant_label(variant), variant_colour(variant))
+    });
+    for (series, points) in groups {
+        let (variant, year, included) = data.series[series as usize];
         let colour = variant_colour(variant);
         // Newer model years draw larger bubbles.
         let radius = 1.5 + 1.5 * (year - oldest).max(0) as f32;
@@ -146,7 +224,7 @@ fn draw(plot: &mut PlotUi<'_>, cx: &PaneContext<'_>, data: &MileageChartData) {
                 } else {
                     "excluded (hover for why)".to_owned()
                 },
-                PlotPoints::from(points.clone()),
+                PlotPoints::from(points),
             )
             .radius(radius)
             .color(if included {
@@ -158,28 +236,28 @@ fn draw(plot: &mut PlotUi<'_>, cx: &PaneContext<'_>, data: &MileageChartData) {
     }
     let level = 100.0 * cx.document.level;
     plot.line(
-        Line::new("subject: fitted value", data.median.clone())
+        Line::new("subject: fitted value", curve.median.clone())
             .color(SUBJECT)
             .width(2.0),
     );
     plot.line(
         Line::new(
             format!("subject: {level:.0} % prediction band"),
-            data.lower.clone(),
+            curve.lower.clone(),
         )
         .color(SUBJECT.gamma_multiply(0.5)),
     );
     plot.line(
         Line::new(
             format!("subject: {level:.0} % prediction band"),
-            data.upper.clone(),
+            curve.upper.clone(),
         )
         .color(SUBJECT.gamma_multiply(0.5)),
     );
     plot.points(
         Points::new(
             "below its own band: a deal or a problem? look first",
-            data.below.clone(),
+            below.to_vec(),
         )
         .shape(MarkerShape::Down)
         .radius(5.0)
@@ -218,4 +296,5 @@ fn draw(plot: &mut PlotUi<'_>, cx: &PaneContext<'_>, data: &MileageChartData) {
             .color(Color32::from_rgb(0x20, 0x20, 0x20)),
         );
     }
+    drawn
 }

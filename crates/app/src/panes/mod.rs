@@ -2,6 +2,7 @@
 //! [`Command`]s; it never changes the document itself.
 
 pub mod comparables;
+pub mod density;
 pub mod depreciation;
 pub mod gaps;
 pub mod mileage_chart;
@@ -20,8 +21,8 @@ use crate::command::Command;
 use crate::document::AppraisalDocument;
 use crate::selection::Selection;
 
-/// Most points a chart draws one by one; beyond this it draws an evenly spaced sample and
-/// says so (the comparables and the subject are always drawn).
+/// Most listings a chart draws one by one; with more in view it draws the density grid
+/// ([`density`]) and says so (the comparables and the subject are always drawn exactly).
 pub const MAX_POINTS: usize = 20_000;
 
 /// What a pane may read and where it puts its commands.
@@ -82,14 +83,23 @@ pub fn cached<T: Send + Sync + 'static>(
     key: u64,
     build: impl FnOnce() -> T,
 ) -> std::sync::Arc<T> {
-    let id = ui.scope_id().with(name);
-    if let Some((k, data)) = ui.data(|d| d.get_temp::<(u64, std::sync::Arc<T>)>(id)) {
+    cached_in(ui.ctx(), ui.scope_id().with(name), key, build)
+}
+
+/// As [`cached`], under an explicit id (for code that holds a context but no `Ui`).
+pub fn cached_in<T: Send + Sync + 'static>(
+    ctx: &egui::Context,
+    id: egui::Id,
+    key: u64,
+    build: impl FnOnce() -> T,
+) -> std::sync::Arc<T> {
+    if let Some((k, data)) = ctx.data(|d| d.get_temp::<(u64, std::sync::Arc<T>)>(id)) {
         if k == key {
             return data;
         }
     }
     let data = std::sync::Arc::new(build());
-    ui.data_mut(|d| d.insert_temp(id, (key, std::sync::Arc::clone(&data))));
+    ctx.data_mut(|d| d.insert_temp(id, (key, std::sync::Arc::clone(&data))));
     data
 }
 
@@ -108,13 +118,6 @@ pub fn inputs_key(parts: &[&dyn std::fmt::Debug]) -> u64 {
 #[must_use]
 pub fn fit_id(cx: &PaneContext<'_>) -> usize {
     std::ptr::from_ref(cx.fit) as usize
-}
-
-/// Every `step`-th row so that at most [`MAX_POINTS`] are drawn, and the step used.
-#[must_use]
-pub fn decimate(rows: &[usize]) -> (Vec<usize>, usize) {
-    let step = rows.len().div_ceil(MAX_POINTS).max(1);
-    (rows.iter().copied().step_by(step).collect(), step)
 }
 
 /// A stable horizontal offset in [-0.3, 0.3] so listings of one model year do not stack.
@@ -145,4 +148,88 @@ pub fn nearest(
         .filter(|(_, d)| *d <= radius_px)
         .min_by(|a, b| a.1.total_cmp(&b.1))
         .map(|(row, _)| row)
+}
+
+/// The plot's current view as density bounds.
+#[must_use]
+pub fn view_bounds(plot: &egui_plot::PlotUi<'_>) -> density::Bounds {
+    let b = plot.plot_bounds();
+    density::Bounds {
+        min: b.min(),
+        max: b.max(),
+    }
+}
+
+/// Draws the density grid: one square per non-empty cell, coloured by its most common series
+/// (`colour_of`) and darker where there are more listings.
+pub fn draw_cells(
+    plot: &mut egui_plot::PlotUi<'_>,
+    view: &density::View,
+    colour_of: impl Fn(u32) -> (String, egui::Color32),
+) {
+    let density::View::Binned {
+        cells,
+        cell_size,
+        max_count,
+        ..
+    } = view
+    else {
+        return;
+    };
+    let Some(first) = cells.first() else {
+        return;
+    };
+    let a = plot.screen_from_plot(egui_plot::PlotPoint::new(first.centre[0], first.centre[1]));
+    let b = plot.screen_from_plot(egui_plot::PlotPoint::new(
+        first.centre[0] + cell_size[0],
+        first.centre[1] + cell_size[1],
+    ));
+    // Squares a little larger than a cell, so the grid reads as a filled area.
+    let radius = 0.55 * (b.x - a.x).abs().max((b.y - a.y).abs()).max(1.0);
+    let mut groups: std::collections::BTreeMap<(u32, usize), Vec<[f64; 2]>> =
+        std::collections::BTreeMap::new();
+    for c in cells {
+        groups
+            .entry((c.series, density::shade(c.count, *max_count)))
+            .or_default()
+            .push(c.centre);
+    }
+    let keys: Vec<u32> = groups.keys().map(|(s, _)| *s).collect();
+    // The legend takes a name's colour from its first series (the charts' legends pick the first
+    // colour): start each name with its full colour and no points.
+    let mut named = std::collections::BTreeSet::new();
+    for series in &keys {
+        let (name, colour) = colour_of(*series);
+        if named.insert(name.clone()) {
+            plot.points(egui_plot::Points::new(name, Vec::<[f64; 2]>::new()).color(colour));
+        }
+    }
+
+    for ((series, shade), centres) in groups {
+        let (name, colour) = colour_of(series);
+        let strength = shade as f32 / density::SHADES as f32;
+        plot.points(
+            egui_plot::Points::new(name, centres)
+                .shape(egui_plot::MarkerShape::Square)
+                .radius(radius)
+                .color(colour.gamma_multiply(0.12 + 0.88 * strength)),
+        );
+    }
+}
+
+/// The line under a chart saying what it shows of the market.
+#[must_use]
+pub fn view_note(view: &density::View, total: usize) -> Option<String> {
+    match view {
+        density::View::Exact(shown) if shown.len() < total => Some(format!(
+            "{} of {} listings in view, each drawn.",
+            model::format::thousands(shown.len() as f64),
+            model::format::thousands(total as f64)
+        )),
+        density::View::Exact(_) => None,
+        density::View::Binned { in_view, .. } => Some(format!(
+            "{} listings in view: too many to tell apart, so the chart shows where they are (darker squares hold more; colour: the most common variant). Zoom in to see each listing; comparables and the subject are always drawn.",
+            model::format::thousands(*in_view as f64)
+        )),
+    }
 }

@@ -8,52 +8,67 @@ use egui_plot::{Legend, Line, MarkerShape, Plot, PlotPoints, PlotUi, Points};
 use model::condition::Condition;
 use model::hedonic::Attributes;
 
-use super::{PaneContext, cached, decimate, fit_id, inputs_key, jitter, nearest};
+use super::density::{Bounds, Plotted, View, cached_view, extent};
+use super::{
+    MAX_POINTS, PaneContext, cached, draw_cells, fit_id, inputs_key, jitter, nearest, view_bounds,
+    view_note,
+};
 use crate::palette::{SUBJECT, condition_shape, faded, variant_colour};
 
-/// Points by (variant index, condition, included).
-type Groups = BTreeMap<(usize, Condition, bool), Vec<[f64; 2]>>;
+/// A series of the chart: (variant index, condition, included in the fit).
+type Series = (usize, Condition, bool);
 
-/// What the chart draws, gathered before drawing.
-struct YearChartData {
-    groups: Groups,
-    /// Drawn points with their market rows, for picking.
-    drawn: Vec<(usize, [f64; 2])>,
+/// What the chart draws, gathered once per fit.
+pub struct YearChartData {
+    /// Every listing of the model, placed.
+    pub all: Vec<Plotted>,
+    /// The series a listing's `series` indexes.
+    pub series: Vec<Series>,
     /// Mean asking price of the included listings of each model year.
     means: BTreeMap<i32, f64>,
     /// The fitted value of the subject's variant, used, at typical mileage, by model year.
     curve: Vec<[f64; 2]>,
-    /// Listings left out of the drawing (1 in `step` shown).
-    step: usize,
+    /// The whole market's extent, kept in the auto-fitted view.
+    extent: Option<Bounds>,
 }
 
-fn gather(cx: &PaneContext<'_>) -> YearChartData {
+/// Places every listing of the fitted model.
+#[must_use]
+pub fn gather(cx: &PaneContext<'_>) -> YearChartData {
     let market = cx.market;
     let fit = cx.fit;
-    let (rows, step) = decimate(&fit.cleaning.rows);
     let mut sums: BTreeMap<i32, (f64, usize)> = BTreeMap::new();
     for &row in &fit.included_rows {
         let e = sums.entry(market.model_year[row]).or_default();
         e.0 += market.asking_price[row];
         e.1 += 1;
     }
-    let mut groups = Groups::new();
-    let mut drawn = Vec::with_capacity(rows.len());
-    for &row in &rows {
-        let p = [
-            f64::from(market.model_year[row]) + jitter(row),
-            market.asking_price[row],
-        ];
-        groups
-            .entry((
+    let mut index: BTreeMap<Series, u32> = BTreeMap::new();
+    let mut series = Vec::new();
+    let all: Vec<Plotted> = fit
+        .cleaning
+        .rows
+        .iter()
+        .map(|&row| {
+            let key = (
                 cx.variant_index(row),
                 market.condition[row],
                 fit.cleaning.is_included(row),
-            ))
-            .or_default()
-            .push(p);
-        drawn.push((row, p));
-    }
+            );
+            let s = *index.entry(key).or_insert_with(|| {
+                series.push(key);
+                series.len() as u32 - 1
+            });
+            Plotted {
+                row,
+                at: [
+                    f64::from(market.model_year[row]) + jitter(row),
+                    market.asking_price[row],
+                ],
+                series: s,
+            }
+        })
+        .collect();
     let subject_variant = cx
         .document
         .subject
@@ -79,14 +94,14 @@ fn gather(cx: &PaneContext<'_>) -> YearChartData {
         })
         .collect();
     YearChartData {
-        groups,
-        drawn,
+        extent: extent(&all),
+        all,
+        series,
         means: sums
             .into_iter()
             .map(|(y, (sum, n))| (y, sum / n as f64))
             .collect(),
         curve,
-        step,
     }
 }
 
@@ -98,27 +113,64 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     ui.label(
         "Circles used, squares certified, diamonds new; hollow and faded: excluded from the fit.",
     );
-    if data.step > 1 {
-        ui.label(format!(
-            "Showing 1 in {} of {} listings; comparables and the subject are always shown.",
-            data.step,
-            cx.fit.cleaning.rows.len()
-        ));
-    }
+    let view_id = ui.scope_id().with("year_chart_view");
     let mut hovered = None;
-    let response = Plot::new("price_by_year")
-        .legend(Legend::default().position(egui_plot::Corner::LeftTop))
+    let mut shown = None;
+    let mut plot = Plot::new("price_by_year")
+        .legend(
+            Legend::default()
+                .position(egui_plot::Corner::LeftTop)
+                .color_conflict_handling(egui_plot::ColorConflictHandling::PickFirst),
+        )
         .x_axis_label("model year")
         .y_axis_label("asking price")
-        .show(ui, |plot| {
-            draw(plot, cx, &data);
-            hovered = nearest(plot, &data.drawn, 8.0);
-        });
+        .height((ui.available_height() - 24.0).max(120.0));
+    if let Some(e) = data.extent {
+        plot = plot
+            .include_x(e.min[0])
+            .include_x(e.max[0])
+            .include_y(e.min[1])
+            .include_y(e.max[1]);
+    }
+    let response = plot.show(ui, |plot| {
+        let bounds = view_bounds(plot);
+        let (view, fresh) = cached_view(plot.ctx(), view_id, key, &data.all, &bounds, MAX_POINTS);
+        if fresh {
+            plot.ctx().request_repaint();
+        }
+        let drawn = draw(plot, cx, &data, &view);
+        hovered = nearest(plot, &drawn, 8.0);
+        shown = Some(view);
+    });
     hover_and_click(cx, hovered, &response.response);
+    if let Some(note) = shown.and_then(|v| view_note(&v, data.all.len())) {
+        ui.small(note);
+    }
 }
 
-fn draw(plot: &mut PlotUi<'_>, cx: &PaneContext<'_>, data: &YearChartData) {
-    for (&(variant, condition, included), points) in &data.groups {
+/// Draws the chart; returns the listings drawn one by one (for picking).
+fn draw(
+    plot: &mut PlotUi<'_>,
+    cx: &PaneContext<'_>,
+    data: &YearChartData,
+    view: &View,
+) -> Vec<(usize, [f64; 2])> {
+    let mut drawn = Vec::new();
+    let mut groups: BTreeMap<u32, Vec<[f64; 2]>> = BTreeMap::new();
+    if let View::Exact(shown) = view {
+        drawn.reserve(shown.len());
+        for &i in shown {
+            let p = data.all[i as usize];
+            groups.entry(p.series).or_default().push(p.at);
+            drawn.push((p.row, p.at));
+        }
+    }
+    draw_cells(plot, view, |s| {
+        let (variant, _, _) = data.series[s as usize];
+        (cx.variant_label(variant), variant_colour(variant))
+    });
+    for (series, points) in groups {
+        let (variant, condition, included) = data.series[series as usize];
         // One legend entry per variant (series with one name share it) and one for exclusions;
         // the condition is the marker's shape, explained above the chart.
         let name = if included {
@@ -128,7 +180,7 @@ fn draw(plot: &mut PlotUi<'_>, cx: &PaneContext<'_>, data: &YearChartData) {
         };
         let colour = variant_colour(variant);
         plot.points(
-            Points::new(name, PlotPoints::from(points.clone()))
+            Points::new(name, PlotPoints::from(points))
                 .color(if included { colour } else { faded(colour) })
                 .shape(condition_shape(condition))
                 .filled(included)
@@ -196,6 +248,7 @@ fn draw(plot: &mut PlotUi<'_>, cx: &PaneContext<'_>, data: &YearChartData) {
                 .color(Color32::from_rgb(0x20, 0x20, 0x20)),
         );
     }
+    drawn
 }
 
 /// Shared by both charts: hovering a point links it everywhere; clicking selects it; the
