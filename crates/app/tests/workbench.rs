@@ -374,3 +374,35 @@ fn cancelling_an_import_keeps_the_loaded_market_and_does_not_restart_it() {
     assert_eq!(indicated(wb), before);
     std::fs::remove_dir_all(&dir).ok();
 }
+
+#[test]
+fn selecting_a_comparable_elsewhere_scrolls_the_table_to_it() {
+    let mut wb = workbench();
+    wb.apply(Command::SetComparableCount(20));
+    wb.wait_for_jobs();
+    let last = wb
+        .runtime()
+        .appraisal
+        .as_ref()
+        .unwrap()
+        .comparables
+        .last()
+        .unwrap()
+        .listing
+        .clone();
+    let mut harness = Harness::builder()
+        .with_size(egui::Vec2::new(1500.0, 950.0))
+        .build_ui_state(|ui, wb: &mut Workbench| wb.ui(ui), wb);
+    harness.run_steps(3);
+    let label = last.line.to_string();
+    let below = |h: &Harness<'static, Workbench>| {
+        h.get_all_by_label(&label)
+            .map(|n| n.rect().max.y)
+            .fold(f32::MIN, f32::max)
+    };
+    assert!(below(&harness) > 950.0, "the 20th comparable starts out of view");
+    // As clicking it in a chart does.
+    harness.state_mut().select(Some(last.row));
+    harness.run_steps(4);
+    assert!(below(&harness) <= 950.0, "scrolled into view");
+}

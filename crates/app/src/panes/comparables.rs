@@ -102,16 +102,26 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
                         }
                     }
                     ui.end_row();
+                    // A listing newly selected elsewhere (a chart, the price gaps) that is a
+                    // comparable scrolls into view once.
+                    let scrolled_id = ui.scope_id().with("scrolled_to");
+                    let scrolled: Option<usize> = ui.data(|d| d.get_temp(scrolled_id)).flatten();
+                    let target = cx.selection.selected.filter(|s| Some(*s) != scrolled);
                     for c in order {
-                        row_ui(ui, cx, c);
+                        let line = row_ui(ui, cx, c);
+                        if target == Some(c.listing.row) {
+                            line.scroll_to_me(Some(egui::Align::Center));
+                        }
                         ui.end_row();
                     }
+                    ui.data_mut(|d| d.insert_temp(scrolled_id, cx.selection.selected));
                 });
         });
     ui.data_mut(|d| d.insert_temp(id, sort));
 }
 
-fn row_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, c: &AdjustedComparable) {
+/// One comparable's row; returns its first cell (to scroll to).
+fn row_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, c: &AdjustedComparable) -> egui::Response {
     let l = &c.listing;
     let highlighted = cx.selection.is_highlighted(l.row);
     let line_text = if highlighted {
@@ -179,4 +189,5 @@ fn row_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, c: &AdjustedComparable) {
     {
         cx.commands.push(Command::ExcludeComparable(l.line));
     }
+    r
 }
