@@ -1,6 +1,9 @@
 //! Frame time of the workbench stepped headlessly (egui_kittest, no GPU): UI logic, layout and
-//! plot building for one frame, on markets of 20k and 1M invented listings, with the demo
-//! subject's appraisal on screen. Painting on the GPU is not included. Figures are in the README.
+//! plot building for one frame (`steady_frame`), and the same plus tessellating the frame's
+//! shapes into the triangle meshes a renderer uploads (`tessellated_frame`: everything on the
+//! CPU side of a rendered frame), on markets of 20k and 1M invented listings, with the demo
+//! subject's appraisal on screen. The GPU's own drawing is not included. Figures are in the
+//! README.
 //!
 //! Run: `cargo bench -p app --bench frame` (`COMPTRAIL_BENCH_SIZES=20000` to choose sizes).
 
@@ -39,6 +42,20 @@ fn bench(c: &mut Criterion) {
         group.bench_with_input(BenchmarkId::new("steady_frame", rows), &rows, |b, _| {
             b.iter(|| harness.step());
         });
+        group.bench_with_input(
+            BenchmarkId::new("tessellated_frame", rows),
+            &rows,
+            |b, _| {
+                b.iter(|| {
+                    harness.step();
+                    let output = harness.output();
+                    let meshes = harness
+                        .ctx
+                        .tessellate(output.shapes.clone(), output.pixels_per_point);
+                    std::hint::black_box(meshes.len())
+                });
+            },
+        );
     }
     group.finish();
 }

@@ -400,7 +400,10 @@ fn selecting_a_comparable_elsewhere_scrolls_the_table_to_it() {
             .map(|n| n.rect().max.y)
             .fold(f32::MIN, f32::max)
     };
-    assert!(below(&harness) > 950.0, "the 20th comparable starts out of view");
+    assert!(
+        below(&harness) > 950.0,
+        "the 20th comparable starts out of view"
+    );
     // As clicking it in a chart does.
     harness.state_mut().select(Some(last.row));
     harness.run_steps(4);
