@@ -1,0 +1,81 @@
+//! A few image snapshots of the workbench, drawn on the CPU (no GPU needed) and compared with
+//! the PNGs under `tests/snapshots/`. Regenerate after a deliberate change of the look with
+//! `UPDATE_SNAPSHOTS=1 cargo test -p app --test snapshots`, and look at the new images before
+//! committing them.
+
+// Tests unwrap: a failure is the report.
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
+use app::Workbench;
+use app::command::Command;
+use app::document::{AppraisalDocument, default_claim};
+use app::preferences::Preferences;
+use app::workbench::CentralView;
+use cpu_render::CpuRenderer;
+use eframe::egui;
+use egui_kittest::{Harness, SnapshotOptions};
+use model::session::Purpose;
+
+/// How far one pixel's colour may move (YIQ distance, kittest's measure) before it counts as
+/// changed, and how many changed pixels a snapshot tolerates. The CPU renderer is
+/// deterministic, so these only absorb floating-point differences between machines; changing
+/// one digit of a figure changes about 70 pixels, a moved widget or a colour hundreds.
+const PIXEL_THRESHOLD: f32 = 0.6;
+const MAX_CHANGED_PIXELS: usize = 8;
+
+/// The one way a snapshot is taken here.
+fn snapshot(harness: &mut Harness<'static, Workbench>, name: &str) {
+    harness.snapshot_options(
+        name,
+        &SnapshotOptions::new()
+            .threshold(PIXEL_THRESHOLD)
+            .max_failed_pixels(MAX_CHANGED_PIXELS),
+    );
+}
+
+fn harness(mut wb: Workbench) -> Harness<'static, Workbench> {
+    wb.wait_for_jobs();
+    let mut harness = Harness::builder()
+        .with_size(egui::Vec2::new(1280.0, 820.0))
+        .renderer(CpuRenderer::new())
+        .build_ui_state(|ui, wb: &mut Workbench| wb.ui(ui), wb);
+    harness.run_steps(4);
+    harness
+}
+
+#[test]
+fn the_demo_appraisal_looks_as_it_should() {
+    let wb = Workbench::with_document(
+        AppraisalDocument::demo(4_000),
+        Preferences::default(),
+        || {},
+    );
+    let mut harness = harness(wb);
+    snapshot(&mut harness, "demo_appraisal");
+}
+
+#[test]
+fn the_claim_worksheet_looks_as_it_should() {
+    let mut wb = Workbench::with_document(
+        AppraisalDocument::demo(4_000),
+        Preferences::default(),
+        || {},
+    );
+    let ny = wb.profiles().get("ny").unwrap().clone();
+    let Purpose::Claim {
+        profile,
+        mut inputs,
+    } = default_claim(ny)
+    else {
+        unreachable!()
+    };
+    inputs.sales_tax_pct = 8.0;
+    inputs.title_fee = 50.0;
+    inputs.transfer_fee = 25.0;
+    inputs.repair_estimate = 24_000.0;
+    inputs.salvage_value = 5_000.0;
+    wb.apply(Command::ChoosePurpose(Purpose::Claim { profile, inputs }));
+    wb.show_view(CentralView::Worksheet);
+    let mut harness = harness(wb);
+    snapshot(&mut harness, "claim_worksheet");
+}
