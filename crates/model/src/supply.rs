@@ -23,6 +23,8 @@ pub struct SegmentSupply {
     pub days_supply: Option<f64>,
 }
 
+use crate::format::thousands;
+
 impl SegmentSupply {
     /// "Days' supply 62 days (410 listed, 198 sold in the last 30 days)".
     #[must_use]
@@ -30,11 +32,14 @@ impl SegmentSupply {
         match self.days_supply {
             Some(d) => format!(
                 "Days' supply of this model: {d:.0} days ({} listed, {} sold in the last {} days).",
-                self.listed, self.sold_in_window, self.window_days
+                thousands(self.listed as f64),
+                thousands(self.sold_in_window as f64),
+                self.window_days
             ),
             None => format!(
                 "Days' supply: none of the {} listed sold in the last {} days.",
-                self.listed, self.window_days
+                thousands(self.listed as f64),
+                self.window_days
             ),
         }
     }
