@@ -409,3 +409,32 @@ fn selecting_a_comparable_elsewhere_scrolls_the_table_to_it() {
     harness.run_steps(4);
     assert!(below(&harness) <= 950.0, "scrolled into view");
 }
+
+#[test]
+fn a_market_too_large_to_draw_point_by_point_is_drawn_as_a_density_grid() {
+    // 44,000 listings: the subject's model alone has more than the 20,000 a chart draws one by
+    // one, while its three-year mileage window has fewer.
+    let mut wb = Workbench::with_document(
+        AppraisalDocument::demo(44_000),
+        Preferences::default(),
+        || {},
+    );
+    wb.wait_for_jobs();
+    let fit = wb.runtime().fit.clone().unwrap();
+    assert!(fit.cleaning.rows.len() > app::panes::MAX_POINTS);
+    let mut harness = Harness::builder()
+        .with_size(egui::Vec2::new(1500.0, 950.0))
+        .build_ui_state(|ui, wb: &mut Workbench| wb.ui(ui), wb);
+    harness.run_steps(4);
+    assert_eq!(
+        harness
+            .query_all_by_label_contains("too many to tell apart")
+            .count(),
+        1,
+        "only the price-by-year chart is binned"
+    );
+    harness.get_by_label_contains(&format!(
+        "{} listings in view: too many to tell apart",
+        model::format::thousands(fit.cleaning.rows.len() as f64)
+    ));
+}

@@ -11,8 +11,8 @@ use model::hedonic::{Attributes, age_years};
 use super::density::{Bounds, Plotted, View, cached_view, extent};
 use super::year_chart::hover_and_click;
 use super::{
-    MAX_POINTS, PaneContext, cached, cached_in, draw_cells, fit_id, inputs_key, nearest,
-    view_bounds, view_note,
+    MAX_POINTS, PaneContext, cached, cached_in, draw_cells, fit_id, follow_selection, inputs_key,
+    nearest, view_bounds, view_note,
 };
 use crate::palette::{SUBJECT, faded, variant_colour};
 
@@ -167,7 +167,19 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
             .include_y(e.min[1])
             .include_y(e.max[1]);
     }
+    let follow_id = view_id.with("follow");
     let response = plot.show(ui, |plot| {
+        let selected = cx.selection.selected;
+        follow_selection(
+            plot,
+            follow_id,
+            selected,
+            selected
+                .filter(|&r| {
+                    (cx.market.model_year[r] - cx.document.subject.model_year).abs() <= window
+                })
+                .map(|r| [cx.market.miles[r], cx.market.asking_price[r]]),
+        );
         let bounds = view_bounds(plot);
         let (view, fresh) = cached_view(plot.ctx(), view_id, key, &data.all, &bounds, MAX_POINTS);
         if fresh {

@@ -233,3 +233,31 @@ pub fn view_note(view: &density::View, total: usize) -> Option<String> {
         )),
     }
 }
+
+/// Brings a listing selected elsewhere into a chart's view: when the selection changes and the
+/// listing at `at` lies outside the current bounds, the view moves to centre it (same zoom).
+pub fn follow_selection(
+    plot: &mut egui_plot::PlotUi<'_>,
+    id: egui::Id,
+    selected: Option<usize>,
+    at: Option<[f64; 2]>,
+) {
+    let last: Option<usize> = plot.ctx().data(|d| d.get_temp(id)).flatten();
+    plot.ctx().data_mut(|d| d.insert_temp(id, selected));
+    let (Some(row), Some(p)) = (selected, at) else {
+        return;
+    };
+    if last == Some(row) {
+        return;
+    }
+    let b = plot.plot_bounds();
+    let (min, max) = (b.min(), b.max());
+    let inside = (min[0]..=max[0]).contains(&p[0]) && (min[1]..=max[1]).contains(&p[1]);
+    if !inside {
+        let (hw, hh) = ((max[0] - min[0]) / 2.0, (max[1] - min[1]) / 2.0);
+        plot.set_plot_bounds(egui_plot::PlotBounds::from_min_max(
+            [p[0] - hw, p[1] - hh],
+            [p[0] + hw, p[1] + hh],
+        ));
+    }
+}

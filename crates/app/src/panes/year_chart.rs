@@ -10,8 +10,8 @@ use model::hedonic::Attributes;
 
 use super::density::{Bounds, Plotted, View, cached_view, extent};
 use super::{
-    MAX_POINTS, PaneContext, cached, draw_cells, fit_id, inputs_key, jitter, nearest, view_bounds,
-    view_note,
+    MAX_POINTS, PaneContext, cached, draw_cells, fit_id, follow_selection, inputs_key, jitter,
+    nearest, view_bounds, view_note,
 };
 use crate::palette::{SUBJECT, condition_shape, faded, variant_colour};
 
@@ -132,7 +132,20 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
             .include_y(e.min[1])
             .include_y(e.max[1]);
     }
+    let follow_id = view_id.with("follow");
     let response = plot.show(ui, |plot| {
+        let selected = cx.selection.selected;
+        follow_selection(
+            plot,
+            follow_id,
+            selected,
+            selected.map(|r| {
+                [
+                    f64::from(cx.market.model_year[r]) + jitter(r),
+                    cx.market.asking_price[r],
+                ]
+            }),
+        );
         let bounds = view_bounds(plot);
         let (view, fresh) = cached_view(plot.ctx(), view_id, key, &data.all, &bounds, MAX_POINTS);
         if fresh {
