@@ -495,6 +495,7 @@ impl Workbench {
         let (mut recover, mut discard) = (false, false);
         egui::Window::new("Recover unsaved work?")
             .collapsible(false)
+            .anchor(egui::Align2::CENTER_CENTER, egui::Vec2::ZERO)
             .show(ui.ctx(), |ui| {
                 ui.label(text);
                 ui.horizontal(|ui| {
@@ -529,6 +530,7 @@ impl Workbench {
         let (mut save, mut discard, mut cancel) = (false, false, false);
         egui::Window::new("Unsaved changes")
             .collapsible(false)
+            .anchor(egui::Align2::CENTER_CENTER, egui::Vec2::ZERO)
             .show(ui.ctx(), |ui| {
                 ui.label("This appraisal has changes that are not saved in a session file.");
                 ui.horizontal(|ui| {
