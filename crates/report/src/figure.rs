@@ -123,6 +123,19 @@ pub fn ticks(lo: f64, hi: f64, n: usize) -> Vec<f64> {
         .collect()
 }
 
+/// The x-axis ticks of `f` over `x`: whole years, at most about ten, on a year axis; round
+/// numbers otherwise.
+#[must_use]
+pub fn x_ticks(f: &Figure, x: (f64, f64)) -> Vec<f64> {
+    if f.x_is_year {
+        let (a, b) = (x.0.ceil() as i64, x.1.floor() as i64);
+        let step = ((b - a) / 10).max(1) as usize;
+        (a..=b).step_by(step).map(|v| v as f64).collect()
+    } else {
+        ticks(x.0, x.1, 6)
+    }
+}
+
 fn market_points(session: &Session, x: impl Fn(&model::market::Listing) -> f64) -> Vec<Mark> {
     session
         .segment_listings

@@ -4,7 +4,7 @@
 use std::fmt::Write;
 
 use crate::blocks::{Align, Block, Report};
-use crate::figure::{Figure, Mark, Marker, ticks};
+use crate::figure::{Figure, Mark, Marker, ticks, x_ticks};
 use crate::palette;
 
 fn esc(text: &str) -> String {
@@ -174,13 +174,7 @@ fn svg(out: &mut String, f: &Figure) {
         frame.left,
         esc(&f.title)
     );
-    let x_ticks = if f.x_is_year {
-        let (a, b) = (xr.0.ceil() as i64, xr.1.floor() as i64);
-        let step = ((b - a) / 10).max(1);
-        (a..=b).step_by(step as usize).map(|v| v as f64).collect()
-    } else {
-        ticks(xr.0, xr.1, 6)
-    };
+    let x_ticks = x_ticks(f, xr);
     for t in &x_ticks {
         let x = frame.px(*t);
         let _ = write!(

@@ -148,6 +148,52 @@ pub fn shade(count: u32, max_count: u32) -> usize {
 /// Number of shades of the density view.
 pub const SHADES: usize = 5;
 
+/// Places `rows` on a chart: each at `at(row)` in the series `key(row)` names. Returns the
+/// placed listings and the series in order of first appearance.
+pub fn place<K: Ord + Copy>(
+    rows: impl Iterator<Item = usize>,
+    key: impl Fn(usize) -> K,
+    at: impl Fn(usize) -> [f64; 2],
+) -> (Vec<Plotted>, Vec<K>) {
+    let mut index: std::collections::BTreeMap<K, u32> = std::collections::BTreeMap::new();
+    let mut series = Vec::new();
+    let all = rows
+        .map(|row| {
+            let k = key(row);
+            let s = *index.entry(k).or_insert_with(|| {
+                series.push(k);
+                series.len() as u32 - 1
+            });
+            Plotted {
+                row,
+                at: at(row),
+                series: s,
+            }
+        })
+        .collect();
+    (all, series)
+}
+
+/// Points by series.
+pub type SeriesPoints = std::collections::BTreeMap<u32, Vec<[f64; 2]>>;
+
+/// The exact view's listings grouped by series, and each drawn listing with its row (for
+/// picking); both empty for the density grid.
+#[must_use]
+pub fn exact_groups(all: &[Plotted], view: &View) -> (SeriesPoints, Vec<(usize, [f64; 2])>) {
+    let mut groups = SeriesPoints::new();
+    let mut drawn = Vec::new();
+    if let View::Exact(shown) = view {
+        drawn.reserve(shown.len());
+        for &i in shown {
+            let p = all[i as usize];
+            groups.entry(p.series).or_default().push(p.at);
+            drawn.push((p.row, p.at));
+        }
+    }
+    (groups, drawn)
+}
+
 /// The data extent of `all`, for keeping the whole market in the auto-fitted view.
 #[must_use]
 pub fn extent(all: &[Plotted]) -> Option<Bounds> {

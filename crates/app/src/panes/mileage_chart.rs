@@ -2,17 +2,15 @@
 //! year, colour by variant), the subject's fitted value across mileage with its prediction
 //! band, and listings priced below their own band marked for a look.
 
-use std::collections::BTreeMap;
-
 use eframe::egui::{Color32, Ui};
-use egui_plot::{Legend, Line, MarkerShape, Plot, PlotPoints, PlotUi, Points};
+use egui_plot::{Legend, Line, MarkerShape, PlotPoints, PlotUi, Points};
 use model::hedonic::{Attributes, age_years};
 
-use super::density::{Bounds, Plotted, View, cached_view, extent};
+use super::density::{Bounds, Plotted, View, cached_view, exact_groups, extent, place};
 use super::year_chart::hover_and_click;
 use super::{
     MAX_POINTS, PaneContext, cached, cached_in, draw_cells, fit_id, follow_selection, inputs_key,
-    nearest, view_bounds, view_note,
+    listing_plot, nearest, view_bounds, view_note,
 };
 use crate::palette::{SUBJECT, faded, variant_colour};
 
@@ -43,31 +41,21 @@ pub fn gather(cx: &PaneContext<'_>) -> MileageChartData {
     let fit = cx.fit;
     let subject_year = cx.document.subject.model_year;
     let window = cx.document.rules.model_year_window;
-    let mut index: BTreeMap<Series, u32> = BTreeMap::new();
-    let mut series = Vec::new();
-    let all: Vec<Plotted> = fit
-        .cleaning
-        .rows
-        .iter()
-        .copied()
-        .filter(|&r| (market.model_year[r] - subject_year).abs() <= window)
-        .map(|row| {
-            let key = (
+    let (all, series) = place(
+        fit.cleaning
+            .rows
+            .iter()
+            .copied()
+            .filter(|&r| (market.model_year[r] - subject_year).abs() <= window),
+        |row| {
+            (
                 cx.variant_index(row),
                 market.model_year[row],
                 fit.cleaning.is_included(row),
-            );
-            let s = *index.entry(key).or_insert_with(|| {
-                series.push(key);
-                series.len() as u32 - 1
-            });
-            Plotted {
-                row,
-                at: [market.miles[row], market.asking_price[row]],
-                series: s,
-            }
-        })
-        .collect();
+            )
+        },
+        |row| [market.miles[row], market.asking_price[row]],
+    );
     MileageChartData {
         extent: extent(&all),
         all,
@@ -153,20 +141,8 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     let below_id = ui.scope_id().with("mileage_chart_below");
     let mut hovered = None;
     let mut shown = None;
-    let mut plot = Plot::new("value_by_mileage")
-        .legend(
-            Legend::default().color_conflict_handling(egui_plot::ColorConflictHandling::PickFirst),
-        )
-        .x_axis_label("miles")
-        .y_axis_label("asking price")
-        .height((ui.available_height() - 24.0).max(120.0));
-    if let Some(e) = data.extent {
-        plot = plot
-            .include_x(e.min[0])
-            .include_x(e.max[0])
-            .include_y(e.min[1])
-            .include_y(e.max[1]);
-    }
+    let plot =
+        listing_plot(ui, "value_by_mileage", Legend::default(), data.extent).x_axis_label("miles");
     let follow_id = view_id.with("follow");
     let response = plot.show(ui, |plot| {
         let selected = cx.selection.selected;
@@ -210,16 +186,7 @@ fn draw(
 ) -> Vec<(usize, [f64; 2])> {
     let subject = &cx.document.subject;
     let oldest = subject.model_year - cx.document.rules.model_year_window;
-    let mut drawn = Vec::new();
-    let mut groups: BTreeMap<u32, Vec<[f64; 2]>> = BTreeMap::new();
-    if let View::Exact(shown) = view {
-        drawn.reserve(shown.len());
-        for &i in shown {
-            let p = data.all[i as usize];
-            groups.entry(p.series).or_default().push(p.at);
-            drawn.push((p.row, p.at));
-        }
-    }
+    let (groups, drawn) = exact_groups(&data.all, view);
     draw_cells(plot, view, |s| {
         let (variant, _, _) = data.series[s as usize];
         (cx.variant_label(variant), variant_colour(variant))

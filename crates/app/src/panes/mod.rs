@@ -13,7 +13,7 @@ pub mod value;
 pub mod worksheet;
 pub mod year_chart;
 
-use eframe::egui;
+use eframe::egui::{self, Ui};
 use model::appraisal::{Appraisal, MarketFit};
 use model::market::Market;
 
@@ -260,4 +260,27 @@ pub fn follow_selection(
             [p[0] + hw, p[1] + hh],
         ));
     }
+}
+
+/// A chart of listings: its legend keeps the variants' own colours, it fills the space left
+/// above its note, and its automatic view always holds the whole `extent`.
+#[must_use]
+pub fn listing_plot<'a>(
+    ui: &Ui,
+    id: &'a str,
+    legend: egui_plot::Legend,
+    extent: Option<density::Bounds>,
+) -> egui_plot::Plot<'a> {
+    let mut plot = egui_plot::Plot::new(id)
+        .legend(legend.color_conflict_handling(egui_plot::ColorConflictHandling::PickFirst))
+        .y_axis_label("asking price")
+        .height((ui.available_height() - 24.0).max(120.0));
+    if let Some(e) = extent {
+        plot = plot
+            .include_x(e.min[0])
+            .include_x(e.max[0])
+            .include_y(e.min[1])
+            .include_y(e.max[1]);
+    }
+    plot
 }

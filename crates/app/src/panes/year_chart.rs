@@ -4,14 +4,14 @@
 use std::collections::BTreeMap;
 
 use eframe::egui::{self, Color32, Ui};
-use egui_plot::{Legend, Line, MarkerShape, Plot, PlotPoints, PlotUi, Points};
+use egui_plot::{Legend, Line, MarkerShape, PlotPoints, PlotUi, Points};
 use model::condition::Condition;
 use model::hedonic::Attributes;
 
-use super::density::{Bounds, Plotted, View, cached_view, extent};
+use super::density::{Bounds, Plotted, View, cached_view, exact_groups, extent, place};
 use super::{
     MAX_POINTS, PaneContext, cached, draw_cells, fit_id, follow_selection, inputs_key, jitter,
-    nearest, view_bounds, view_note,
+    listing_plot, nearest, view_bounds, view_note,
 };
 use crate::palette::{SUBJECT, condition_shape, faded, variant_colour};
 
@@ -43,32 +43,22 @@ pub fn gather(cx: &PaneContext<'_>) -> YearChartData {
         e.0 += market.asking_price[row];
         e.1 += 1;
     }
-    let mut index: BTreeMap<Series, u32> = BTreeMap::new();
-    let mut series = Vec::new();
-    let all: Vec<Plotted> = fit
-        .cleaning
-        .rows
-        .iter()
-        .map(|&row| {
-            let key = (
+    let (all, series) = place(
+        fit.cleaning.rows.iter().copied(),
+        |row| {
+            (
                 cx.variant_index(row),
                 market.condition[row],
                 fit.cleaning.is_included(row),
-            );
-            let s = *index.entry(key).or_insert_with(|| {
-                series.push(key);
-                series.len() as u32 - 1
-            });
-            Plotted {
-                row,
-                at: [
-                    f64::from(market.model_year[row]) + jitter(row),
-                    market.asking_price[row],
-                ],
-                series: s,
-            }
-        })
-        .collect();
+            )
+        },
+        |row| {
+            [
+                f64::from(market.model_year[row]) + jitter(row),
+                market.asking_price[row],
+            ]
+        },
+    );
     let subject_variant = cx
         .document
         .subject
@@ -116,22 +106,13 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     let view_id = ui.scope_id().with("year_chart_view");
     let mut hovered = None;
     let mut shown = None;
-    let mut plot = Plot::new("price_by_year")
-        .legend(
-            Legend::default()
-                .position(egui_plot::Corner::LeftTop)
-                .color_conflict_handling(egui_plot::ColorConflictHandling::PickFirst),
-        )
-        .x_axis_label("model year")
-        .y_axis_label("asking price")
-        .height((ui.available_height() - 24.0).max(120.0));
-    if let Some(e) = data.extent {
-        plot = plot
-            .include_x(e.min[0])
-            .include_x(e.max[0])
-            .include_y(e.min[1])
-            .include_y(e.max[1]);
-    }
+    let plot = listing_plot(
+        ui,
+        "price_by_year",
+        Legend::default().position(egui_plot::Corner::LeftTop),
+        data.extent,
+    )
+    .x_axis_label("model year");
     let follow_id = view_id.with("follow");
     let response = plot.show(ui, |plot| {
         let selected = cx.selection.selected;
@@ -168,16 +149,7 @@ fn draw(
     data: &YearChartData,
     view: &View,
 ) -> Vec<(usize, [f64; 2])> {
-    let mut drawn = Vec::new();
-    let mut groups: BTreeMap<u32, Vec<[f64; 2]>> = BTreeMap::new();
-    if let View::Exact(shown) = view {
-        drawn.reserve(shown.len());
-        for &i in shown {
-            let p = data.all[i as usize];
-            groups.entry(p.series).or_default().push(p.at);
-            drawn.push((p.row, p.at));
-        }
-    }
+    let (groups, drawn) = exact_groups(&data.all, view);
     draw_cells(plot, view, |s| {
         let (variant, _, _) = data.series[s as usize];
         (cx.variant_label(variant), variant_colour(variant))

@@ -6,7 +6,7 @@ mod metrics;
 use pdf_writer::{Content, Filter, Finish, Name, Pdf, Rect, Ref, Str, TextStr};
 
 use crate::blocks::{Align, Block, Column, Report};
-use crate::figure::{Figure, Mark, Marker, ticks};
+use crate::figure::{Figure, Mark, Marker, ticks, x_ticks};
 use crate::html::{Frame, tick_label};
 use crate::palette;
 pub use metrics::{width, win_ansi, wrap};
@@ -283,13 +283,7 @@ impl Layout {
         let plot_bottom = top - 20.0 - plot_h;
         let py = |y: f64| plot_bottom + plot_h - frame.py(y) as f32;
         let px = |x: f64| frame.px(x) as f32;
-        let x_ticks: Vec<f64> = if f.x_is_year {
-            let (a, b) = (xr.0.ceil() as i64, xr.1.floor() as i64);
-            let step = ((b - a) / 10).max(1) as usize;
-            (a..=b).step_by(step).map(|v| v as f64).collect()
-        } else {
-            ticks(xr.0, xr.1, 6)
-        };
+        let x_ticks = x_ticks(f, xr);
         self.page.set_line_width(0.5);
         for t in &x_ticks {
             self.colour(palette::GRID);

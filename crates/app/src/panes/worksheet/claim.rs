@@ -6,23 +6,8 @@ use model::session::Purpose;
 use model::worksheet::{ClaimInputs, ClaimWorksheet, JurisdictionProfile, ProfileFile};
 
 use super::super::PaneContext;
-use super::{PAYMENT_LABEL, amount_row};
+use super::{PAYMENT_LABEL, amount_row, input_row, money_input};
 use crate::command::Command;
-
-fn money_input(ui: &mut Ui, label: &str, value: &mut f64) -> bool {
-    let label = ui.label(label);
-    let changed = ui
-        .add(
-            egui::DragValue::new(value)
-                .prefix("$")
-                .speed(10.0)
-                .range(0.0..=1e7),
-        )
-        .labelled_by(label.id)
-        .changed();
-    ui.end_row();
-    changed
-}
 
 /// Edits the claim's profile and facts.
 pub fn inputs_ui(
@@ -56,29 +41,22 @@ pub fn inputs_ui(
     egui::Grid::new("claim_inputs")
         .num_columns(2)
         .show(ui, |ui| {
-            let label = ui.label("Sales tax rate");
-            changed |= ui
-                .add(
-                    egui::DragValue::new(&mut edited.sales_tax_pct)
-                        .suffix(" %")
-                        .speed(0.05)
-                        .range(0.0..=25.0),
-                )
-                .labelled_by(label.id)
-                .changed();
-            ui.end_row();
+            changed |= input_row(
+                ui,
+                "Sales tax rate",
+                egui::DragValue::new(&mut edited.sales_tax_pct)
+                    .suffix(" %")
+                    .speed(0.05)
+                    .range(0.0..=25.0),
+            );
             changed |= money_input(ui, "Title fee", &mut edited.title_fee);
             changed |= money_input(ui, "Transfer fee", &mut edited.transfer_fee);
             changed |= money_input(ui, "Annual registration", &mut edited.annual_registration);
-            let label = ui.label("Registration months left");
-            changed |= ui
-                .add(
-                    egui::DragValue::new(&mut edited.registration_months_remaining)
-                        .range(0.0..=12.0),
-                )
-                .labelled_by(label.id)
-                .changed();
-            ui.end_row();
+            changed |= input_row(
+                ui,
+                "Registration months left",
+                egui::DragValue::new(&mut edited.registration_months_remaining).range(0.0..=12.0),
+            );
             changed |= money_input(ui, "Deductible", &mut edited.deductible);
             changed |= money_input(ui, "Repair estimate", &mut edited.repair_estimate);
             changed |= money_input(ui, "Salvage value", &mut edited.salvage_value);

@@ -129,6 +129,26 @@ fn purpose_selector(ui: &mut Ui, cx: &mut PaneContext<'_>, profiles: &ProfileFil
     });
 }
 
+/// One row of an input grid: a label and the control it names. Whether the value changed.
+fn input_row(ui: &mut Ui, label: &str, control: impl egui::Widget) -> bool {
+    let label = ui.label(label);
+    let changed = ui.add(control).labelled_by(label.id).changed();
+    ui.end_row();
+    changed
+}
+
+/// A row for an amount of money.
+fn money_input(ui: &mut Ui, label: &str, value: &mut f64) -> bool {
+    input_row(
+        ui,
+        label,
+        egui::DragValue::new(value)
+            .prefix("$")
+            .speed(10.0)
+            .range(0.0..=1e7),
+    )
+}
+
 fn amount_row(ui: &mut Ui, label: &str, amount: String) {
     ui.label(label);
     ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {

@@ -7,22 +7,8 @@ use model::session::Purpose;
 use model::worksheet::{HoldingCost, Line, TradeInInputs};
 
 use super::super::PaneContext;
+use super::{input_row, money_input};
 use crate::command::Command;
-
-fn money_input(ui: &mut Ui, label: &str, value: &mut f64) -> bool {
-    let label = ui.label(label);
-    let changed = ui
-        .add(
-            egui::DragValue::new(value)
-                .prefix("$")
-                .speed(10.0)
-                .range(0.0..=1e7),
-        )
-        .labelled_by(label.id)
-        .changed();
-    ui.end_row();
-    changed
-}
 
 /// Edits the trade-in inputs; every change is one command.
 pub fn inputs_ui(
@@ -38,30 +24,24 @@ pub fn inputs_ui(
     egui::Grid::new("trade_in_inputs")
         .num_columns(2)
         .show(ui, |ui| {
-            let label = ui.label("List-to-sale discount");
-            changed |= ui
-                .add(
-                    egui::DragValue::new(&mut edited.list_to_sale_discount_pct)
-                        .suffix(" %")
-                        .speed(0.1)
-                        .range(0.0..=50.0),
-                )
-                .labelled_by(label.id)
-                .changed();
-            ui.end_row();
+            changed |= input_row(
+                ui,
+                "List-to-sale discount",
+                egui::DragValue::new(&mut edited.list_to_sale_discount_pct)
+                    .suffix(" %")
+                    .speed(0.1)
+                    .range(0.0..=50.0),
+            );
             changed |= money_input(ui, "Transport and fees", &mut edited.transport_and_fees);
             changed |= money_input(ui, "Pack", &mut edited.pack);
             changed |= money_input(ui, "Target front gross", &mut edited.target_front_gross);
-            let label = ui.label("Days to sell");
-            changed |= ui
-                .add(
-                    egui::DragValue::new(&mut edited.days_to_sell)
-                        .suffix(" days")
-                        .range(0.0..=365.0),
-                )
-                .labelled_by(label.id)
-                .changed();
-            ui.end_row();
+            changed |= input_row(
+                ui,
+                "Days to sell",
+                egui::DragValue::new(&mut edited.days_to_sell)
+                    .suffix(" days")
+                    .range(0.0..=365.0),
+            );
             ui.label("Holding cost");
             ui.horizontal(|ui| {
                 let per_day = matches!(edited.holding, HoldingCost::PerDay { .. });
