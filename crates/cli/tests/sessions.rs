@@ -1,7 +1,7 @@
 //! Session files from the command line: save, re-run, report, and a save killed midway.
 
-// Tests may unwrap: a failure is the report.
-#![allow(clippy::unwrap_used, clippy::expect_used)]
+// Tests may unwrap (a failure is the report) and compare amounts written to the cent exactly.
+#![allow(clippy::unwrap_used, clippy::expect_used, clippy::float_cmp)]
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
@@ -258,4 +258,49 @@ fn a_save_killed_midway_leaves_the_old_session_intact() {
     }
     eprintln!("caught {caught} saves in progress");
     assert!(caught >= 1, "never caught a save in progress");
+}
+
+#[test]
+fn a_claim_in_json_has_the_documented_keys() {
+    let out = comptrail(&[
+        "appraise",
+        &repo("assets/demo-market.csv"),
+        "--subject",
+        "year=2021,make=Quellmark,model=Brindle,variant=Trek,miles=52300,condition=used",
+        "--as-of",
+        "2026-11-30",
+        "--claim",
+        &repo("sample-sessions/worksheets/total-loss-claim.ron"),
+        "--json",
+    ]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let doc: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let claim = &doc["worksheet"]["claim"];
+    for key in [
+        "acv",
+        "itemized_in_acv",
+        "settlement",
+        "not_paid",
+        "verdict",
+        "total_loss_citation",
+        "check",
+    ] {
+        assert!(!claim[key].is_null(), "worksheet.claim.{key} missing");
+    }
+    // The claim searched with the New York profile's mileage rule: no comparable is more than
+    // the greater of 4,000 miles or 10 % above the insured vehicle (11 NYCRR 216.7).
+    for c in doc["comparables"].as_array().unwrap() {
+        assert!(c["listing"]["miles"].as_f64().unwrap() <= 52_300.0 + 5_230.0);
+    }
+    assert_eq!(claim["check"]["profile_id"], "ny");
+    let payment = claim["settlement"]["payment"].as_f64().unwrap();
+    assert_eq!(
+        (payment * 100.0).round() / 100.0,
+        payment,
+        "paid to the cent"
+    );
 }
