@@ -6,11 +6,10 @@ use eframe::egui::{Color32, Ui};
 use egui_plot::{Legend, Line, MarkerShape, PlotPoints, PlotUi, Points};
 use model::hedonic::{Attributes, age_years};
 
-use super::density::{Bounds, Plotted, View, cached_view, exact_groups, extent, place};
-use super::year_chart::hover_and_click;
+use super::density::{Bounds, Plotted, View, exact_groups, extent, place};
 use super::{
-    MAX_POINTS, PaneContext, cached, cached_in, draw_cells, fit_id, follow_selection, inputs_key,
-    listing_plot, nearest, view_bounds, view_note,
+    PaneContext, after_chart, cached, cached_in, current_view, draw_cells, fit_id,
+    follow_selection, inputs_key, listing_plot, nearest,
 };
 use crate::palette::{SUBJECT, faded, variant_colour};
 
@@ -156,11 +155,7 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
                 })
                 .map(|r| [cx.market.miles[r], cx.market.asking_price[r]]),
         );
-        let bounds = view_bounds(plot);
-        let (view, fresh) = cached_view(plot.ctx(), view_id, key, &data.all, &bounds, MAX_POINTS);
-        if fresh {
-            plot.ctx().request_repaint();
-        }
+        let (view, bounds) = current_view(plot, view_id, key, &data.all);
         let below_key = inputs_key(&[&key, &bounds.key(), &cx.document.level]);
         let below = cached_in(plot.ctx(), below_id, below_key, || {
             below_band(cx, &data, &view)
@@ -169,10 +164,14 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
         hovered = nearest(plot, &drawn, 8.0);
         shown = Some(view);
     });
-    hover_and_click(cx, hovered, &response.response);
-    if let Some(note) = shown.and_then(|v| view_note(&v, data.all.len())) {
-        ui.small(note);
-    }
+    after_chart(
+        ui,
+        cx,
+        hovered,
+        &response.response,
+        shown.as_deref(),
+        data.all.len(),
+    );
 }
 
 /// Draws the chart; returns the listings drawn one by one (for picking).

@@ -284,3 +284,56 @@ pub fn listing_plot<'a>(
     }
     plot
 }
+
+/// What a chart shows of `all` in its current view (cached; asks for one more frame when the
+/// view changed, since plot bounds lag a frame behind a zoom), with the bounds.
+#[must_use]
+pub fn current_view(
+    plot: &egui_plot::PlotUi<'_>,
+    id: egui::Id,
+    key: u64,
+    all: &[density::Plotted],
+) -> (std::sync::Arc<density::View>, density::Bounds) {
+    let bounds = view_bounds(plot);
+    let (view, fresh) = density::cached_view(plot.ctx(), id, key, all, &bounds, MAX_POINTS);
+    if fresh {
+        plot.ctx().request_repaint();
+    }
+    (view, bounds)
+}
+
+/// After a chart: link the hovered listing, and say under the chart what it shows.
+pub fn after_chart(
+    ui: &mut Ui,
+    cx: &mut PaneContext<'_>,
+    hovered: Option<usize>,
+    response: &egui::Response,
+    shown: Option<&density::View>,
+    total: usize,
+) {
+    hover_and_click(cx, hovered, response);
+    if let Some(note) = shown.and_then(|v| view_note(v, total)) {
+        ui.small(note);
+    }
+}
+
+/// Shared by both charts: hovering a point links it everywhere; clicking selects it; the
+/// hovered listing's exclusion reason shows as a tooltip.
+fn hover_and_click(cx: &mut PaneContext<'_>, hovered: Option<usize>, response: &egui::Response) {
+    let Some(row) = hovered else { return };
+    cx.selection.hovered = Some(row);
+    let listing = cx.market.listing(row);
+    let reason = cx
+        .fit
+        .cleaning
+        .exclusion_of(row)
+        .filter(|_| !cx.fit.cleaning.is_included(row))
+        .map(|e| format!("\nexcluded: {e}"))
+        .unwrap_or_default();
+    response
+        .clone()
+        .on_hover_text_at_pointer(format!("{}{reason}", listing.describe()));
+    if response.clicked() {
+        cx.selection.selected = Some(row);
+    }
+}

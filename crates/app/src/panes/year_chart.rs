@@ -3,15 +3,15 @@
 
 use std::collections::BTreeMap;
 
-use eframe::egui::{self, Color32, Ui};
+use eframe::egui::{Color32, Ui};
 use egui_plot::{Legend, Line, MarkerShape, PlotPoints, PlotUi, Points};
 use model::condition::Condition;
 use model::hedonic::Attributes;
 
-use super::density::{Bounds, Plotted, View, cached_view, exact_groups, extent, place};
+use super::density::{Bounds, Plotted, View, exact_groups, extent, place};
 use super::{
-    MAX_POINTS, PaneContext, cached, draw_cells, fit_id, follow_selection, inputs_key, jitter,
-    listing_plot, nearest, view_bounds, view_note,
+    PaneContext, after_chart, cached, current_view, draw_cells, fit_id, follow_selection,
+    inputs_key, jitter, listing_plot, nearest,
 };
 use crate::palette::{SUBJECT, condition_shape, faded, variant_colour};
 
@@ -127,19 +127,19 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
                 ]
             }),
         );
-        let bounds = view_bounds(plot);
-        let (view, fresh) = cached_view(plot.ctx(), view_id, key, &data.all, &bounds, MAX_POINTS);
-        if fresh {
-            plot.ctx().request_repaint();
-        }
+        let (view, _) = current_view(plot, view_id, key, &data.all);
         let drawn = draw(plot, cx, &data, &view);
         hovered = nearest(plot, &drawn, 8.0);
         shown = Some(view);
     });
-    hover_and_click(cx, hovered, &response.response);
-    if let Some(note) = shown.and_then(|v| view_note(&v, data.all.len())) {
-        ui.small(note);
-    }
+    after_chart(
+        ui,
+        cx,
+        hovered,
+        &response.response,
+        shown.as_deref(),
+        data.all.len(),
+    );
 }
 
 /// Draws the chart; returns the listings drawn one by one (for picking).
@@ -234,29 +234,4 @@ fn draw(
         );
     }
     drawn
-}
-
-/// Shared by both charts: hovering a point links it everywhere; clicking selects it; the
-/// hovered listing's exclusion reason shows as a tooltip.
-pub fn hover_and_click(
-    cx: &mut PaneContext<'_>,
-    hovered: Option<usize>,
-    response: &egui::Response,
-) {
-    let Some(row) = hovered else { return };
-    cx.selection.hovered = Some(row);
-    let listing = cx.market.listing(row);
-    let reason = cx
-        .fit
-        .cleaning
-        .exclusion_of(row)
-        .filter(|_| !cx.fit.cleaning.is_included(row))
-        .map(|e| format!("\nexcluded: {e}"))
-        .unwrap_or_default();
-    response
-        .clone()
-        .on_hover_text_at_pointer(format!("{}{reason}", listing.describe()));
-    if response.clicked() {
-        cx.selection.selected = Some(row);
-    }
 }
