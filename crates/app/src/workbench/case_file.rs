@@ -244,8 +244,19 @@ impl Workbench {
         ) else {
             return Err("There is no finished appraisal to save yet.".into());
         };
-        if self.worker.is_busy() {
-            return Err("Wait for the market to finish fitting, then save.".into());
+        if self.runtime.loading.is_some() || self.runtime.fitting.is_some() {
+            return Err("Wait for the market to finish loading and fitting, then save.".into());
+        }
+        // The evidence must be the appraisal of this very document, not of an earlier state.
+        if !self
+            .appraised_for
+            .as_ref()
+            .is_some_and(|(d, _)| d == &self.document)
+            || appraisal.subject != self.document.subject
+        {
+            return Err(
+                "The appraisal is being brought up to date; save again in a moment.".into(),
+            );
         }
         let market_path = match &self.document.market {
             MarketSource::File(p) => Some(
