@@ -303,3 +303,18 @@ fn a_damaged_session_leaves_the_workbench_as_it_was_and_says_where() {
     assert!(e.contains("appraiser"), "{e}");
     assert_eq!(wb.document(), &before);
 }
+
+#[test]
+fn a_session_is_not_saved_from_an_appraisal_that_no_longer_matches_the_subject() {
+    let mut wb = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
+    let mut subject = wb.document().subject.clone();
+    subject.model = "Nonesuch".into();
+    wb.apply(Command::SetSubject(subject));
+    wb.wait_for_jobs();
+    // The fit for a model the market lacks fails; the last appraisal is of another subject.
+    assert!(wb.runtime().fit_error.is_some());
+    let dir = scratch("stale");
+    let e = wb.save_session(&dir.join("stale.ron")).unwrap_err();
+    assert!(e.contains("up to date"), "{e}");
+    assert!(!dir.join("stale.ron").exists());
+}
