@@ -337,3 +337,49 @@ fn hover_and_click(cx: &mut PaneContext<'_>, hovered: Option<usize>, response: &
         cx.selection.selected = Some(row);
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use egui_kittest::Harness;
+
+    use super::*;
+
+    fn bounds_after(selected: Option<usize>, at: [f64; 2]) -> egui_plot::PlotBounds {
+        let plot_id = egui::Id::unique("follow_selection_test");
+        let mut harness = Harness::new_ui(move |ui| {
+            egui_plot::Plot::new("follow")
+                .id(plot_id)
+                .default_x_bounds(0.0, 10.0)
+                .default_y_bounds(0.0, 10.0)
+                .show(ui, |plot| {
+                    follow_selection(plot, egui::Id::unique("follow_memory"), selected, Some(at));
+                    plot.points(egui_plot::Points::new("p", vec![[5.0, 5.0]]));
+                });
+        });
+        harness.run_steps(3);
+        *egui_plot::PlotMemory::load(&harness.ctx, plot_id)
+            .unwrap_or_else(|| panic!("the plot stored its memory"))
+            .bounds()
+    }
+
+    #[test]
+    fn a_chart_moves_to_a_selection_outside_its_view_and_keeps_its_zoom() {
+        let moved = bounds_after(Some(7), [50.0, 80.0]);
+        assert!(
+            (moved.min()[0]..=moved.max()[0]).contains(&50.0),
+            "{moved:?}"
+        );
+        assert!(
+            (moved.min()[1]..=moved.max()[1]).contains(&80.0),
+            "{moved:?}"
+        );
+        let width = moved.max()[0] - moved.min()[0];
+        assert!(
+            width < 20.0,
+            "the zoom is kept, not widened to hold both: {moved:?}"
+        );
+        // A selection already in view leaves the view alone.
+        let kept = bounds_after(Some(7), [5.0, 5.0]);
+        assert!(kept.min()[0] <= 0.5 && kept.max()[0] >= 9.5, "{kept:?}");
+    }
+}
