@@ -25,6 +25,8 @@ pub struct Preferences {
     /// Keep every listing of the model in saved sessions (larger files; reports show the whole
     /// market).
     pub keep_segment: bool,
+    /// The user's own jurisdiction profile file; the shipped profiles when `None`.
+    pub profiles_file: Option<PathBuf>,
 }
 
 impl Default for Preferences {
@@ -35,6 +37,7 @@ impl Default for Preferences {
             show_comparables: true,
             recent_sessions: Vec::new(),
             keep_segment: false,
+            profiles_file: None,
         }
     }
 }

@@ -90,7 +90,7 @@ impl Workbench {
             auto_save_interval: 5.0,
         });
         undoer.add_undo(&document);
-        Self {
+        let mut wb = Self {
             document,
             // One drag of a slider settles into one undo step once it has been still for 0.4 s.
             undoer,
@@ -107,11 +107,43 @@ impl Workbench {
                 saved: Some(document_copy),
                 ..CaseFile::default()
             },
-            profiles: model::worksheet::shipped_profiles().unwrap_or(ProfileFile {
-                format_version: model::worksheet::PROFILES_FORMAT_VERSION,
-                profiles: Vec::new(),
-            }),
+            profiles: shipped_or_empty(),
+        };
+        if let Some(path) = wb.preferences.profiles_file.clone() {
+            if let Err(e) = wb.load_profiles(&path) {
+                wb.case.message = Some((true, format!("{e}; using the shipped profiles")));
+            }
         }
+        wb
+    }
+
+    /// Offers the jurisdiction profiles of `path` for claims from now on (and at the next
+    /// start).
+    pub fn load_profiles(&mut self, path: &std::path::Path) -> Result<(), String> {
+        let text = std::fs::read_to_string(path)
+            .map_err(|e| format!("cannot read {}: {e}", path.display()))?;
+        let file =
+            ProfileFile::parse(&text, &path.display().to_string()).map_err(|e| e.to_string())?;
+        if file.profiles.is_empty() {
+            return Err(format!("{} holds no profiles", path.display()));
+        }
+        self.case.message = Some((
+            false,
+            format!(
+                "Claims now use the {} profiles of {}.",
+                file.profiles.len(),
+                path.display()
+            ),
+        ));
+        self.profiles = file;
+        self.preferences.profiles_file = Some(path.to_owned());
+        Ok(())
+    }
+
+    /// Goes back to the profiles shipped with comptrail.
+    pub fn use_shipped_profiles(&mut self) {
+        self.profiles = shipped_or_empty();
+        self.preferences.profiles_file = None;
     }
 
     /// Shows `view` in the central area.
@@ -633,6 +665,21 @@ impl Workbench {
                 &mut self.preferences.keep_segment,
                 "Keep every listing of the model in saved sessions (larger files)",
             );
+            ui.separator();
+            ui.label(match &self.preferences.profiles_file {
+                Some(p) => format!("Jurisdiction profiles: {}", p.display()),
+                None => "Jurisdiction profiles: shipped with comptrail".to_owned(),
+            });
+            if ui.button("Open a profiles file…").clicked() {
+                self.prompt(FilePrompt::Profiles);
+                ui.close();
+            }
+            if self.preferences.profiles_file.is_some()
+                && ui.button("Use the shipped profiles").clicked()
+            {
+                self.use_shipped_profiles();
+                ui.close();
+            }
         });
     }
 
@@ -725,6 +772,15 @@ impl Workbench {
                 });
             });
     }
+}
+
+/// The shipped jurisdiction profiles (compiled in and checked by the tests, so reading them
+/// cannot fail in a released build; an empty list if it ever did).
+fn shipped_or_empty() -> ProfileFile {
+    model::worksheet::shipped_profiles().unwrap_or(ProfileFile {
+        format_version: model::worksheet::PROFILES_FORMAT_VERSION,
+        profiles: Vec::new(),
+    })
 }
 
 /// The subject and value on the left, the comparables below.

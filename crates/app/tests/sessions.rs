@@ -318,3 +318,36 @@ fn a_session_is_not_saved_from_an_appraisal_that_no_longer_matches_the_subject()
     assert!(e.contains("up to date"), "{e}");
     assert!(!dir.join("stale.ron").exists());
 }
+
+#[test]
+fn a_profiles_file_of_the_users_own_is_offered_for_claims_and_remembered() {
+    let dir = scratch("profiles");
+    let own = dir.join("mine.ron");
+    // The shipped file with New York renamed to a county office's own copy.
+    let text = model::worksheet::SHIPPED_PROFILES
+        .replacen("id: \"ny\"", "id: \"county\"", 1)
+        .replacen("name: \"New York\"", "name: \"County claims office\"", 1);
+    std::fs::write(&own, text).unwrap();
+    let mut wb = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
+    wb.load_profiles(&own).unwrap();
+    assert!(wb.profiles().get("county").is_some());
+    assert!(wb.profiles().get("ny").is_none());
+    assert_eq!(
+        wb.preferences().profiles_file.as_deref(),
+        Some(own.as_path())
+    );
+    // A broken file is refused by line and the profiles in use stay.
+    let broken = dir.join("broken.ron");
+    std::fs::write(
+        &broken,
+        "(\n  format_version: 1,\n  profiles: [ (id: 7) ],\n)",
+    )
+    .unwrap();
+    let e = wb.load_profiles(&broken).unwrap_err();
+    assert!(e.contains("broken.ron:3:"), "{e}");
+    assert!(wb.profiles().get("county").is_some());
+    // The next start reads the remembered file.
+    let prefs = wb.preferences().clone();
+    let again = Workbench::with_document(AppraisalDocument::demo(SMALL_DEMO), prefs, || {});
+    assert!(again.profiles().get("county").is_some());
+}

@@ -73,6 +73,8 @@ pub enum FilePrompt {
     Report,
     /// Point a reopened session at its moved market file.
     LocateMarket,
+    /// A jurisdiction profile file of the user's own.
+    Profiles,
 }
 
 /// Runtime state of the case file (never saved).
@@ -409,6 +411,7 @@ impl Workbench {
                 .unwrap_or_else(|| PathBuf::from("appraisal.ron"))
                 .with_extension(""),
             FilePrompt::LocateMarket => PathBuf::from("market.csv"),
+            FilePrompt::Profiles => PathBuf::from("jurisdictions.ron"),
         };
         let dialog = rfd::FileDialog::new();
         let picked = match which {
@@ -421,6 +424,9 @@ impl Workbench {
                 .set_file_name(suggested.display().to_string())
                 .save_file(),
             FilePrompt::LocateMarket => dialog.add_filter("market CSV", &["csv"]).pick_file(),
+            FilePrompt::Profiles => dialog
+                .add_filter("jurisdiction profiles", &["ron"])
+                .pick_file(),
         };
         match picked {
             Some(path) => self.use_prompted(which, &path),
@@ -438,6 +444,7 @@ impl Workbench {
                 self.rerun_opened_on(MarketSource::File(path.to_owned()));
                 Ok(())
             }
+            FilePrompt::Profiles => self.load_profiles(path),
         };
         if let Err(e) = outcome {
             self.case.message = Some((true, e));
@@ -467,6 +474,7 @@ impl Workbench {
             FilePrompt::OpenSession => ("Open a session", "Open"),
             FilePrompt::Report => ("Write the report (PDF and HTML)", "Write"),
             FilePrompt::LocateMarket => ("Where is the market file now?", "Re-run"),
+            FilePrompt::Profiles => ("Open a jurisdiction profiles file", "Open"),
         };
         let mut keep = true;
         let mut go = false;
