@@ -210,3 +210,50 @@ fn a_session_file_that_is_not_text_is_refused_by_line() {
     assert!(e.contains("line 3"), "{e}");
     assert!(e.contains("not UTF-8"), "{e}");
 }
+
+mod properties {
+    use std::sync::OnceLock;
+
+    use acceptance::demo_session;
+    use model::session::{Purpose, Session, parse_session, reproduce, session_to_ron};
+    use proptest::prelude::*;
+
+    fn base() -> &'static Session {
+        static BASE: OnceLock<Session> = OnceLock::new();
+        BASE.get_or_init(|| demo_session(Purpose::Value, None))
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(48))]
+
+        /// Whatever an appraiser types (quotes, backslashes, newlines, any script, RON
+        /// syntax), a session reads back exactly as it was written and still reproduces.
+        #[test]
+        fn free_text_survives_a_save_and_reopen(
+            notes in "\\PC{0,80}",
+            appraiser in "[\"\\\\(),:\\n a-zA-Zé漢字]{0,30}",
+            basis in "\\PC{1,40}",
+        ) {
+            let mut session = base().clone();
+            session.authorship.notes = notes;
+            session.authorship.appraiser = appraiser;
+            if let Some(line) = session.appraisal.comparables[0].adjustments.first_mut() {
+                line.basis = basis;
+            }
+            let text = session_to_ron(&session).unwrap();
+            let again = parse_session(&text, "p.ron").unwrap();
+            prop_assert_eq!(&again, &session);
+            prop_assert!(reproduce(&again).unwrap().reproduces());
+            // And the report prints it: the PDF (WinAnsi text, wrapped) and the HTML (escaped).
+            let identity = report::Identity {
+                session_file: "p.ron".into(),
+                session_hash: "xxh3:0".into(),
+                reproduction: "checked".into(),
+            };
+            let doc = report::Report::from_session(&again, &identity);
+            prop_assert!(report::pdf::render(&doc).starts_with(b"%PDF-"));
+            let html = report::html::render(&doc);
+            prop_assert!(!html.contains("<script"));
+        }
+    }
+}
