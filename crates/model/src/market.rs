@@ -268,6 +268,29 @@ impl Market {
         }
     }
 
+    /// Makes room for `additional` more rows in every column (so a market being built does not
+    /// copy itself as it grows).
+    pub fn reserve(&mut self, additional: usize) {
+        self.line.reserve(additional);
+        self.model_year.reserve(additional);
+        self.make.reserve(additional);
+        self.model.reserve(additional);
+        self.variant.reserve(additional);
+        self.asking_price.reserve(additional);
+        self.miles.reserve(additional);
+        self.condition.reserve(additional);
+        self.listed_on.reserve(additional);
+        self.sold_on.reserve(additional);
+        self.sale_price.reserve(additional);
+        self.vin.reserve(additional);
+        self.seller.reserve(additional);
+        self.location.reserve(additional);
+        self.coordinates.reserve(additional);
+        self.distance_miles.reserve(additional);
+        self.title.reserve(additional);
+        self.options.reserve(additional);
+    }
+
     /// Appends another market's rows, re-interning its names into this market's vocabulary.
     pub fn append(&mut self, other: Market) {
         let ids: Vec<NameId> = (0..other.names.len() as NameId)

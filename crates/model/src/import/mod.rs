@@ -640,9 +640,17 @@ fn parse_rows(
                 .collect::<Result<_, _>>()
         })?
     };
+    // The first part becomes the market (moved, not copied); the others are appended once
+    // room for all of them is made.
+    let total: usize = parts.iter().map(|(p, _)| p.len()).sum();
     let mut market = Market::default();
     for (part, issues) in parts {
-        market.append(part);
+        if market.is_empty() && market.names.is_empty() {
+            market = part;
+            market.reserve(total - market.len());
+        } else {
+            market.append(part);
+        }
         for (line, reason) in issues.rejected {
             report.reject(line, reason);
         }
@@ -662,6 +670,7 @@ fn parse_chunk(
 ) -> (Market, ChunkIssues) {
     let km = mapping.odometer == OdometerUnit::Kilometres;
     let mut market = Market::default();
+    market.reserve(c.year.len());
     let mut names = Vocabulary::default();
     let mut cache = InternCache::default();
     let mut issues = ChunkIssues::default();
