@@ -9,8 +9,6 @@
 
 use std::collections::BTreeMap;
 
-use foldhash::{HashMap, HashMapExt};
-
 use chrono::{Datelike, NaiveDate};
 use linfa::ParamGuard;
 use serde::{Deserialize, Serialize};
@@ -336,27 +334,69 @@ fn stock_rules(
     None
 }
 
+/// For `items` of (position, key) in position order: each item whose key already appeared, with
+/// the position where it first did. Sorting hashes keeps this fast at half a million keys (a
+/// hash map of that size spends its time on cache misses); equal hashes are checked key by key.
+fn repeats<K: Eq + std::hash::Hash>(items: &[(usize, K)]) -> Vec<(usize, usize)> {
+    use std::hash::BuildHasher;
+    let state = foldhash::fast::FixedState::with_seed(0x636f_6d70);
+    let mut keyed: Vec<(u64, usize)> = items
+        .iter()
+        .enumerate()
+        .map(|(j, (_, k))| (state.hash_one(k), j))
+        .collect();
+    keyed.sort_unstable();
+    let mut out = Vec::new();
+    for run in keyed
+        .chunk_by(|a, b| a.0 == b.0)
+        .filter(|run| run.len() > 1)
+    {
+        // Within a run `j` ascends, so the first of each distinct key is its first occurrence.
+        let mut firsts: Vec<usize> = Vec::new();
+        for &(_, j) in run {
+            match firsts.iter().find(|&&f| items[f].1 == items[j].1) {
+                Some(&f) => out.push((items[j].0, items[f].0)),
+                None => firsts.push(j),
+            }
+        }
+    }
+    out
+}
+
+/// What makes two listings without a VIN the same: model year, variant, miles, price in
+/// cents, seller.
+type ListingKey = (i32, u32, u64, u64, u32);
+
 fn mark_duplicates(market: &Market, rows: &[usize], exclusions: &mut [Option<Exclusion>]) {
-    let mut by_vin: HashMap<&str, u64> = HashMap::new();
-    let mut by_attributes: HashMap<(i32, u32, u64, u64, u32), u64> = HashMap::new();
+    let mut by_vin: Vec<(usize, &str)> = Vec::new();
+    let mut by_attributes: Vec<(usize, ListingKey)> = Vec::new();
     for (i, &r) in rows.iter().enumerate() {
-        let line = market.line[r];
-        let duplicate = if let Some(vin) = market.vin[r].as_deref() {
-            let first = *by_vin.entry(vin).or_insert(line);
-            (first != line).then_some(Exclusion::DuplicateVin { of_line: first })
-        } else {
-            let key = (
-                market.model_year[r],
-                market.variant[r],
-                market.miles[r].round() as u64,
-                (market.asking_price[r] * 100.0).round() as u64,
-                market.seller[r],
-            );
-            let first = *by_attributes.entry(key).or_insert(line);
-            (first != line).then_some(Exclusion::DuplicateListing { of_line: first })
-        };
+        match market.vin[r].as_deref() {
+            Some(vin) => by_vin.push((i, vin)),
+            None => by_attributes.push((
+                i,
+                (
+                    market.model_year[r],
+                    market.variant[r],
+                    market.miles[r].round() as u64,
+                    (market.asking_price[r] * 100.0).round() as u64,
+                    market.seller[r],
+                ),
+            )),
+        }
+    }
+    for (i, first) in repeats(&by_vin) {
         if exclusions[i].is_none() {
-            exclusions[i] = duplicate;
+            exclusions[i] = Some(Exclusion::DuplicateVin {
+                of_line: market.line[rows[first]],
+            });
+        }
+    }
+    for (i, first) in repeats(&by_attributes) {
+        if exclusions[i].is_none() {
+            exclusions[i] = Some(Exclusion::DuplicateListing {
+                of_line: market.line[rows[first]],
+            });
         }
     }
 }
@@ -441,4 +481,76 @@ fn mark_outliers(
         }
     });
     None
+}
+
+#[cfg(test)]
+mod duplicate_tests {
+    use foldhash::{HashMap, HashMapExt};
+
+    use super::*;
+
+    fn mark_duplicates_by_map(
+        market: &Market,
+        rows: &[usize],
+        exclusions: &mut [Option<Exclusion>],
+    ) {
+        // Sized up front: growing a map of half a million keys rehashes it many times over.
+        let with_vin = rows.iter().filter(|&&r| market.vin[r].is_some()).count();
+        let mut by_vin: HashMap<&str, u64> = HashMap::with_capacity(with_vin);
+        let mut by_attributes: HashMap<(i32, u32, u64, u64, u32), u64> =
+            HashMap::with_capacity(rows.len() - with_vin);
+        for (i, &r) in rows.iter().enumerate() {
+            let line = market.line[r];
+            let duplicate = if let Some(vin) = market.vin[r].as_deref() {
+                let first = *by_vin.entry(vin).or_insert(line);
+                (first != line).then_some(Exclusion::DuplicateVin { of_line: first })
+            } else {
+                let key = (
+                    market.model_year[r],
+                    market.variant[r],
+                    market.miles[r].round() as u64,
+                    (market.asking_price[r] * 100.0).round() as u64,
+                    market.seller[r],
+                );
+                let first = *by_attributes.entry(key).or_insert(line);
+                (first != line).then_some(Exclusion::DuplicateListing { of_line: first })
+            };
+            if exclusions[i].is_none() {
+                exclusions[i] = duplicate;
+            }
+        }
+    }
+
+    #[test]
+    fn sorted_hashes_find_the_same_duplicates_as_a_hash_map() {
+        // The demo market plants duplicate VINs; rows without a VIN exercise the other key.
+        let bytes = crate::demo::demo_csv_bytes(40_000, 5);
+        let options = crate::import::ImportOptions {
+            latest_model_year: 2027,
+            ..crate::import::ImportOptions::default()
+        };
+        let Ok((mut market, _)) = crate::import::import_csv_bytes("demo", bytes, &options) else {
+            panic!("the demo market imports");
+        };
+        for r in (0..market.len()).step_by(7) {
+            market.vin[r] = None;
+        }
+        // Plant attribute duplicates among the rows without a VIN.
+        for r in (0..700).step_by(7) {
+            let twin = r + 7;
+            market.model_year[twin] = market.model_year[r];
+            market.variant[twin] = market.variant[r];
+            market.miles[twin] = market.miles[r];
+            market.asking_price[twin] = market.asking_price[r];
+            market.seller[twin] = market.seller[r];
+        }
+        let rows: Vec<usize> = (0..market.len()).collect();
+        let mut sorted = vec![None; rows.len()];
+        let mut mapped = vec![None; rows.len()];
+        mark_duplicates(&market, &rows, &mut sorted);
+        mark_duplicates_by_map(&market, &rows, &mut mapped);
+        assert_eq!(sorted, mapped);
+        let found = |code: &str| sorted.iter().flatten().filter(|e| e.code() == code).count();
+        assert!(found("duplicate_vin") > 0 && found("duplicate_listing") >= 99);
+    }
 }
