@@ -189,7 +189,8 @@ fn a_session_from_a_newer_version_is_refused_with_both_versions() {
 #[test]
 fn a_format_1_session_is_migrated_and_still_reproduces() {
     // Written by comptrail's first session format (commit 7a9526d), which kept only the
-    // market file's absolute path.
+    // market file's absolute path. Its optional `segment_listings` (500 KB) were cut to `None`
+    // by hand before committing; the evidence the value rests on is as written.
     let session = read_session(&data_path("sessions/format-1-trade-in.ron")).unwrap();
     assert_eq!(session.format_version, 2);
     assert_eq!(

@@ -8,11 +8,10 @@ use anyhow::{Context, Result, anyhow, bail};
 use chrono::{DateTime, Utc};
 use model::appraisal::{AppraisalRequest, appraise, find_segment, fit_market};
 use model::format::{money, signed_money};
-use model::import::{ImportOptions, import_csv_file};
-use model::market::{Market, content_hash};
+use model::market::content_hash;
 use model::session::{
-    Authorship, Capture, Difference, Outcome, Purpose, Session, read_session, reproduce, work_out,
-    write_session,
+    Authorship, Capture, Difference, MarketFile, Outcome, Purpose, Session, find_market_file,
+    read_session, reproduce, work_out, write_session,
 };
 use model::worksheet::{ClaimInputs, ProfileFile, TradeInInputs, shipped_profiles};
 use serde::Serialize;
@@ -183,49 +182,42 @@ fn market_status(
     session_path: &Path,
     given: Option<&PathBuf>,
 ) -> MarketFileStatus {
-    let candidates = match given {
-        Some(p) => vec![p.clone()],
-        None => session.market.location.candidates(session_path),
-    };
-    let Some(found) = candidates.iter().find(|p| p.is_file()) else {
-        return MarketFileStatus::Missing {
-            path: candidates.first().map(|p| p.display().to_string()),
-        };
-    };
-    let path = found.display().to_string();
-    match std::fs::read(found) {
-        Ok(bytes) => {
-            let hash = content_hash(&bytes);
-            if hash == session.market.source.content_hash {
-                MarketFileStatus::Unchanged { path }
-            } else {
-                MarketFileStatus::Changed {
-                    path,
-                    content_hash: hash,
-                }
-            }
-        }
-        Err(_) => MarketFileStatus::Missing { path: Some(path) },
+    match find_market_file(session, session_path, given.map(PathBuf::as_path)) {
+        MarketFile::Unchanged(p) => MarketFileStatus::Unchanged {
+            path: p.display().to_string(),
+        },
+        MarketFile::Changed { path, content_hash } => MarketFileStatus::Changed {
+            path: path.display().to_string(),
+            content_hash,
+        },
+        MarketFile::Missing { looked_at } => MarketFileStatus::Missing {
+            path: looked_at.map(|p| p.display().to_string()),
+        },
     }
 }
 
-/// Appraises the saved request again on the market file as it is now.
-fn rerun(session: &Session, path: &str) -> Result<Outcome> {
-    let (market, _report): (Market, _) =
-        import_csv_file(Path::new(path), &ImportOptions::default())
-            .with_context(|| format!("re-running on {path}"))?;
+/// Appraises the saved request again on the market file as it is now, read with the same
+/// import options (separator, odometer unit) the command line was given.
+fn rerun(args: &AppraiseArgs, session: &Session, path: &str) -> Result<Outcome> {
+    let market_args = crate::args::MarketArgs {
+        file: Some(PathBuf::from(path)),
+        ..args.market.clone()
+    };
+    let loaded =
+        crate::load::load_market(&market_args).with_context(|| format!("re-running on {path}"))?;
+    let market = &loaded.market;
     let segment = find_segment(
-        &market,
+        market,
         &session.request.subject.make,
         &session.request.subject.model,
     )?;
     let fit = fit_market(
-        &market,
+        market,
         segment,
         &session.fit.settings,
         &session.fit.overrides,
     )?;
-    let appraisal = appraise(&market, &fit, &session.request)?;
+    let appraisal = appraise(market, &fit, &session.request)?;
     Ok(work_out(&session.purpose, &appraisal, &session.request)?)
 }
 
@@ -246,7 +238,7 @@ pub fn check(args: &AppraiseArgs, path: &Path) -> Result<bool> {
     let rerun_numbers = if args.rerun {
         match &status {
             MarketFileStatus::Unchanged { path } | MarketFileStatus::Changed { path, .. } => {
-                Some(Numbers::of(&rerun(&session, path)?))
+                Some(Numbers::of(&rerun(args, &session, path)?))
             }
             MarketFileStatus::Missing { path } => bail!(
                 "--rerun: the market file {} is not there; give its new place as FILE",

@@ -8,8 +8,8 @@ use eframe::egui::{self, RichText, Ui};
 use model::format::money;
 use model::market::content_hash;
 use model::session::{
-    Authorship, Capture, Reproduction, Session, read_session, reproduce, write_atomically,
-    write_session,
+    Authorship, Capture, MarketFile, Reproduction, Session, find_market_file, read_session,
+    reproduce, write_atomically, write_session,
 };
 use serde::{Deserialize, Serialize};
 
@@ -127,16 +127,11 @@ pub fn market_state(session: &Session, path: &Path) -> MarketState {
             MarketState::Missing
         };
     }
-    for candidate in session.market.location.candidates(path) {
-        if let Ok(bytes) = std::fs::read(&candidate) {
-            return if content_hash(&bytes) == source.content_hash {
-                MarketState::Unchanged(MarketSource::File(candidate))
-            } else {
-                MarketState::Changed(candidate)
-            };
-        }
+    match find_market_file(session, path, None) {
+        MarketFile::Unchanged(p) => MarketState::Unchanged(MarketSource::File(p)),
+        MarketFile::Changed { path, .. } => MarketState::Changed(path),
+        MarketFile::Missing { .. } => MarketState::Missing,
     }
-    MarketState::Missing
 }
 
 impl Workbench {

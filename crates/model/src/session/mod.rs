@@ -8,6 +8,7 @@
 
 mod file;
 mod legacy;
+mod market_file;
 mod outcome;
 mod replay;
 
@@ -15,6 +16,7 @@ pub use file::{
     SESSION_FORMAT_VERSION, SessionError, format_version_of, parse_session, read_session,
     session_to_ron, write_atomically, write_session,
 };
+pub use market_file::{MarketFile, find_market_file};
 pub use outcome::{
     Outcome, Purpose, SENSITIVITY_DAYS, WorksheetOutcome, itemized_deductions, trade_in_inputs,
     work_out,

@@ -6,7 +6,7 @@ use model::format::money;
 use model::session::Purpose;
 use model::worksheet::{HoldingCost, Line, TradeInInputs};
 
-use super::super::PaneContext;
+use super::super::{PaneContext, cached, fit_id, inputs_key};
 use super::{input_row, money_input};
 use crate::command::Command;
 
@@ -171,13 +171,19 @@ fn recon_ui(ui: &mut Ui, recon: &mut Vec<Line>) -> bool {
 /// Days' supply of the subject's segment, when the market file has sale dates.
 pub fn supply_ui(ui: &mut Ui, cx: &PaneContext<'_>) {
     ui.separator();
-    match model::supply::segment_supply(
-        cx.market,
-        &cx.fit.cleaning.rows,
-        cx.fit.as_of,
-        model::session::SUPPLY_WINDOW_DAYS,
-        cx.document.fit.cleaning.stale_after_days,
-    ) {
+    // A scan of every listing of the model: once per fit, not every frame.
+    let stale = cx.document.fit.cleaning.stale_after_days;
+    let key = inputs_key(&[&fit_id(cx), &stale]);
+    let supply = cached(ui, "days_supply", key, || {
+        model::supply::segment_supply(
+            cx.market,
+            &cx.fit.cleaning.rows,
+            cx.fit.as_of,
+            model::session::SUPPLY_WINDOW_DAYS,
+            stale,
+        )
+    });
+    match *supply {
         None => {
             ui.label("Days' supply: the market file has no sale dates.");
         }

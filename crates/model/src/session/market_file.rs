@@ -1,0 +1,56 @@
+//! Finding a session's market file again and telling whether it is still the same file.
+
+use std::path::{Path, PathBuf};
+
+use super::Session;
+use crate::market::content_hash;
+
+/// A session's market file as it is now.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum MarketFile {
+    /// The same bytes as when the session was saved, here.
+    Unchanged(PathBuf),
+    /// Other bytes here, with their hash.
+    Changed {
+        /// Where it was found.
+        path: PathBuf,
+        /// XXH3 hash of its bytes now.
+        content_hash: String,
+    },
+    /// Not found; where it was looked for first, if anywhere.
+    Missing {
+        /// The first place looked.
+        looked_at: Option<PathBuf>,
+    },
+}
+
+/// Looks for the market file of `session` (saved at `session_path`): at `given` when the user
+/// names it, else beside the session as saved, else at its absolute path; and compares its
+/// bytes with the saved hash.
+#[must_use]
+pub fn find_market_file(
+    session: &Session,
+    session_path: &Path,
+    given: Option<&Path>,
+) -> MarketFile {
+    let candidates = match given {
+        Some(p) => vec![p.to_owned()],
+        None => session.market.location.candidates(session_path),
+    };
+    for candidate in &candidates {
+        if let Ok(bytes) = std::fs::read(candidate) {
+            let hash = content_hash(&bytes);
+            return if hash == session.market.source.content_hash {
+                MarketFile::Unchanged(candidate.clone())
+            } else {
+                MarketFile::Changed {
+                    path: candidate.clone(),
+                    content_hash: hash,
+                }
+            };
+        }
+    }
+    MarketFile::Missing {
+        looked_at: candidates.into_iter().next(),
+    }
+}
