@@ -30,5 +30,6 @@ pub mod session;
 pub mod stats;
 pub mod subject;
 pub mod supply;
+pub mod texts;
 pub mod vocabulary;
 pub mod worksheet;

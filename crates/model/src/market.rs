@@ -7,6 +7,7 @@ use chrono::NaiveDate;
 use serde::{Deserialize, Serialize};
 
 use crate::condition::{Condition, TitleStatus};
+use crate::texts::TextColumn;
 use crate::vocabulary::{NO_NAME, NameId, Vocabulary};
 
 /// Where a market came from, kept with every appraisal so the evidence can be traced.
@@ -59,7 +60,7 @@ pub struct Market {
     /// Sale price, when the feed records sales.
     pub sale_price: Vec<Option<f64>>,
     /// Vehicle identification number.
-    pub vin: Vec<Option<Box<str>>>,
+    pub vin: TextColumn,
     /// Seller or source; [`NO_NAME`] when not stated.
     pub seller: Vec<NameId>,
     /// Postal code or place name; [`NO_NAME`] when not stated.
@@ -258,7 +259,7 @@ impl Market {
             listed_on: self.listed_on[row],
             sold_on: self.sold_on[row],
             sale_price: self.sale_price[row],
-            vin: self.vin[row].as_deref().map(str::to_owned),
+            vin: self.vin.get(row).map(str::to_owned),
             seller: self.optional_name(self.seller[row]),
             location: self.optional_name(self.location[row]),
             coordinates: self.coordinates[row],
@@ -282,7 +283,7 @@ impl Market {
         self.listed_on.reserve(additional);
         self.sold_on.reserve(additional);
         self.sale_price.reserve(additional);
-        self.vin.reserve(additional);
+        self.vin.reserve(additional, 17);
         self.seller.reserve(additional);
         self.location.reserve(additional);
         self.coordinates.reserve(additional);
@@ -314,7 +315,7 @@ impl Market {
         self.listed_on.extend(other.listed_on);
         self.sold_on.extend(other.sold_on);
         self.sale_price.extend(other.sale_price);
-        self.vin.extend(other.vin);
+        self.vin.append(&other.vin);
         self.seller.extend(other.seller.into_iter().map(map));
         self.location.extend(other.location.into_iter().map(map));
         self.coordinates.extend(other.coordinates);
@@ -342,7 +343,7 @@ impl Market {
         self.listed_on.push(listing.listed_on);
         self.sold_on.push(listing.sold_on);
         self.sale_price.push(listing.sale_price);
-        self.vin.push(listing.vin.as_deref().map(Into::into));
+        self.vin.push(listing.vin.as_deref());
         let seller = intern(&mut self.names, &listing.seller);
         self.seller.push(seller);
         let location = intern(&mut self.names, &listing.location);

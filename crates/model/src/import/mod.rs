@@ -1,25 +1,25 @@
 //! Importing a market CSV: map its columns, read every row, report every row that could not be
 //! used (line and reason) and every optional value that was dropped. Nothing is dropped silently.
 //!
-//! polars does the tokenising (multi-threaded, quote-aware) with every column read as text;
-//! values are then parsed here so that each failure can name its line, column and value.
+//! polars does the tokenising (quote-aware) with every column read as text, in batches of
+//! records spread over the cores; values are then parsed here so that each failure can name its
+//! line, column and value.
 
+mod batches;
 mod headers;
 mod report;
+mod rows;
 mod values;
 
 use std::collections::HashMap;
 use std::fmt::Write as _;
-use std::io::Cursor;
 use std::path::Path;
 
 use chrono::{Datelike, NaiveDate};
-use polars::prelude::{CsvReadOptions, DataFrame, SerReader, StringChunked};
 
-use crate::condition::{Condition, TitleStatus};
 use crate::market::{Market, MarketSource, content_hash};
-use crate::vocabulary::{NO_NAME, NameId, Vocabulary};
 
+use batches::{Plan, Tokenizer, read_batches};
 pub use headers::{Field, field_for, normalise_header};
 pub use report::{DroppedValue, ImportReport, RejectReason, RejectedRow};
 pub use values::{parse_date, parse_number, parse_year};
@@ -179,11 +179,47 @@ pub fn import_csv_file(
         || path.display().to_string(),
         |n| n.to_string_lossy().into_owned(),
     );
-    let bytes = std::fs::read(path).map_err(|source| ImportError::Io {
+    let bytes = read_whole_file(path).map_err(|source| ImportError::Io {
         file: file.clone(),
         source,
     })?;
     import_csv_bytes(&file, bytes, options)
+}
+
+/// Reads a file into memory. A large file is read in one piece per core, each into its own part
+/// of the buffer: copying 130 MB out of the page cache is otherwise a tenth of a second on one
+/// core. A file that changes size while it is read is read again in one piece.
+fn read_whole_file(path: &Path) -> std::io::Result<Vec<u8>> {
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::FileExt;
+        const PARALLEL_FROM: u64 = 16 << 20;
+        let file = std::fs::File::open(path)?;
+        let len = file.metadata()?.len();
+        let cores = std::thread::available_parallelism().map_or(1, std::num::NonZero::get);
+        if len >= PARALLEL_FROM && cores > 1 {
+            let mut bytes = vec![0u8; usize::try_from(len).map_err(std::io::Error::other)?];
+            let per = bytes.len().div_ceil(cores);
+            let read = std::thread::scope(|scope| {
+                let handles: Vec<_> = bytes
+                    .chunks_mut(per)
+                    .enumerate()
+                    .map(|(i, part)| {
+                        let file = &file;
+                        scope.spawn(move || file.read_exact_at(part, (i * per) as u64))
+                    })
+                    .collect();
+                handles
+                    .into_iter()
+                    .all(|h| h.join().is_ok_and(|r| r.is_ok()))
+            });
+            let mut probe = [0u8; 1];
+            if read && file.read_at(&mut probe, len)? == 0 {
+                return Ok(bytes);
+            }
+        }
+    }
+    std::fs::read(path)
 }
 
 /// Imports CSV bytes; `file` names the source in messages and in the market's provenance.
@@ -191,6 +227,17 @@ pub fn import_csv_bytes(
     file: &str,
     bytes: Vec<u8>,
     options: &ImportOptions,
+) -> Result<(Market, ImportReport), ImportError> {
+    import_planned(file, bytes, *options, None)
+}
+
+/// [`import_csv_bytes`] with the split of the records chosen by the caller (tests check that
+/// every split gives the same market and report); `None` chooses for this machine.
+fn import_planned(
+    file: &str,
+    bytes: Vec<u8>,
+    options: ImportOptions,
+    plan: Option<Plan>,
 ) -> Result<(Market, ImportReport), ImportError> {
     let file = file.to_owned();
     if bytes.iter().all(u8::is_ascii_whitespace) {
@@ -204,20 +251,23 @@ pub fn import_csv_bytes(
     let delimiter = options
         .delimiter
         .unwrap_or_else(|| sniff_delimiter(header_line));
-    let mapping = map_header(&file, header_line, delimiter, *options)?;
+    let mapping = map_header(&file, header_line, delimiter, options)?;
     let hash = content_hash(&bytes);
-    let record_lines = record_start_lines(&bytes);
-
-    let df = match read_frame(&bytes, delimiter) {
-        Ok(df) => df,
+    let starts = record_starts(&bytes);
+    let tokenizer = Tokenizer {
+        delimiter,
+        header_fields: split_header(header_line, delimiter).len(),
+    };
+    let plan = plan.unwrap_or_else(|| Plan::for_records(starts.offsets.len()));
+    let read = match read_batches(&bytes, &starts, &tokenizer, &mapping, options, plan) {
+        Ok(read) => read,
         Err(message) => return Err(malformed(&file, &bytes, delimiter, &message)),
     };
-    // The frame holds its own copy of the text; the file's bytes are not needed any more.
     drop(bytes);
     let mut report = ImportReport {
         file_name: file.clone(),
         delimiter: delimiter_name(delimiter),
-        rows_read: df.height(),
+        rows_read: read.rows_read,
         odometer_unit: match mapping.odometer {
             OdometerUnit::Miles => "miles".into(),
             OdometerUnit::Kilometres => "kilometres".into(),
@@ -228,16 +278,14 @@ pub fn import_csv_bytes(
             .map(|(f, (_, h))| (h.clone(), f.canonical().to_owned()))
             .collect(),
         ignored_columns: mapping.ignored.clone(),
+        condition_inferred: read.issues.condition_inferred,
+        dropped_values: read.issues.dropped,
         ..ImportReport::default()
     };
-    let line_of = |row: usize| record_lines.get(row).copied().unwrap_or(row as u64 + 2);
-    let mut market =
-        parse_rows(&df, &mapping, *options, &mut report, &line_of).map_err(|message| {
-            ImportError::Malformed {
-                file: file.clone(),
-                message,
-            }
-        })?;
+    for (line, reason) in read.issues.rejected {
+        report.reject(line, reason);
+    }
+    let mut market = read.market;
     report.rows_used = market.len();
     if market.is_empty() {
         return Err(ImportError::NoUsableRows {
@@ -435,16 +483,6 @@ fn try_map_header(
     })
 }
 
-fn read_frame(bytes: &[u8], delimiter: u8) -> Result<DataFrame, String> {
-    CsvReadOptions::default()
-        .with_has_header(true)
-        .with_infer_schema_length(Some(0))
-        .map_parse_options(|o| o.with_separator(delimiter).with_quote_char(Some(b'"')))
-        .into_reader_with_file_handle(Cursor::new(bytes))
-        .finish()
-        .map_err(|e| e.to_string())
-}
-
 /// Turns a tokenizer failure into an error that names the line where it can: a record with more
 /// fields than the header is found by scanning; otherwise the tokenizer's first line is kept
 /// (its hints name options of the library, not of comptrail).
@@ -499,452 +537,193 @@ fn first_ragged_record(bytes: &[u8], delimiter: u8) -> Option<(u64, usize, usize
     None
 }
 
-/// The file line on which each data record starts, honouring quoted fields that span lines
-/// and skipping blank lines as the tokenizer does. Jumps between newlines and quotes with
-/// `memchr`, so a 130 MB file takes tens of milliseconds.
-fn record_start_lines(bytes: &[u8]) -> Vec<u64> {
-    let mut starts = Vec::with_capacity(bytes.len() / 64);
+/// Where each data record starts: its file line and its byte offset. Honours quoted fields that
+/// span lines as the tokenizer does. Jumps between newlines and quotes with `memchr`, so a
+/// 130 MB file takes tens of milliseconds.
+///
+/// The tokenizer returns a row of empty fields for a blank line (nothing but spaces, tabs or a
+/// carriage return); such lines are kept here, with [`BLANK_LINE`] for their line, so that rows
+/// and records stay aligned, and are then passed over without a report.
+#[derive(Debug, Default, PartialEq)]
+struct RecordStarts {
+    lines: Vec<u64>,
+    offsets: Vec<usize>,
+}
+
+/// The line recorded for a blank line (file lines count from 1).
+const BLANK_LINE: u64 = 0;
+
+fn record_starts(bytes: &[u8]) -> RecordStarts {
+    let mut starts = RecordStarts {
+        lines: Vec::with_capacity(bytes.len() / 64),
+        offsets: Vec::with_capacity(bytes.len() / 64),
+    };
     let mut line: u64 = 1;
     let mut quoted = false;
     let mut header_seen = false;
     let (mut record_byte, mut record_line) = (0usize, 1u64);
-    let is_blank = |from: usize, to: usize| bytes[from..to].iter().all(|&b| b == b'\r');
+    let is_blank = |from: usize, to: usize| {
+        bytes[from..to]
+            .iter()
+            .all(|&b| matches!(b, b' ' | b'\t' | b'\r'))
+    };
     for pos in memchr::memchr2_iter(b'\n', b'"', bytes) {
         if bytes[pos] == b'"' {
             quoted = !quoted;
             continue;
         }
         if !quoted {
-            if !is_blank(record_byte, pos) {
-                if header_seen {
-                    starts.push(record_line);
-                }
-                header_seen = true;
+            let blank = is_blank(record_byte, pos);
+            if header_seen {
+                starts
+                    .lines
+                    .push(if blank { BLANK_LINE } else { record_line });
+                starts.offsets.push(record_byte);
             }
+            header_seen |= !blank;
             record_byte = pos + 1;
             record_line = line + 1;
         }
         line += 1;
     }
-    if header_seen && !bytes[record_byte..].iter().all(u8::is_ascii_whitespace) {
-        starts.push(record_line);
+    if header_seen && record_byte < bytes.len() {
+        let blank = is_blank(record_byte, bytes.len());
+        starts
+            .lines
+            .push(if blank { BLANK_LINE } else { record_line });
+        starts.offsets.push(record_byte);
     }
     starts
 }
 
-fn text_column<'a>(
-    df: &'a DataFrame,
-    mapping: &HeaderMapping,
-    field: Field,
-) -> Result<Option<&'a StringChunked>, String> {
-    let Some(index) = mapping.index(field) else {
-        return Ok(None);
-    };
-    let column = df.columns().get(index).ok_or_else(|| {
-        format!(
-            "column {} of the header is missing from the data",
-            index + 1
-        )
-    })?;
-    column.str().map(Some).map_err(|e| e.to_string())
-}
+#[cfg(test)]
+mod tests {
+    use super::*;
 
-/// The columns one parsing thread reads: zero-copy slices of the frame's text columns.
-struct ChunkColumns {
-    year: StringChunked,
-    make: StringChunked,
-    model: StringChunked,
-    price: StringChunked,
-    odometer: StringChunked,
-    optional: [Option<StringChunked>; 14],
-}
-
-/// What one thread found besides the rows it kept.
-#[derive(Default)]
-struct ChunkIssues {
-    rejected: Vec<(u64, RejectReason)>,
-    dropped: Vec<DroppedValue>,
-    condition_inferred: usize,
-}
-
-/// Optional fields in the order of [`OptionalRow`]: every field after the six that identify
-/// and price a vehicle (the required ones and the kilometre alternative).
-const OPTIONAL_FIELDS: &[Field] = Field::ALL.split_at(6).1;
-
-/// Reads every row; rows with an unusable required value are rejected with their line. The rows
-/// are split over the machine's cores and the parts joined in file order.
-fn parse_rows(
-    df: &DataFrame,
-    mapping: &HeaderMapping,
-    options: ImportOptions,
-    report: &mut ImportReport,
-    line_of: &(dyn Fn(usize) -> u64 + Sync),
-) -> Result<Market, String> {
-    let col = |f| text_column(df, mapping, f);
-    let odometer_field = match mapping.odometer {
-        OdometerUnit::Miles => Field::Miles,
-        OdometerUnit::Kilometres => Field::Kilometres,
-    };
-    let required = (
-        col(Field::ModelYear)?,
-        col(Field::Make)?,
-        col(Field::Model)?,
-        col(Field::AskingPrice)?,
-        col(odometer_field)?,
-    );
-    let (Some(year), Some(make), Some(model), Some(price), Some(odometer)) = required else {
-        return Err("a required column vanished after mapping".into());
-    };
-    let mut optional: [Option<&StringChunked>; 14] = [None; 14];
-    for (slot, &field) in optional.iter_mut().zip(OPTIONAL_FIELDS) {
-        *slot = col(field)?;
+    /// A demo market spoiled the ways real feeds are: unreadable and missing required values,
+    /// unknown conditions, bad dates and numbers, padded names, quoted fields with the
+    /// separator and with line breaks, blank lines, short rows and Windows line ends.
+    fn spoiled_market(rows: usize) -> Vec<u8> {
+        let text = String::from_utf8(crate::demo::demo_csv_bytes(rows, 11)).unwrap_or_default();
+        let mut lines = text.lines();
+        let mut out = format!("{}\r\n", lines.next().unwrap_or_default());
+        let mut state: u64 = 0x2545_f491_4f6c_dd1d;
+        for line in lines {
+            state = state
+                .wrapping_mul(6_364_136_223_846_793_005)
+                .wrapping_add(1);
+            let pick = (state >> 33) % 200;
+            let mut fields: Vec<String> = line.split(',').map(str::to_owned).collect();
+            match pick {
+                0 => fields[0] = "20x4".into(),
+                1 => fields[1].clear(),
+                2 => fields[4] = format!("\"${},000\"", &fields[4][..2]),
+                3 => fields[4] = "call".into(),
+                4 => fields[5] = "-5".into(),
+                5 => fields[6] = "wrecked".into(),
+                6 => fields[7] = "13/45/2026".into(),
+                7 => fields[9] = "n/a".into(),
+                8 => fields[13] = "far".into(),
+                9 => fields[0] = "2031".into(),
+                10 => fields[2] = format!("  {} ", fields[2]),
+                11 => fields[11] = "\"Seller, with a comma\"".into(),
+                12 => fields[15] = "\"two\nlines\"".into(),
+                13 => fields[6].clear(),
+                14 => out.push_str("\r\n"),
+                17 => out.push_str(" \n\n"),
+                15 => fields.truncate(8),
+                16 => fields[5] = format!("{} mi", fields[5]),
+                _ => {}
+            }
+            out.push_str(&fields.join(","));
+            out.push_str("\r\n");
+        }
+        out.into_bytes()
     }
-    let n = df.height();
-    let threads = std::thread::available_parallelism().map_or(1, std::num::NonZero::get);
-    let threads = if n < 50_000 { 1 } else { threads };
-    let per = n.div_ceil(threads).max(1);
-    let slice = |ca: &StringChunked, start: usize, len: usize| ca.slice(start as i64, len);
-    let chunks: Vec<(usize, ChunkColumns)> = (0..n)
-        .step_by(per)
-        .map(|start| {
-            let len = per.min(n - start);
-            let columns = ChunkColumns {
-                year: slice(year, start, len),
-                make: slice(make, start, len),
-                model: slice(model, start, len),
-                price: slice(price, start, len),
-                odometer: slice(odometer, start, len),
-                optional: optional.map(|c| c.map(|c| slice(c, start, len))),
+
+    #[test]
+    fn every_split_of_the_records_gives_the_same_market_and_report() {
+        let bytes = spoiled_market(9_000);
+        let options = ImportOptions {
+            latest_model_year: 2027,
+            ..ImportOptions::default()
+        };
+        let import = |cores, batch_records| {
+            let plan = Plan {
+                cores,
+                batch_records,
             };
-            (start, columns)
-        })
-        .collect();
-    let parts: Vec<(Market, ChunkIssues)> = if chunks.len() == 1 {
-        chunks
-            .iter()
-            .map(|(start, c)| parse_chunk(c, *start, mapping, odometer_field, options, line_of))
-            .collect()
-    } else {
-        std::thread::scope(|scope| {
-            let handles: Vec<_> = chunks
-                .iter()
-                .map(|(start, c)| {
-                    scope.spawn(move || {
-                        parse_chunk(c, *start, mapping, odometer_field, options, line_of)
-                    })
-                })
-                .collect();
-            handles
-                .into_iter()
-                .map(|h| h.join().map_err(|_| "a parsing thread failed".to_owned()))
-                .collect::<Result<_, _>>()
-        })?
-    };
-    // The first part becomes the market (moved, not copied); the others are appended once
-    // room for all of them is made.
-    let total: usize = parts.iter().map(|(p, _)| p.len()).sum();
-    let mut market = Market::default();
-    for (part, issues) in parts {
-        if market.is_empty() && market.names.is_empty() {
-            market = part;
-            market.reserve(total - market.len());
-        } else {
-            market.append(part);
-        }
-        for (line, reason) in issues.rejected {
-            report.reject(line, reason);
-        }
-        report.dropped_values.extend(issues.dropped);
-        report.condition_inferred += issues.condition_inferred;
-    }
-    Ok(market)
-}
-
-fn parse_chunk(
-    c: &ChunkColumns,
-    first_row: usize,
-    mapping: &HeaderMapping,
-    odometer_field: Field,
-    options: ImportOptions,
-    line_of: &(dyn Fn(usize) -> u64 + Sync),
-) -> (Market, ChunkIssues) {
-    let km = mapping.odometer == OdometerUnit::Kilometres;
-    let mut market = Market::default();
-    market.reserve(c.year.len());
-    let mut names = Vocabulary::default();
-    let mut cache = InternCache::default();
-    let mut issues = ChunkIssues::default();
-    let mut years = c.year.iter();
-    let mut makes = c.make.iter();
-    let mut models = c.model.iter();
-    let mut prices = c.price.iter();
-    let mut odometers = c.odometer.iter();
-    let mut rest = OptionalIterators::new(&c.optional);
-    for i in 0..c.year.len() {
-        let line = line_of(first_row + i);
-        let values = (
-            years.next().flatten(),
-            makes.next().flatten(),
-            models.next().flatten(),
-            prices.next().flatten(),
-            odometers.next().flatten(),
-        );
-        let extra = rest.next_row();
-        let (model_year, make_text, model_text, asking_price, miles) =
-            match read_required(values, mapping, odometer_field, km, options) {
-                Ok(v) => v,
-                Err(reason) => {
-                    issues.rejected.push((line, reason));
-                    continue;
-                }
-            };
-        market.line.push(line);
-        market.model_year.push(model_year);
-        market.make.push(cache.make.get(&mut names, make_text));
-        market.model.push(cache.model.get(&mut names, model_text));
-        market.asking_price.push(asking_price);
-        market.miles.push(miles);
-        push_optional(
-            &mut market,
-            &mut names,
-            &mut cache,
-            extra,
-            mapping,
-            line,
-            miles,
-            &mut issues,
-        );
-    }
-    market.names = names;
-    (market, issues)
-}
-
-type RequiredValues<'a> = (i32, &'a str, &'a str, f64, f64);
-
-/// The five required texts of a row: year, make, model, price, odometer.
-type RequiredTexts<'a> = (
-    Option<&'a str>,
-    Option<&'a str>,
-    Option<&'a str>,
-    Option<&'a str>,
-    Option<&'a str>,
-);
-
-fn read_required<'a>(
-    (year, make, model, price, odometer): RequiredTexts<'a>,
-    mapping: &HeaderMapping,
-    odometer_field: Field,
-    km: bool,
-    options: ImportOptions,
-) -> Result<RequiredValues<'a>, RejectReason> {
-    let need = |v: Option<&'a str>, f: Field| {
-        v.map(str::trim)
-            .filter(|s| !s.is_empty())
-            .ok_or_else(|| RejectReason::MissingValue {
-                column: mapping.header(f).to_owned(),
-            })
-    };
-    let not_number = |f: Field, v: &str| RejectReason::NotANumber {
-        column: mapping.header(f).to_owned(),
-        value: v.to_owned(),
-    };
-    let year_text = need(year, Field::ModelYear)?;
-    let make = need(make, Field::Make)?;
-    let model = need(model, Field::Model)?;
-    let price_text = need(price, Field::AskingPrice)?;
-    let odo_text = need(odometer, odometer_field)?;
-    let model_year =
-        parse_year(year_text).ok_or_else(|| not_number(Field::ModelYear, year_text))?;
-    if !(1900..=i64::from(options.latest_model_year)).contains(&model_year) {
-        return Err(RejectReason::ModelYearOutOfRange {
-            value: model_year,
-            latest_allowed: options.latest_model_year,
-        });
-    }
-    let asking_price =
-        parse_number(price_text).ok_or_else(|| not_number(Field::AskingPrice, price_text))?;
-    if !(1.0..=MAX_PRICE).contains(&asking_price) {
-        return Err(RejectReason::PriceOutOfRange {
-            value: asking_price,
-        });
-    }
-    let reading = parse_number(odo_text).ok_or_else(|| not_number(odometer_field, odo_text))?;
-    let miles = if km { reading / KM_PER_MILE } else { reading };
-    if !(0.0..=MAX_MILES).contains(&miles) {
-        return Err(RejectReason::MileageOutOfRange { value: miles });
-    }
-    Ok((model_year as i32, make, model, asking_price, miles))
-}
-
-/// Remembers the last string interned per column: listing feeds are usually sorted, so most
-/// lookups hit.
-#[derive(Default)]
-struct InternCache {
-    make: LastName,
-    model: LastName,
-    variant: LastName,
-    seller: LastName,
-    location: LastName,
-    options: LastName,
-}
-
-#[derive(Default)]
-struct LastName {
-    text: String,
-    id: NameId,
-}
-
-impl LastName {
-    fn get(&mut self, names: &mut Vocabulary, text: &str) -> NameId {
-        if self.text != text || self.text.is_empty() {
-            self.id = names.intern(text);
-            text.clone_into(&mut self.text);
-        }
-        self.id
-    }
-
-    fn get_optional(&mut self, names: &mut Vocabulary, text: Option<&str>) -> NameId {
-        match text.map(str::trim).filter(|t| !t.is_empty()) {
-            Some(t) => self.get(names, t),
-            None => NO_NAME,
-        }
-    }
-}
-
-type TextIter<'a> = Box<dyn Iterator<Item = Option<&'a str>> + 'a>;
-
-/// One iterator per optional column, in [`OptionalRow`] order; absent columns yield `None`.
-struct OptionalIterators<'a> {
-    iters: Vec<Option<TextIter<'a>>>,
-}
-
-/// The optional values of one row, in the order of [`OPTIONAL_FIELDS`].
-type OptionalRow<'a> = [Option<&'a str>; 14];
-
-impl<'a> OptionalIterators<'a> {
-    fn new(columns: &'a [Option<StringChunked>; 14]) -> Self {
-        Self {
-            iters: columns
-                .iter()
-                .map(|c| c.as_ref().map(|c| Box::new(c.iter()) as TextIter<'a>))
-                .collect(),
-        }
-    }
-
-    fn next_row(&mut self) -> OptionalRow<'a> {
-        let mut row: OptionalRow<'a> = [None; 14];
-        for (slot, it) in row.iter_mut().zip(self.iters.iter_mut()) {
-            if let Some(it) = it {
-                *slot = it.next().flatten().map(str::trim).filter(|s| !s.is_empty());
+            import_planned("spoiled.csv", bytes.clone(), options, Some(plan))
+                .unwrap_or_else(|e| panic!("{e}"))
+        };
+        let (whole, whole_report) = import(1, usize::MAX);
+        assert!(whole_report.rejected.len() > 100, "the file is spoiled");
+        assert!(whole_report.dropped_values.len() > 100);
+        assert!(whole_report.rows_used > 8_000);
+        let lines = whole_report.rejected.iter().map(|r| r.line);
+        assert!(lines.clone().zip(lines.skip(1)).all(|(a, b)| a < b));
+        // Every reported line holds the value reported.
+        let text = String::from_utf8_lossy(&bytes);
+        let file_lines: Vec<&str> = text.split('\n').collect();
+        let on_line = |line: u64, value: &str| file_lines[line as usize - 1].contains(value);
+        for r in &whole_report.rejected {
+            if let RejectReason::NotANumber { value, .. } = &r.reason {
+                assert!(on_line(r.line, value), "line {}: {value}", r.line);
             }
         }
-        row
-    }
-}
-
-#[allow(clippy::too_many_arguments)]
-fn push_optional(
-    market: &mut Market,
-    names: &mut Vocabulary,
-    cache: &mut InternCache,
-    [
-        variant,
-        condition,
-        listed_on,
-        sold_on,
-        sale_price,
-        vin,
-        seller,
-        location,
-        latitude,
-        longitude,
-        distance_mi,
-        distance_km,
-        title,
-        options,
-    ]: OptionalRow<'_>,
-    mapping: &HeaderMapping,
-    line: u64,
-    miles: f64,
-    issues: &mut ChunkIssues,
-) {
-    let mut inferred = false;
-    let mut drop = |field: Field, value: &str, note: &str| {
-        issues.dropped.push(DroppedValue {
-            line,
-            column: mapping.header(field).to_owned(),
-            value: value.to_owned(),
-            note: note.to_owned(),
-        });
-    };
-    market
-        .variant
-        .push(cache.variant.get_optional(names, variant));
-    let parsed_condition = condition.and_then(|c| {
-        let parsed = Condition::parse(c);
-        if parsed.is_none() {
-            drop(
-                Field::Condition,
-                c,
-                "unknown condition class; inferred from mileage",
+        for d in &whole_report.dropped_values {
+            assert!(on_line(d.line, &d.value), "line {}: {}", d.line, d.value);
+        }
+        for (row, &line) in whole.line.iter().enumerate() {
+            let listing = whole.listing(row);
+            let start = format!("{},{},", listing.model_year, listing.make);
+            assert!(
+                file_lines[line as usize - 1].starts_with(&start),
+                "line {line}: {start}"
             );
         }
-        parsed
-    });
-    market.condition.push(parsed_condition.unwrap_or_else(|| {
-        inferred = true;
-        if miles < 1_000.0 {
-            Condition::New
-        } else {
-            Condition::Used
-        }
-    }));
-    let mut date = |field: Field, text: Option<&str>| {
-        text.and_then(|t| {
-            let d = parse_date(t);
-            if d.is_none() {
-                drop(field, t, "not a date (use YYYY-MM-DD); left empty");
+        for (cores, batch) in [(2, 1_000), (3, 777), (1, 50), (4, usize::MAX)] {
+            let (market, report) = import(cores, batch);
+            assert_eq!(report, whole_report, "{cores} cores, batches of {batch}");
+            assert_eq!(market.len(), whole.len());
+            assert_eq!(market.source, whole.source);
+            for row in 0..whole.len() {
+                assert_eq!(market.listing(row), whole.listing(row), "row {row}");
             }
-            d
-        })
-    };
-    market.listed_on.push(date(Field::ListedOn, listed_on));
-    market.sold_on.push(date(Field::SoldOn, sold_on));
-    let mut number = |field: Field, text: Option<&str>| {
-        text.and_then(|t| {
-            let v = parse_number(t);
-            if v.is_none() {
-                drop(field, t, "not a number; left empty");
-            }
-            v
-        })
-    };
-    market
-        .sale_price
-        .push(number(Field::SalePrice, sale_price).filter(|p| *p > 0.0));
-    let lat = number(Field::Latitude, latitude);
-    let lon = number(Field::Longitude, longitude);
-    let distance = number(Field::DistanceMiles, distance_mi)
-        .or_else(|| number(Field::DistanceKilometres, distance_km).map(|km| km / KM_PER_MILE));
-    market
-        .vin
-        .push(vin.map(|v| v.to_ascii_uppercase().into_boxed_str()));
-    market.seller.push(cache.seller.get_optional(names, seller));
-    market
-        .location
-        .push(cache.location.get_optional(names, location));
-    market.coordinates.push(match (lat, lon) {
-        (Some(la), Some(lo)) if (-90.0..=90.0).contains(&la) && (-180.0..=180.0).contains(&lo) => {
-            Some((la as f32, lo as f32))
         }
-        _ => None,
-    });
-    market
-        .distance_miles
-        .push(distance.filter(|d| *d >= 0.0).map(|d| d as f32));
-    market.title.push(title.and_then(TitleStatus::parse));
-    market
-        .options
-        .push(cache.options.get_optional(names, options));
-    issues.condition_inferred += usize::from(inferred);
+    }
+
+    #[test]
+    fn rows_are_reported_on_their_own_lines() {
+        let bytes = b"year,make,model,price,miles,notes\n\
+            \n\
+            2020,Ardent,Vale,21000,30000,\"first\nsecond\"\n\
+            \n\
+            \x20\t\r\n\
+            20x0,Ardent,Vale,21000,30000,\n\
+            2021,Ardent,,22000,20000,\n\
+            \n  "
+            .to_vec();
+        let one_record_a_batch = |cores| Plan {
+            cores,
+            batch_records: 1,
+        };
+        for plan in [
+            None,
+            Some(one_record_a_batch(1)),
+            Some(one_record_a_batch(2)),
+        ] {
+            let (market, report) =
+                import_planned("lines.csv", bytes.clone(), ImportOptions::default(), plan)
+                    .unwrap_or_else(|e| panic!("{e}"));
+            assert_eq!(market.line, vec![3], "{plan:?}");
+            let rejected: Vec<(u64, &str)> = report
+                .rejected
+                .iter()
+                .map(|r| (r.line, r.reason.code()))
+                .collect();
+            assert_eq!(rejected, vec![(7, "not_a_number"), (8, "missing_value")]);
+            assert_eq!(report.rows_read, 3, "blank lines are not rows");
+        }
+    }
 }

@@ -2,12 +2,25 @@
 
 use chrono::NaiveDate;
 
+/// `text` without surrounding white space. Most cells have none, and they are checked on their
+/// first and last byte only; the rest go through the full Unicode trim.
+#[must_use]
+pub fn tidy(text: &str) -> &str {
+    let plain = |b: u8| b > b' ' && b < 0x80;
+    match text.as_bytes() {
+        [] => text,
+        [first, .., last] if plain(*first) && plain(*last) => text,
+        [only] if plain(*only) => text,
+        _ => text.trim(),
+    }
+}
+
 /// Parses a number, ignoring currency signs, thousands separators, spaces and a trailing unit
 /// word ("mi", "km", "miles"). Returns `None` for anything else.
 #[must_use]
 pub fn parse_number(text: &str) -> Option<f64> {
     // Most feeds write plain numbers: parse them without building a cleaned copy.
-    if let Ok(v) = text.trim().parse::<f64>() {
+    if let Ok(v) = tidy(text).parse::<f64>() {
         return v.is_finite().then_some(v);
     }
     let mut cleaned = String::with_capacity(text.len());
@@ -32,7 +45,7 @@ pub fn parse_number(text: &str) -> Option<f64> {
 /// Parses a whole model year; accepts "2019" and "2019.0".
 #[must_use]
 pub fn parse_year(text: &str) -> Option<i64> {
-    let t = text.trim();
+    let t = tidy(text);
     if let Ok(y) = t.parse::<i64>() {
         return Some(y);
     }
@@ -44,7 +57,7 @@ pub fn parse_year(text: &str) -> Option<i64> {
 /// (its date part).
 #[must_use]
 pub fn parse_date(text: &str) -> Option<NaiveDate> {
-    let t = text.trim();
+    let t = tidy(text);
     if let Some(d) = parse_iso_date(t) {
         return Some(d);
     }
@@ -85,6 +98,24 @@ mod tests {
         assert_eq!(parse_number("abc"), None);
         assert_eq!(parse_number(""), None);
         assert_eq!(parse_number("NaN"), None);
+    }
+
+    #[test]
+    fn tidy_trims_like_trim() {
+        for text in [
+            "",
+            " ",
+            "a",
+            " a",
+            "a ",
+            "\tab\r",
+            "\u{a0}x\u{a0}",
+            "é",
+            " é ",
+            "x y",
+        ] {
+            assert_eq!(tidy(text), text.trim(), "{text:?}");
+        }
     }
 
     #[test]
