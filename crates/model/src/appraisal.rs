@@ -148,13 +148,21 @@ pub fn fit_market(
         .age_form(settings.age_form)
         .robust(settings.robust)
         .check()?;
-    let model = params.fit(market, &included_rows)?;
+    // The comparables' index needs only the cleaning: build it while the model is fitted.
+    let (model, candidates) = std::thread::scope(|scope| {
+        let index = scope.spawn(|| CandidateIndex::new(market, &cleaning.rows, &cleaning));
+        let model = params.fit(market, &included_rows);
+        let candidates = index
+            .join()
+            .unwrap_or_else(|_| CandidateIndex::new(market, &cleaning.rows, &cleaning));
+        (model, candidates)
+    });
     Ok(MarketFit {
         segment,
         as_of,
-        candidates: CandidateIndex::new(market, &cleaning.rows, &cleaning),
+        candidates,
         cleaning,
-        model,
+        model: model?,
         included_rows,
     })
 }

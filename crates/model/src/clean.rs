@@ -385,14 +385,20 @@ fn mark_duplicates(market: &Market, rows: &[usize], exclusions: &mut [Option<Exc
             )),
         }
     }
-    for (i, first) in repeats(&by_vin) {
+    let (vin_repeats, attribute_repeats) = std::thread::scope(|scope| {
+        let by_vin = &by_vin;
+        let vins = scope.spawn(move || repeats(by_vin));
+        let attributes = repeats(&by_attributes);
+        (vins.join().unwrap_or_else(|_| repeats(by_vin)), attributes)
+    });
+    for (i, first) in vin_repeats {
         if exclusions[i].is_none() {
             exclusions[i] = Some(Exclusion::DuplicateVin {
                 of_line: market.line[rows[first]],
             });
         }
     }
-    for (i, first) in repeats(&by_attributes) {
+    for (i, first) in attribute_repeats {
         if exclusions[i].is_none() {
             exclusions[i] = Some(Exclusion::DuplicateListing {
                 of_line: market.line[rows[first]],

@@ -73,12 +73,7 @@ impl Design {
     /// youngest age, the variant with the lowest median asking price, and `used` when present.
     #[must_use]
     pub fn for_rows(market: &Market, rows: &[usize], age_form: AgeForm, as_of_year: i32) -> Self {
-        let mut ages: Vec<i32> = rows
-            .iter()
-            .map(|&r| (as_of_year - market.model_year[r]).max(0))
-            .collect();
-        ages.sort_unstable();
-        ages.dedup();
+        let ages = distinct_ages(market, rows, as_of_year);
 
         let mut by_variant: std::collections::HashMap<NameId, Vec<f64>> =
             std::collections::HashMap::new();
@@ -231,4 +226,16 @@ impl Design {
         set(out, lo, 1.0 - t);
         set(out, hi, t);
     }
+}
+
+/// The distinct ages of the rows, youngest first. Ages span a few dozen years at most, so a
+/// table of seen ages replaces sorting every row's age.
+fn distinct_ages(market: &Market, rows: &[usize], as_of_year: i32) -> Vec<i32> {
+    let age = |r: usize| (as_of_year - market.model_year[r]).max(0);
+    let oldest = rows.iter().map(|&r| age(r)).max().unwrap_or(0);
+    let mut seen = vec![false; oldest as usize + 1];
+    for &r in rows {
+        seen[age(r) as usize] = true;
+    }
+    (0..=oldest).filter(|&a| seen[a as usize]).collect()
 }
