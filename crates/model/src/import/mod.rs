@@ -240,20 +240,16 @@ fn import_planned(
     plan: Option<Plan>,
 ) -> Result<(Market, ImportReport), ImportError> {
     let file = file.to_owned();
-    if bytes.iter().all(u8::is_ascii_whitespace) {
-        return Err(ImportError::Empty { file });
-    }
-    if let Err(e) = std::str::from_utf8(&bytes) {
-        let (line, column) = line_and_column(&bytes, e.valid_up_to());
-        return Err(ImportError::NotUtf8 { file, line, column });
-    }
+    // The file's fingerprint is computed on another core while its text is checked and its
+    // records found.
+    let (hash, checked) = std::thread::scope(|scope| {
+        let hash = scope.spawn(|| content_hash(&bytes));
+        let checked = check_text(&file, &bytes, options);
+        let hash = hash.join().unwrap_or_else(|_| content_hash(&bytes));
+        (hash, checked)
+    });
+    let (mapping, delimiter, starts) = checked?;
     let header_line = first_line(&bytes);
-    let delimiter = options
-        .delimiter
-        .unwrap_or_else(|| sniff_delimiter(header_line));
-    let mapping = map_header(&file, header_line, delimiter, options)?;
-    let hash = content_hash(&bytes);
-    let starts = record_starts(&bytes);
     let tokenizer = Tokenizer {
         delimiter,
         header_fields: split_header(header_line, delimiter).len(),
@@ -299,6 +295,29 @@ fn import_planned(
         content_hash: hash,
     };
     Ok((market, report))
+}
+
+/// Checks that the bytes are non-empty UTF-8 text with a usable header; returns the header's
+/// mapping, the separator and where each record starts.
+fn check_text(
+    file: &str,
+    bytes: &[u8],
+    options: ImportOptions,
+) -> Result<(HeaderMapping, u8, RecordStarts), ImportError> {
+    let file = file.to_owned();
+    if bytes.iter().all(u8::is_ascii_whitespace) {
+        return Err(ImportError::Empty { file });
+    }
+    if let Err(e) = std::str::from_utf8(bytes) {
+        let (line, column) = line_and_column(bytes, e.valid_up_to());
+        return Err(ImportError::NotUtf8 { file, line, column });
+    }
+    let header_line = first_line(bytes);
+    let delimiter = options
+        .delimiter
+        .unwrap_or_else(|| sniff_delimiter(header_line));
+    let mapping = map_header(&file, header_line, delimiter, options)?;
+    Ok((mapping, delimiter, record_starts(bytes)))
 }
 
 fn delimiter_name(d: u8) -> String {

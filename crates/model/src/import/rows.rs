@@ -107,10 +107,12 @@ fn text_column<'a>(
     column.str().map(Some).map_err(|e| e.to_string())
 }
 
-/// Every cell of a text column in row order, trimmed; a missing field reads as "".
+/// Every cell of a text column in row order, trimmed. The tokenizer stores a missing field as
+/// an empty text marked null; the mark is not read, the empty text is (an empty field and a
+/// missing one mean the same here, and the tests of missing values and short rows hold it).
 fn cells(ca: &StringChunked) -> impl Iterator<Item = &str> + '_ {
     ca.downcast_iter()
-        .flat_map(|array| array.iter().map(|text| text.map_or("", tidy)))
+        .flat_map(|array| array.values_iter().map(tidy))
 }
 
 /// The cells of the rows kept, with their row in the market being built.
