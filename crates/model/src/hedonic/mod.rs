@@ -236,18 +236,27 @@ impl ValidHedonicParams {
                 names: design.names.join(", "),
             });
         }
-        let factor = accumulate(market, rows, &design, as_of_year, None);
-        let ys = rows.iter().map(|&r| market.asking_price[r].ln());
-        let ols = OlsFit::from_factor(factor, true, ys).map_err(|e| fit_error(e, &design))?;
+        // ln(price) once per fit: the robust fit's passes reuse it.
+        let ln_price: Vec<f64> = rows.iter().map(|&r| market.asking_price[r].ln()).collect();
+        let fit_rows = FitRows {
+            market,
+            rows,
+            ln_price: &ln_price,
+            design: &design,
+            as_of_year,
+        };
+        let factor = accumulate(&fit_rows, None);
+        let ols = OlsFit::from_factor(factor, true, ln_price.iter().copied())
+            .map_err(|e| fit_error(e, &design))?;
         let mut coefficients = ols.coefficients().to_vec();
-        let mut residuals = residuals(market, rows, &design, as_of_year, &coefficients);
+        let mut residuals = residuals(&fit_rows, &coefficients);
         let rss: f64 = residuals.iter().map(|r| r * r).sum();
         let df = (rows.len() - p) as f64;
         let mut residual_sd = (rss / df).sqrt();
         let mut coefficient_sd = residual_sd;
         let mut iterations = 0;
         if self.robust {
-            let outcome = robust::huber(self, market, rows, &design, coefficients, residuals)?;
+            let outcome = robust::huber(self, &fit_rows, coefficients, residuals)?;
             coefficients = outcome.coefficients;
             residuals = outcome.residuals;
             residual_sd = outcome.scale;
@@ -260,7 +269,7 @@ impl ValidHedonicParams {
             .into_iter()
             .map(|v| coefficient_sd * v.sqrt())
             .collect();
-        let tss = centred_ss(rows.iter().map(|&r| market.asking_price[r].ln()));
+        let tss = centred_ss(ln_price.iter().copied());
         let rss: f64 = residuals.iter().map(|r| r * r).sum();
         // Duan (1983): the mean of exp(e) over the residuals converts a median to a mean.
         let smearing = residuals.iter().map(|r| r.exp()).sum::<f64>() / residuals.len() as f64;
@@ -307,32 +316,72 @@ fn centred_ss(values: impl Iterator<Item = f64>) -> f64 {
     m2
 }
 
+/// The rows of one fit with what every pass over them needs.
+pub(crate) struct FitRows<'a> {
+    pub market: &'a Market,
+    pub rows: &'a [usize],
+    /// ln(asking price) of each row, in the order of `rows`.
+    pub ln_price: &'a [f64],
+    pub design: &'a Design,
+    pub as_of_year: i32,
+}
+
+impl FitRows<'_> {
+    /// Fills `x` with the design row of `rows[i]`.
+    fn fill(&self, i: usize, x: &mut [f64]) {
+        let r = self.rows[i];
+        self.design.fill_row(
+            age_years(self.market.model_year[r], self.as_of_year),
+            self.market.miles[r],
+            self.market.variant[r],
+            self.market.condition[r],
+            x,
+        );
+    }
+
+    /// The row ranges, one per core, for a pass over many rows (one range for a few rows).
+    fn parts(&self) -> Vec<std::ops::Range<usize>> {
+        let n = self.rows.len();
+        let threads = std::thread::available_parallelism().map_or(1, std::num::NonZero::get);
+        let threads = if n > 20_000 { threads } else { 1 };
+        let per = n.div_ceil(threads).max(1);
+        (0..n).step_by(per).map(|s| s..(s + per).min(n)).collect()
+    }
+}
+
+/// Runs `work` on each part of the rows, on its own core when there are several.
+fn each_part<T: Send>(
+    parts: Vec<std::ops::Range<usize>>,
+    work: &(dyn Fn(std::ops::Range<usize>) -> T + Sync),
+) -> Vec<T> {
+    if parts.len() < 2 {
+        return parts.into_iter().map(work).collect();
+    }
+    std::thread::scope(|s| {
+        let handles: Vec<_> = parts
+            .into_iter()
+            .map(|part| s.spawn(move || work(part)))
+            .collect();
+        handles
+            .into_iter()
+            .map(|h| {
+                h.join()
+                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
+            })
+            .collect()
+    })
+}
+
 /// Folds the design rows (optionally weighted) into a QR factor, splitting the rows over the
 /// machine's cores.
-pub(crate) fn accumulate(
-    market: &Market,
-    rows: &[usize],
-    design: &Design,
-    as_of_year: i32,
-    weights: Option<&[f64]>,
-) -> QrFactor {
-    let p = design.width();
-    let threads = std::thread::available_parallelism().map_or(1, std::num::NonZero::get);
-    let per = rows.len().div_ceil(threads.max(1)).max(1);
-    let fold = |start: usize| {
-        let end = (start + per).min(rows.len());
+pub(crate) fn accumulate(rows: &FitRows<'_>, weights: Option<&[f64]>) -> QrFactor {
+    let p = rows.design.width();
+    let fold = |part: std::ops::Range<usize>| {
         let mut acc = QrAccumulator::new(p);
         let mut x = vec![0.0; p];
-        for i in start..end {
-            let r = rows[i];
-            design.fill_row(
-                age_years(market.model_year[r], as_of_year),
-                market.miles[r],
-                market.variant[r],
-                market.condition[r],
-                &mut x,
-            );
-            let mut y = market.asking_price[r].ln();
+        for i in part {
+            rows.fill(i, &mut x);
+            let mut y = rows.ln_price[i];
             if let Some(w) = weights {
                 let s = w[i].sqrt();
                 for v in &mut x {
@@ -344,43 +393,24 @@ pub(crate) fn accumulate(
         }
         acc
     };
-    let starts: Vec<usize> = (0..rows.len()).step_by(per).collect();
-    let parts: Vec<QrAccumulator> = if starts.len() > 1 && rows.len() > 20_000 {
-        std::thread::scope(|s| {
-            let handles: Vec<_> = starts.iter().map(|&st| s.spawn(move || fold(st))).collect();
-            handles.into_iter().filter_map(|h| h.join().ok()).collect()
-        })
-    } else {
-        starts.iter().map(|&st| fold(st)).collect()
-    };
     let mut total = QrAccumulator::new(p);
-    for part in parts {
+    for part in each_part(rows.parts(), &fold) {
         total.merge(part);
     }
     total.finish()
 }
 
-/// ln(price) residuals of `rows` under `coefficients`.
-pub(crate) fn residuals(
-    market: &Market,
-    rows: &[usize],
-    design: &Design,
-    as_of_year: i32,
-    coefficients: &[f64],
-) -> Vec<f64> {
-    let mut x = vec![0.0; design.width()];
-    rows.iter()
-        .map(|&r| {
-            design.fill_row(
-                age_years(market.model_year[r], as_of_year),
-                market.miles[r],
-                market.variant[r],
-                market.condition[r],
-                &mut x,
-            );
-            market.asking_price[r].ln() - dot(&x, coefficients)
+/// ln(price) residuals of the rows under `coefficients`.
+pub(crate) fn residuals(rows: &FitRows<'_>, coefficients: &[f64]) -> Vec<f64> {
+    let part_residuals = |part: std::ops::Range<usize>| {
+        let mut x = vec![0.0; rows.design.width()];
+        part.map(|i| {
+            rows.fill(i, &mut x);
+            rows.ln_price[i] - dot(&x, coefficients)
         })
-        .collect()
+        .collect::<Vec<f64>>()
+    };
+    each_part(rows.parts(), &part_residuals).concat()
 }
 
 fn dot(a: &[f64], b: &[f64]) -> f64 {

@@ -6,10 +6,7 @@
 //! κ = 1 + (p/n) var(ψ')/mean(ψ')² (Huber 1981, §7.6; the same form R's MASS::rlm reports —
 //! stated from memory, checked here only by the properties in the test suite).
 
-use chrono::Datelike;
-
-use super::{Design, FitError, ValidHedonicParams, accumulate, residuals};
-use crate::market::Market;
+use super::{FitError, FitRows, ValidHedonicParams, accumulate, residuals};
 
 /// MAD to normal-SD factor.
 const MAD_TO_SD: f64 = 0.674_489_750_196_081_7;
@@ -27,14 +24,11 @@ pub(super) struct RobustOutcome {
 
 pub(super) fn huber(
     params: &ValidHedonicParams,
-    market: &Market,
-    rows: &[usize],
-    design: &Design,
+    rows: &FitRows<'_>,
     mut coefficients: Vec<f64>,
     mut resid: Vec<f64>,
 ) -> Result<RobustOutcome, FitError> {
     let k = params.huber_k;
-    let as_of_year = params.as_of.year();
     let mut scale = robust_scale(&resid);
     let mut iterations = 0;
     while iterations < params.max_iterations {
@@ -49,12 +43,12 @@ pub(super) fn huber(
                 if u <= k { 1.0 } else { k / u }
             })
             .collect();
-        let factor = accumulate(market, rows, design, as_of_year, Some(&weights));
+        let factor = accumulate(rows, Some(&weights));
         let next = factor
             .solve()
             .map_err(
                 |crate::linalg::RankError::Deficient { column }| FitError::Collinear {
-                    term: design.names.get(column).cloned().unwrap_or_default(),
+                    term: rows.design.names.get(column).cloned().unwrap_or_default(),
                 },
             )?;
         let change = next
@@ -63,13 +57,13 @@ pub(super) fn huber(
             .map(|(a, b)| (a - b).abs() / (1.0 + b.abs()))
             .fold(0.0, f64::max);
         coefficients = next;
-        resid = residuals(market, rows, design, as_of_year, &coefficients);
+        resid = residuals(rows, &coefficients);
         scale = robust_scale(&resid);
         if change < 1e-8 {
             break;
         }
     }
-    let coefficient_sd = huber_coefficient_sd(&resid, scale, k, design.width());
+    let coefficient_sd = huber_coefficient_sd(&resid, scale, k, rows.design.width());
     Ok(RobustOutcome {
         coefficients,
         residuals: resid,

@@ -20,7 +20,11 @@ pub fn tidy(text: &str) -> &str {
 #[must_use]
 pub fn parse_number(text: &str) -> Option<f64> {
     // Most feeds write plain numbers: parse them without building a cleaned copy.
-    if let Ok(v) = tidy(text).parse::<f64>() {
+    let text = tidy(text);
+    if let Some(v) = plain_decimal(text) {
+        return Some(v);
+    }
+    if let Ok(v) = text.parse::<f64>() {
         return v.is_finite().then_some(v);
     }
     let mut cleaned = String::with_capacity(text.len());
@@ -40,6 +44,36 @@ pub fn parse_number(text: &str) -> Option<f64> {
         return None;
     }
     cleaned.parse::<f64>().ok().filter(|v| v.is_finite())
+}
+
+/// A plain decimal ("30400", "106.5"): digits with at most one point, at most 15 digits in all.
+/// Such a number is an integer below 2^53 divided by a power of ten no larger than 10^15, both
+/// exact in binary, so one division gives the correctly rounded value (Clinger 1990), the
+/// same value the standard parser returns, without its general machinery.
+fn plain_decimal(text: &str) -> Option<f64> {
+    const POWERS: [f64; 16] = [
+        1.0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
+    ];
+    let bytes = text.as_bytes();
+    if bytes.is_empty() || bytes.len() > 16 {
+        return None;
+    }
+    let (mut mantissa, mut digits, mut point) = (0u64, 0usize, None);
+    for (i, &b) in bytes.iter().enumerate() {
+        match b {
+            b'0'..=b'9' => {
+                mantissa = mantissa * 10 + u64::from(b - b'0');
+                digits += 1;
+            }
+            b'.' if point.is_none() => point = Some(i),
+            _ => return None,
+        }
+    }
+    if digits == 0 || digits > 15 {
+        return None;
+    }
+    let decimals = point.map_or(0, |p| bytes.len() - p - 1);
+    Some(mantissa as f64 / POWERS[decimals])
 }
 
 /// Parses a whole model year; accepts "2019" and "2019.0".
@@ -98,6 +132,57 @@ mod tests {
         assert_eq!(parse_number("abc"), None);
         assert_eq!(parse_number(""), None);
         assert_eq!(parse_number("NaN"), None);
+    }
+
+    #[test]
+    fn plain_decimals_read_exactly_as_the_standard_parser_reads_them() {
+        for text in [
+            "0",
+            "7",
+            "30400",
+            "106.5",
+            "0.1",
+            "1.",
+            ".5",
+            "999999999999999",
+            "12345.6789",
+            "0.000000000000001",
+            "000123",
+            "4503599627370497",
+        ] {
+            let expected = text.parse::<f64>().ok();
+            let got = plain_decimal(text).or_else(|| parse_number(text));
+            assert_eq!(got, expected, "{text}");
+        }
+        let mut state = 0x9e37_79b9_7f4a_7c15u64;
+        for _ in 0..20_000 {
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            let digits = (state % 15 + 1) as usize;
+            let whole = format!("{:015}", state % 1_000_000_000_000_000);
+            let whole = &whole[15 - digits..];
+            let point = (state >> 20) as usize % (digits + 1);
+            let text = if point == digits {
+                whole.to_owned()
+            } else {
+                format!("{}.{}", &whole[..point], &whole[point..])
+            };
+            assert_eq!(plain_decimal(&text), text.parse::<f64>().ok(), "{text}");
+        }
+        for text in [
+            "",
+            ".",
+            "1.2.3",
+            "-5",
+            "+5",
+            "1e5",
+            "12,500",
+            "$5",
+            "1234567890123456",
+        ] {
+            assert_eq!(plain_decimal(text), None, "{text}");
+        }
     }
 
     #[test]
