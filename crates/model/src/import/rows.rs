@@ -41,22 +41,7 @@ struct Columns<'a> {
 
 /// Optional fields: every field after the six that identify and price a vehicle (the required
 /// ones and the kilometre alternative).
-const OPTIONAL_FIELDS: [Field; 14] = [
-    Field::Variant,
-    Field::Condition,
-    Field::ListedOn,
-    Field::SoldOn,
-    Field::SalePrice,
-    Field::Vin,
-    Field::Seller,
-    Field::Location,
-    Field::Latitude,
-    Field::Longitude,
-    Field::DistanceMiles,
-    Field::DistanceKilometres,
-    Field::Title,
-    Field::Options,
-];
+const OPTIONAL_FIELDS: &[Field] = Field::ALL.split_at(6).1;
 
 impl<'a> Columns<'a> {
     fn of(df: &'a DataFrame, mapping: &HeaderMapping) -> Result<Self, String> {
@@ -70,7 +55,7 @@ impl<'a> Columns<'a> {
             OdometerUnit::Kilometres => Field::Kilometres,
         };
         let mut optional = [None; OPTIONAL_FIELDS.len()];
-        for (slot, field) in optional.iter_mut().zip(OPTIONAL_FIELDS) {
+        for (slot, field) in optional.iter_mut().zip(OPTIONAL_FIELDS.iter().copied()) {
             *slot = col(field)?;
         }
         Ok(Self {
