@@ -691,13 +691,23 @@ impl Workbench {
             return "Fitting the market…".to_owned();
         }
         match (&self.runtime.market_source, &self.runtime.import_report) {
-            (Some(source), Some(report)) => format!(
-                "{}: {} listings used of {} read, {} rejected",
-                source.describe(),
-                model::format::thousands(report.rows_used as f64),
-                model::format::thousands(report.rows_read as f64),
-                model::format::thousands(report.rejected.len() as f64)
-            ),
+            (Some(source), Some(report)) => {
+                let blank = if report.blank_lines > 0 {
+                    format!(
+                        "; {} blank lines passed over",
+                        model::format::thousands(report.blank_lines as f64)
+                    )
+                } else {
+                    String::new()
+                };
+                format!(
+                    "{}: {} listings used of {} read, {} rejected{blank}",
+                    source.describe(),
+                    model::format::thousands(report.rows_used as f64),
+                    model::format::thousands(report.rows_read as f64),
+                    model::format::thousands(report.rejected.len() as f64)
+                )
+            }
             _ => String::new(),
         }
     }

@@ -31,6 +31,7 @@ pub struct ImportSummary {
     pub column_map: BTreeMap<String, String>,
     pub ignored_columns: Vec<String>,
     pub condition_inferred: usize,
+    pub blank_lines: usize,
 }
 
 impl ImportSummary {
@@ -49,6 +50,7 @@ impl ImportSummary {
             column_map: r.column_map.clone(),
             ignored_columns: r.ignored_columns.clone(),
             condition_inferred: r.condition_inferred,
+            blank_lines: r.blank_lines,
         }
     }
 }

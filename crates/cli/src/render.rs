@@ -52,6 +52,13 @@ pub fn import(s: &ImportSummary) -> String {
             s.condition_inferred
         );
     }
+    if s.blank_lines > 0 {
+        let _ = writeln!(
+            o,
+            "  blank lines passed over: {}",
+            thousands(s.blank_lines as f64)
+        );
+    }
     if !s.ignored_columns.is_empty() {
         let _ = writeln!(o, "  ignored columns: {}", s.ignored_columns.join(", "));
     }

@@ -275,6 +275,7 @@ fn import_planned(
             .collect(),
         ignored_columns: mapping.ignored.clone(),
         condition_inferred: read.issues.condition_inferred,
+        blank_lines: read.issues.blank_lines,
         dropped_values: read.issues.dropped,
         ..ImportReport::default()
     };
@@ -743,6 +744,7 @@ mod tests {
                 .collect();
             assert_eq!(rejected, vec![(7, "not_a_number"), (8, "missing_value")]);
             assert_eq!(report.rows_read, 3, "blank lines are not rows");
+            assert_eq!(report.blank_lines, 5, "and are counted as passed over");
         }
     }
 }

@@ -122,6 +122,9 @@ pub struct ImportReport {
     pub odometer_unit: String,
     /// Rows without a condition class, treated as used (≥ 1,000 mi) or new (< 1,000 mi).
     pub condition_inferred: usize,
+    /// Blank lines between records, passed over (not rows, not rejections).
+    #[serde(default)]
+    pub blank_lines: usize,
 }
 
 impl ImportReport {
