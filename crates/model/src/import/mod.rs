@@ -714,6 +714,20 @@ mod tests {
     }
 
     #[test]
+    fn a_large_file_read_on_every_core_is_the_file() {
+        // Above the size at which the parts are read in parallel; an odd length so the parts
+        // differ in size.
+        let bytes: Vec<u8> = (0..(17u32 << 20) + 7)
+            .map(|i| (i.wrapping_mul(2_654_435_761) >> 13) as u8)
+            .collect();
+        let path = std::env::temp_dir().join(format!("comptrail-read-{}.bin", std::process::id()));
+        std::fs::write(&path, &bytes).unwrap_or_else(|e| panic!("{e}"));
+        let read = read_whole_file(&path);
+        std::fs::remove_file(&path).ok();
+        assert!(read.is_ok_and(|r| r == bytes));
+    }
+
+    #[test]
     fn rows_are_reported_on_their_own_lines() {
         let bytes = b"year,make,model,price,miles,notes\n\
             \n\
