@@ -150,7 +150,7 @@ pub enum ImportError {
         header_fields: usize,
     },
     /// Every row was rejected (or there were none).
-    #[error("{file}: no usable rows: {} read, all rejected{}", report.rows_read, summary_of(report))]
+    #[error("{file}: no usable rows: {}", summary_of(report))]
     NoUsableRows {
         /// File name.
         file: String,
@@ -160,7 +160,10 @@ pub enum ImportError {
 }
 
 fn summary_of(report: &ImportReport) -> String {
-    let mut s = String::new();
+    if report.rows_read == 0 {
+        return "the file has a header line but no data rows after it".to_owned();
+    }
+    let mut s = format!("{} read, all rejected", report.rows_read);
     for (code, n) in &report.rejected_by_reason {
         let _ = write!(s, "; {n} {code}");
     }
@@ -710,6 +713,24 @@ mod tests {
             for row in 0..whole.len() {
                 assert_eq!(market.listing(row), whole.listing(row), "row {row}");
             }
+        }
+    }
+
+    #[test]
+    fn a_header_without_rows_says_so() {
+        for text in [
+            "year,make,model,price,miles\n",
+            "year,make,model,price,miles\n\n \n",
+        ] {
+            let err = import_planned("empty.csv", text.into(), ImportOptions::default(), None)
+                .err()
+                .map(|e| e.to_string());
+            assert_eq!(
+                err.as_deref(),
+                Some(
+                    "empty.csv: no usable rows: the file has a header line but no data rows after it"
+                )
+            );
         }
     }
 
