@@ -235,22 +235,11 @@ fn worksheet(o: &mut String, w: &model::session::WorksheetOutcome) {
                 "ACV offer",
                 model::format::cents(offer.offer)
             );
-            let days: Vec<String> = sensitivity
-                .by_days
-                .iter()
-                .map(|(d, v)| format!("{d:.0} days {}", money(*v)))
-                .collect();
-            let _ = writeln!(o, "  offer by days to sell: {}", days.join(", "));
-            let [low, mid, high] = sensitivity.by_value;
+            let _ = writeln!(o, "  offer by days to sell: {}", sensitivity.by_days_text());
             let _ = writeln!(
                 o,
-                "  offer across the value band: {} at {}, {} at {}, {} at {}",
-                money(low.1),
-                money(low.0),
-                money(mid.1),
-                money(mid.0),
-                money(high.1),
-                money(high.0)
+                "  offer across the value band: {}",
+                sensitivity.by_value_text()
             );
         }
         WorksheetOutcome::Claim(c) => {

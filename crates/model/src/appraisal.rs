@@ -152,9 +152,10 @@ pub fn fit_market(
     let (model, candidates) = std::thread::scope(|scope| {
         let index = scope.spawn(|| CandidateIndex::new(market, &cleaning.rows, &cleaning));
         let model = params.fit(market, &included_rows);
+        // A panic there is a bug: pass it on rather than build the index a second time.
         let candidates = index
             .join()
-            .unwrap_or_else(|_| CandidateIndex::new(market, &cleaning.rows, &cleaning));
+            .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
         (model, candidates)
     });
     Ok(MarketFit {

@@ -386,10 +386,12 @@ fn mark_duplicates(market: &Market, rows: &[usize], exclusions: &mut [Option<Exc
         }
     }
     let (vin_repeats, attribute_repeats) = std::thread::scope(|scope| {
-        let by_vin = &by_vin;
-        let vins = scope.spawn(move || repeats(by_vin));
+        let vins = scope.spawn(|| repeats(&by_vin));
         let attributes = repeats(&by_attributes);
-        (vins.join().unwrap_or_else(|_| repeats(by_vin)), attributes)
+        let vins = vins
+            .join()
+            .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
+        (vins, attributes)
     });
     for (i, first) in vin_repeats {
         if exclusions[i].is_none() {

@@ -22,15 +22,8 @@ pub(super) const BATCH_RECORDS: usize = 1 << 15;
 /// tokenising over the cores).
 const ONE_CORE_BELOW: usize = 50_000;
 
-/// What reading every batch produced.
-pub(super) struct BatchOutput {
-    pub market: Market,
-    pub issues: RowIssues,
-    /// Records the tokenizer returned, blank lines not counted.
-    pub rows_read: usize,
-}
-
 /// The tokenizer's settings for one file.
+#[derive(Debug, Clone, Copy)]
 pub(super) struct Tokenizer {
     pub delimiter: u8,
     /// Fields in the header: every batch is read with this many text columns.
@@ -56,7 +49,8 @@ impl Plan {
     }
 }
 
-/// Reads every record after the header. Errors are the tokenizer's messages.
+/// Reads every record after the header into a market, with what was found besides the rows kept.
+/// Errors are the tokenizer's messages.
 pub(super) fn read_batches(
     bytes: &[u8],
     starts: &RecordStarts,
@@ -64,7 +58,7 @@ pub(super) fn read_batches(
     mapping: &HeaderMapping,
     options: ImportOptions,
     plan: Plan,
-) -> Result<BatchOutput, String> {
+) -> Result<(Market, RowIssues), String> {
     let records = starts.offsets.len();
     let cores = plan.cores.max(1);
     // Batches of at most `batch_records`, the same number for every core.
@@ -93,16 +87,12 @@ pub(super) fn read_batches(
         })
     };
     let per_core = batches / cores;
-    let run = |core: usize| -> Result<BatchOutput, String> {
-        let mut out = BatchOutput {
-            market: Market::default(),
-            issues: RowIssues::default(),
-            rows_read: 0,
-        };
+    let run = |core: usize| -> Result<(Market, RowIssues), String> {
+        let (mut market, mut issues) = (Market::default(), RowIssues::default());
         let mine: Vec<Batch<'_>> = (core * per_core..(core + 1) * per_core)
             .filter_map(batch)
             .collect();
-        out.market.reserve(mine.iter().map(|b| b.records).sum());
+        market.reserve(mine.iter().map(|b| b.records).sum());
         for b in mine {
             let df = tokenise(b.text, tokenizer, cores > 1)?;
             let line_of = |row: usize| {
@@ -113,20 +103,11 @@ pub(super) fn read_batches(
                     .copied()
                     .unwrap_or(record as u64 + 2)
             };
-            let blank_before = out.issues.blank_lines;
-            read_frame_rows(
-                &df,
-                mapping,
-                options,
-                &line_of,
-                &mut out.market,
-                &mut out.issues,
-            )?;
-            out.rows_read += df.height() - (out.issues.blank_lines - blank_before);
+            read_frame_rows(&df, mapping, options, &line_of, &mut market, &mut issues)?;
         }
-        Ok(out)
+        Ok((market, issues))
     };
-    let parts: Vec<Result<BatchOutput, String>> = if cores == 1 {
+    let parts: Vec<Result<(Market, RowIssues), String>> = if cores == 1 {
         vec![run(0)]
     } else {
         std::thread::scope(|scope| {
@@ -153,32 +134,21 @@ struct Batch<'b> {
 }
 
 /// Joins the parts in file order: the first is moved, the others appended once room is made.
-fn join_parts(parts: Vec<Result<BatchOutput, String>>) -> Result<BatchOutput, String> {
-    let parts: Vec<BatchOutput> = parts.into_iter().collect::<Result<_, _>>()?;
-    let total: usize = parts.iter().map(|p| p.market.len()).sum();
-    let mut joined: Option<BatchOutput> = None;
-    for part in parts {
-        match joined.as_mut() {
-            None => {
-                let mut first = part;
-                first.market.reserve(total - first.market.len());
-                joined = Some(first);
-            }
-            Some(all) => {
-                all.market.append(part.market);
-                all.issues.rejected.extend(part.issues.rejected);
-                all.issues.dropped.extend(part.issues.dropped);
-                all.issues.condition_inferred += part.issues.condition_inferred;
-                all.issues.blank_lines += part.issues.blank_lines;
-                all.rows_read += part.rows_read;
-            }
-        }
+fn join_parts(
+    parts: Vec<Result<(Market, RowIssues), String>>,
+) -> Result<(Market, RowIssues), String> {
+    let parts: Vec<(Market, RowIssues)> = parts.into_iter().collect::<Result<_, _>>()?;
+    let total: usize = parts.iter().map(|(m, _)| m.len()).sum();
+    let mut parts = parts.into_iter();
+    let Some((mut market, mut issues)) = parts.next() else {
+        return Ok((Market::default(), RowIssues::default()));
+    };
+    market.reserve(total - market.len());
+    for (later_market, later_issues) in parts {
+        market.append(later_market);
+        issues.append(later_issues);
     }
-    Ok(joined.unwrap_or(BatchOutput {
-        market: Market::default(),
-        issues: RowIssues::default(),
-        rows_read: 0,
-    }))
+    Ok((market, issues))
 }
 
 /// Tokenises records (no header) into a frame of `header_fields` text columns. When several

@@ -248,25 +248,23 @@ fn import_planned(
     let (hash, checked) = std::thread::scope(|scope| {
         let hash = scope.spawn(|| content_hash(&bytes));
         let checked = check_text(&file, &bytes, options);
-        let hash = hash.join().unwrap_or_else(|_| content_hash(&bytes));
+        let hash = hash
+            .join()
+            .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
         (hash, checked)
     });
-    let (mapping, delimiter, starts) = checked?;
-    let header_line = first_line(&bytes);
-    let tokenizer = Tokenizer {
-        delimiter,
-        header_fields: split_header(header_line, delimiter).len(),
-    };
+    let (mapping, tokenizer, starts) = checked?;
     let plan = plan.unwrap_or_else(|| Plan::for_records(starts.offsets.len()));
-    let read = match read_batches(&bytes, &starts, &tokenizer, &mapping, options, plan) {
-        Ok(read) => read,
-        Err(message) => return Err(malformed(&file, &bytes, delimiter, &message)),
-    };
+    let (mut market, issues) =
+        match read_batches(&bytes, &starts, &tokenizer, &mapping, options, plan) {
+            Ok(read) => read,
+            Err(message) => return Err(malformed(&file, &bytes, tokenizer.delimiter, &message)),
+        };
     drop(bytes);
     let mut report = ImportReport {
         file_name: file.clone(),
-        delimiter: delimiter_name(delimiter),
-        rows_read: read.rows_read,
+        delimiter: delimiter_name(tokenizer.delimiter),
+        rows_read: issues.rows_read,
         odometer_unit: match mapping.odometer {
             OdometerUnit::Miles => "miles".into(),
             OdometerUnit::Kilometres => "kilometres".into(),
@@ -277,15 +275,14 @@ fn import_planned(
             .map(|(f, (_, h))| (h.clone(), f.canonical().to_owned()))
             .collect(),
         ignored_columns: mapping.ignored.clone(),
-        condition_inferred: read.issues.condition_inferred,
-        blank_lines: read.issues.blank_lines,
-        dropped_values: read.issues.dropped,
+        condition_inferred: issues.condition_inferred,
+        blank_lines: issues.blank_lines,
+        dropped_values: issues.dropped,
         ..ImportReport::default()
     };
-    for (line, reason) in read.issues.rejected {
+    for (line, reason) in issues.rejected {
         report.reject(line, reason);
     }
-    let mut market = read.market;
     report.rows_used = market.len();
     if market.is_empty() {
         return Err(ImportError::NoUsableRows {
@@ -302,12 +299,12 @@ fn import_planned(
 }
 
 /// Checks that the bytes are non-empty UTF-8 text with a usable header; returns the header's
-/// mapping, the separator and where each record starts.
+/// mapping, the tokenizer's settings and where each record starts.
 fn check_text(
     file: &str,
     bytes: &[u8],
     options: ImportOptions,
-) -> Result<(HeaderMapping, u8, RecordStarts), ImportError> {
+) -> Result<(HeaderMapping, Tokenizer, RecordStarts), ImportError> {
     let file = file.to_owned();
     if bytes.iter().all(u8::is_ascii_whitespace) {
         return Err(ImportError::Empty { file });
@@ -321,7 +318,11 @@ fn check_text(
         .delimiter
         .unwrap_or_else(|| sniff_delimiter(header_line));
     let mapping = map_header(&file, header_line, delimiter, options)?;
-    Ok((mapping, delimiter, record_starts(bytes)))
+    let tokenizer = Tokenizer {
+        delimiter,
+        header_fields: split_header(header_line, delimiter).len(),
+    };
+    Ok((mapping, tokenizer, record_starts(bytes)))
 }
 
 fn delimiter_name(d: u8) -> String {

@@ -15,9 +15,11 @@ use crate::condition::{Condition, TitleStatus};
 use crate::market::Market;
 use crate::vocabulary::{NO_NAME, NameId, Vocabulary};
 
-/// What a batch found besides the rows it kept.
+/// What reading rows found besides the rows kept.
 #[derive(Default)]
 pub(super) struct RowIssues {
+    /// Rows read, blank lines not counted.
+    pub rows_read: usize,
     /// Rejected rows: (line, reason), in file order.
     pub rejected: Vec<(u64, RejectReason)>,
     /// Optional values dropped, in file order (by line, then column).
@@ -26,6 +28,17 @@ pub(super) struct RowIssues {
     pub condition_inferred: usize,
     /// Blank lines passed over (not rows of the market, not rejections).
     pub blank_lines: usize,
+}
+
+impl RowIssues {
+    /// Adds what a later part of the file found.
+    pub fn append(&mut self, later: RowIssues) {
+        self.rows_read += later.rows_read;
+        self.rejected.extend(later.rejected);
+        self.dropped.extend(later.dropped);
+        self.condition_inferred += later.condition_inferred;
+        self.blank_lines += later.blank_lines;
+    }
 }
 
 /// The frame's text columns for each field the header maps.
@@ -167,6 +180,7 @@ fn read_required(
             kept.push(false);
             continue;
         }
+        issues.rows_read += 1;
         let texts = [year, make, model, price, odometer];
         match required_values(texts, mapping, columns.odometer_field, km, options) {
             Ok((model_year, asking_price, miles)) => {

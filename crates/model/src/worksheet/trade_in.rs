@@ -214,4 +214,52 @@ impl OfferSensitivity {
             by_value: [at(band_low)?, at(inputs.retail_value)?, at(band_high)?],
         })
     }
+
+    /// The offer at each days to sell, in words: "15 days $21,400, 30 days $21,150, …".
+    #[must_use]
+    pub fn by_days_text(&self) -> String {
+        self.by_days
+            .iter()
+            .map(|(d, o)| format!("{d:.0} days {}", crate::format::money(*o)))
+            .collect::<Vec<_>>()
+            .join(", ")
+    }
+
+    /// The offer across the value band, in words: "$20,100 if retail is $26,700 (band low), …".
+    #[must_use]
+    pub fn by_value_text(&self) -> String {
+        let money = crate::format::money;
+        let [low, mid, high] = self.by_value;
+        format!(
+            "{} if retail is {} (band low), {} at {}, {} at {} (band high)",
+            money(low.1),
+            money(low.0),
+            money(mid.1),
+            money(mid.0),
+            money(high.1),
+            money(high.0)
+        )
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::OfferSensitivity;
+
+    #[test]
+    fn sensitivity_in_words() {
+        let s = OfferSensitivity {
+            by_days: vec![(15.0, 24_834.4), (30.0, 24_354.0)],
+            by_value: [
+                (28_137.0, 21_717.0),
+                (30_384.0, 23_874.0),
+                (32_810.0, 26_203.0),
+            ],
+        };
+        assert_eq!(s.by_days_text(), "15 days $24,834, 30 days $24,354");
+        assert_eq!(
+            s.by_value_text(),
+            "$21,717 if retail is $28,137 (band low), $23,874 at $30,384, $26,203 at $32,810 (band high)"
+        );
+    }
 }

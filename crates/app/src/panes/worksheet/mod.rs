@@ -184,21 +184,13 @@ pub fn outcome_ui(ui: &mut Ui, outcome: &Outcome) {
                     .size(22.0)
                     .strong(),
             );
-            ui.label("The offer at other days to sell:");
-            ui.horizontal_wrapped(|ui| {
-                for (days, o) in &sensitivity.by_days {
-                    ui.label(format!("{days:.0} days {}", money(*o)));
-                }
-            });
-            let [low, mid, high] = sensitivity.by_value;
             ui.label(format!(
-                "Across the value band: {} if retail is {} (band low), {} at {}, {} at {} (band high).",
-                money(low.1),
-                money(low.0),
-                money(mid.1),
-                money(mid.0),
-                money(high.1),
-                money(high.0)
+                "The offer at other days to sell: {}.",
+                sensitivity.by_days_text()
+            ));
+            ui.label(format!(
+                "Across the value band: {}.",
+                sensitivity.by_value_text()
             ));
         }
         Some(WorksheetOutcome::Claim(c)) => claim::worked_ui(ui, c),
