@@ -164,18 +164,25 @@ pub fn default_trade_in() -> TradeInInputs {
 #[must_use]
 pub fn default_claim(profile: JurisdictionProfile) -> Purpose {
     Purpose::Claim {
-        inputs: ClaimInputs {
-            profile_id: profile.id.clone(),
-            sales_tax_pct: 0.0,
-            title_fee: 0.0,
-            transfer_fee: 0.0,
-            annual_registration: 0.0,
-            registration_months_remaining: 0.0,
-            deductible: 500.0,
-            repair_estimate: 0.0,
-            salvage_value: 0.0,
-            owner_retains_salvage: false,
-        },
+        inputs: default_claim_inputs(&profile),
         profile,
+    }
+}
+
+/// The claim inputs a new claim worksheet under `profile` starts from: a $500 deductible and
+/// zero for every other amount.
+#[must_use]
+pub fn default_claim_inputs(profile: &JurisdictionProfile) -> ClaimInputs {
+    ClaimInputs {
+        profile_id: profile.id.clone(),
+        sales_tax_pct: 0.0,
+        title_fee: 0.0,
+        transfer_fee: 0.0,
+        annual_registration: 0.0,
+        registration_months_remaining: 0.0,
+        deductible: 500.0,
+        repair_estimate: 0.0,
+        salvage_value: 0.0,
+        owner_retains_salvage: false,
     }
 }

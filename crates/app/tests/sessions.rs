@@ -9,7 +9,7 @@ use std::path::PathBuf;
 
 use app::Workbench;
 use app::command::Command;
-use app::document::{AppraisalDocument, MarketSource, default_claim, default_trade_in};
+use app::document::{AppraisalDocument, MarketSource, default_claim_inputs, default_trade_in};
 use app::preferences::Preferences;
 use app::workbench::{CentralView, MarketState};
 use eframe::egui;
@@ -105,18 +105,15 @@ fn a_trade_in_from_the_demo_is_worked_saved_and_reopened_to_the_same_numbers() {
 fn a_claim_shows_the_settlement_the_profile_check_and_the_cautions() {
     let mut wb = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
     let ny = wb.profiles().get("ny").unwrap().clone();
-    let Purpose::Claim {
-        profile,
-        mut inputs,
-    } = default_claim(ny)
-    else {
-        unreachable!()
-    };
+    let mut inputs = default_claim_inputs(&ny);
     inputs.sales_tax_pct = 8.0;
     inputs.title_fee = 50.0;
     inputs.repair_estimate = 25_000.0;
     inputs.salvage_value = 5_000.0;
-    wb.apply(Command::ChoosePurpose(Purpose::Claim { profile, inputs }));
+    wb.apply(Command::ChoosePurpose(Purpose::Claim {
+        profile: ny,
+        inputs,
+    }));
     wb.wait_for_jobs();
     wb.show_view(CentralView::Worksheet);
     let payment = bottom_line(&wb);

@@ -8,7 +8,7 @@
 
 use app::Workbench;
 use app::command::Command;
-use app::document::{AppraisalDocument, default_claim};
+use app::document::{AppraisalDocument, default_claim_inputs};
 use app::preferences::Preferences;
 use app::workbench::CentralView;
 use cpu_render::CpuRenderer;
@@ -62,19 +62,16 @@ fn the_claim_worksheet_looks_as_it_should() {
         || {},
     );
     let ny = wb.profiles().get("ny").unwrap().clone();
-    let Purpose::Claim {
-        profile,
-        mut inputs,
-    } = default_claim(ny)
-    else {
-        unreachable!()
-    };
+    let mut inputs = default_claim_inputs(&ny);
     inputs.sales_tax_pct = 8.0;
     inputs.title_fee = 50.0;
     inputs.transfer_fee = 25.0;
     inputs.repair_estimate = 24_000.0;
     inputs.salvage_value = 5_000.0;
-    wb.apply(Command::ChoosePurpose(Purpose::Claim { profile, inputs }));
+    wb.apply(Command::ChoosePurpose(Purpose::Claim {
+        profile: ny,
+        inputs,
+    }));
     wb.show_view(CentralView::Worksheet);
     let mut harness = harness(wb);
     snapshot(&mut harness, "claim_worksheet");
