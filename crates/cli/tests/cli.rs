@@ -3,21 +3,14 @@
 // Tests may unwrap: a failure is the report.
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 
-use std::path::PathBuf;
-use std::process::{Command, Output};
+mod common;
 
-fn comptrail(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_comptrail"))
-        .args(args)
-        .output()
-        .expect("run comptrail")
-}
+use std::process::Output;
+
+use common::{comptrail, repo, succeeded};
 
 fn asset() -> String {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
-        .join("../../assets/demo-market.csv")
-        .display()
-        .to_string()
+    repo("assets/demo-market.csv")
 }
 
 fn json(out: &Output) -> serde_json::Value {
@@ -166,12 +159,7 @@ fn every_command_runs_on_the_asset() {
             "per-year",
         ],
     ] {
-        let out = comptrail(&args);
-        assert!(
-            out.status.success(),
-            "{args:?}: {}",
-            String::from_utf8_lossy(&out.stderr)
-        );
+        let out = succeeded(&args);
         assert!(!out.stdout.is_empty());
     }
 }

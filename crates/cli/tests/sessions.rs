@@ -3,23 +3,12 @@
 // Tests may unwrap (a failure is the report) and compare amounts written to the cent exactly.
 #![allow(clippy::unwrap_used, clippy::expect_used, clippy::float_cmp)]
 
+mod common;
+
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
-fn comptrail(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_comptrail"))
-        .args(args)
-        .output()
-        .expect("run comptrail")
-}
-
-fn repo(relative: &str) -> String {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
-        .join("../..")
-        .join(relative)
-        .display()
-        .to_string()
-}
+use common::{comptrail, repo, succeeded};
 
 fn scratch(name: &str) -> PathBuf {
     let dir = std::env::temp_dir().join(format!("comptrail-cli-{name}-{}", std::process::id()));
@@ -36,7 +25,7 @@ fn text(out: &Output) -> String {
 fn a_saved_trade_in_reopens_to_the_same_numbers_and_prints_a_report() {
     let dir = scratch("trade-in");
     let session = dir.join("case.ron");
-    let out = comptrail(&[
+    let out = succeeded(&[
         "appraise",
         &repo("assets/demo-market.csv"),
         "--subject",
@@ -50,11 +39,6 @@ fn a_saved_trade_in_reopens_to_the_same_numbers_and_prints_a_report() {
         "--save-session",
         session.to_str().unwrap(),
     ]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
     let shown = text(&out);
     let offer_line = shown
         .lines()
@@ -74,7 +58,7 @@ fn a_saved_trade_in_reopens_to_the_same_numbers_and_prints_a_report() {
 
     let pdf = dir.join("case.pdf");
     let html = dir.join("case.html");
-    let out = comptrail(&[
+    succeeded(&[
         "report",
         session.to_str().unwrap(),
         "--pdf",
@@ -82,11 +66,6 @@ fn a_saved_trade_in_reopens_to_the_same_numbers_and_prints_a_report() {
         "--html",
         html.to_str().unwrap(),
     ]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
     assert!(std::fs::read(&pdf).unwrap().starts_with(b"%PDF-"));
     assert!(
         std::fs::read_to_string(&html)
@@ -129,7 +108,7 @@ fn a_moved_market_file_is_reported_and_the_evidence_still_reproduces() {
     let market = dir.join("market.csv");
     std::fs::copy(repo("assets/demo-market.csv"), &market).unwrap();
     let session = dir.join("case.ron");
-    let out = comptrail(&[
+    succeeded(&[
         "appraise",
         market.to_str().unwrap(),
         "--subject",
@@ -139,28 +118,18 @@ fn a_moved_market_file_is_reported_and_the_evidence_still_reproduces() {
         "--save-session",
         session.to_str().unwrap(),
     ]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
     // Changed: one more listing appended.
     let mut bytes = std::fs::read(&market).unwrap();
     bytes.extend_from_slice(
         b"2022,Quellmark,Tessel,Plus,29990,40000,used,2026-11-28,,,,,,,clean,\n",
     );
     std::fs::write(&market, bytes).unwrap();
-    let out = comptrail(&[
+    let out = succeeded(&[
         "appraise",
         "--session",
         session.to_str().unwrap(),
         "--rerun",
     ]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
     let shown = text(&out);
     assert!(shown.contains("CHANGED"), "{shown}");
     assert!(shown.contains("reproduces to the cent"), "{shown}");
@@ -263,7 +232,7 @@ fn a_save_killed_midway_leaves_the_old_session_intact() {
 
 #[test]
 fn a_claim_in_json_has_the_documented_keys() {
-    let out = comptrail(&[
+    let out = succeeded(&[
         "appraise",
         &repo("assets/demo-market.csv"),
         "--subject",
@@ -274,11 +243,6 @@ fn a_claim_in_json_has_the_documented_keys() {
         &repo("sample-sessions/worksheets/total-loss-claim.ron"),
         "--json",
     ]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
     let doc: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     let claim = &doc["worksheet"]["claim"];
     for key in [
