@@ -96,14 +96,14 @@ fn user_adjustments_are_itemized_with_their_basis() {
     request.user_adjustments.push(UserAdjustment {
         line: None,
         kind: AdjustmentKind::Options,
-        amount: 600.0,
+        amount: model::money::Cents::whole_dollars(600),
         basis: "subject has a tow package the comparables lack".into(),
     });
     let damage_line = base.comparables[1].listing.line;
     request.user_adjustments.push(UserAdjustment {
         line: Some(damage_line),
         kind: AdjustmentKind::PriorDamage,
-        amount: 900.0,
+        amount: model::money::Cents::whole_dollars(900),
         basis: "comparable shows a reported front-end repair".into(),
     });
     let a = appraise(&market, &fit, &request).unwrap();

@@ -2,6 +2,7 @@
 //! against a profile by rule; a claim is worked as the profile says.
 
 use acceptance::demo_session;
+use model::money::Cents;
 use model::session::{Purpose, WorksheetOutcome};
 use model::worksheet::{
     ClaimInputs, ProfileError, ProfileFile, RegistrationPaid, TotalLossRule, shipped_profiles,
@@ -11,13 +12,13 @@ fn claim_inputs(profile_id: &str) -> ClaimInputs {
     ClaimInputs {
         profile_id: profile_id.into(),
         sales_tax_pct: 6.0,
-        title_fee: 40.0,
-        transfer_fee: 20.0,
-        annual_registration: 240.0,
+        title_fee: Cents::whole_dollars(40),
+        transfer_fee: Cents::whole_dollars(20),
+        annual_registration: Cents::whole_dollars(240),
         registration_months_remaining: 6.0,
-        deductible: 500.0,
-        repair_estimate: 9_000.0,
-        salvage_value: 4_000.0,
+        deductible: Cents::whole_dollars(500),
+        repair_estimate: Cents::whole_dollars(9_000),
+        salvage_value: Cents::whole_dollars(4_000),
         owner_retains_salvage: false,
     }
 }
@@ -183,15 +184,15 @@ fn a_claim_pays_what_the_profile_pays_worked_by_hand() {
     let Some(WorksheetOutcome::Claim(c)) = &session.result.worksheet else {
         panic!("no claim");
     };
-    let acv = (session.result.indicated_value * 100.0).round() / 100.0;
-    assert_eq!(c.acv, acv);
-    // Tax = ACV × 6 %, to the cent; fees 40 + 20 = 60; registration not paid; deductible 500.
-    let tax = (acv * 0.06 * 100.0).round() / 100.0;
+    let acv = (session.result.indicated_value * 100.0).round() as i64;
+    assert_eq!(c.acv, Cents::new(acv));
+    // Tax = ACV × 6 %, to the cent (half away from zero); fees 40 + 20 = 60; registration not
+    // paid; deductible 500.
+    let tax = (acv * 6 + 50) / 100;
     assert_eq!(c.settlement.additions.len(), 2);
-    assert_eq!(c.settlement.additions[0].amount, tax);
-    assert_eq!(c.settlement.additions[1].amount, 60.0);
-    let expected = ((acv + tax + 60.0 - 500.0) * 100.0).round() / 100.0;
-    assert_eq!(c.settlement.payment, expected);
+    assert_eq!(c.settlement.additions[0].amount, Cents::new(tax));
+    assert_eq!(c.settlement.additions[1].amount, Cents::whole_dollars(60));
+    assert_eq!(c.settlement.payment, Cents::new(acv + tax + 6_000 - 50_000));
     assert_eq!(c.not_paid.len(), 1);
     assert_eq!(c.not_paid[0].label, "registration");
     // Repair 9,000 on an ACV near $30,600 is about 29 %: not a total loss under 75 %.
@@ -200,7 +201,7 @@ fn a_claim_pays_what_the_profile_pays_worked_by_hand() {
         TotalLossRule::Percentage { threshold_pct, .. } if threshold_pct == 75.0
     ));
     assert!(!c.verdict.total_loss);
-    assert!((c.verdict.measure - 100.0 * 9_000.0 / acv).abs() < 1e-9);
+    assert!((c.verdict.measure - 100.0 * 9_000.0 / c.acv.dollars()).abs() < 1e-9);
 }
 
 #[test]

@@ -3,9 +3,10 @@
 //! leaves the old file whole.
 
 use acceptance::{data_path, demo_session, repo_path, scratch_dir};
+use model::money::Cents;
 use model::session::{
-    Purpose, SessionError, WorksheetOutcome, parse_session, read_session, reproduce,
-    session_to_ron, write_session,
+    Purpose, SESSION_FORMAT_VERSION, SessionError, WorksheetOutcome, format_version_of,
+    parse_session, read_session, reproduce, session_to_ron, write_session,
 };
 use model::worksheet::{HoldingCost, Line, TradeInInputs};
 
@@ -17,18 +18,20 @@ const SAMPLES: [&str; 3] = [
 
 fn trade_in() -> Purpose {
     Purpose::TradeIn(TradeInInputs {
-        retail_value: 0.0,
+        retail_value: Cents::ZERO,
         retail_value_note: None,
         list_to_sale_discount_pct: 4.0,
         recon: vec![Line {
             label: "brakes".into(),
-            amount: 640.0,
+            amount: Cents::whole_dollars(640),
         }],
-        transport_and_fees: 300.0,
-        pack: 500.0,
-        target_front_gross: 1_800.0,
+        transport_and_fees: Cents::whole_dollars(300),
+        pack: Cents::whole_dollars(500),
+        target_front_gross: Cents::whole_dollars(1_800),
         days_to_sell: 40.0,
-        holding: HoldingCost::PerDay { amount: 30.0 },
+        holding: HoldingCost::PerDay {
+            amount: Cents::whole_dollars(30),
+        },
     })
 }
 
@@ -102,8 +105,8 @@ fn a_session_reproduces_after_its_market_file_is_deleted() {
     let r = reproduce(&reopened).unwrap();
     assert!(r.reproduces(), "{:?}", r.differences);
     assert_eq!(
-        r.outcome.bottom_line().map(|b| (b.1 * 100.0).round()),
-        session.result.bottom_line().map(|b| (b.1 * 100.0).round())
+        r.outcome.bottom_line().map(|b| b.1),
+        session.result.bottom_line().map(|b| b.1)
     );
 }
 
@@ -173,13 +176,15 @@ fn a_missing_field_is_named() {
 #[test]
 fn a_session_from_a_newer_version_is_refused_with_both_versions() {
     let text = session_to_ron(&demo_session(trade_in(), None)).unwrap();
-    let newer = text.replacen("format_version: 2,", "format_version: 7,", 1);
+    let current = format!("format_version: {SESSION_FORMAT_VERSION},");
+    assert!(text.contains(&current));
+    let newer = text.replacen(&current, "format_version: 70,", 1);
     let e = parse_session(&newer, "new.ron").unwrap_err();
     assert!(matches!(
         e,
         SessionError::NewerVersion {
-            found: 7,
-            supported: 2,
+            found: 70,
+            supported: SESSION_FORMAT_VERSION,
             ..
         }
     ));
@@ -192,7 +197,7 @@ fn a_format_1_session_is_migrated_and_still_reproduces() {
     // market file's absolute path. Its optional `segment_listings` (500 KB) were cut to `None`
     // by hand before committing; the evidence the value rests on is as written.
     let session = read_session(&data_path("sessions/format-1-trade-in.ron")).unwrap();
-    assert_eq!(session.format_version, 2);
+    assert_eq!(session.format_version, SESSION_FORMAT_VERSION);
     assert_eq!(
         session.market.location.absolute.as_deref(),
         Some("/work/main/assets/demo-market.csv")
@@ -200,6 +205,38 @@ fn a_format_1_session_is_migrated_and_still_reproduces() {
     assert_eq!(session.market.location.from_session, None);
     let r = reproduce(&session).unwrap();
     assert!(r.reproduces(), "{:?}", r.differences);
+}
+
+#[test]
+fn format_2_sessions_are_migrated_and_still_reproduce() {
+    // Written by session format 2 (the sample sessions before format 3; their optional
+    // `segment_listings` cut to `None` by hand). Format 2 kept the trade-in's retail value as
+    // the indicated value unrounded (30632.37761410849); format 3 keeps whole cents, and the
+    // migration rounds it, as format 2's worksheet did before paying it.
+    for name in ["format-2-dealer-trade-in", "format-2-total-loss-claim"] {
+        let path = data_path(&format!("sessions/{name}.ron"));
+        let text = std::fs::read_to_string(&path).unwrap();
+        assert_eq!(format_version_of(&text), Some(2), "{name}");
+        let session = read_session(&path).unwrap();
+        assert_eq!(session.format_version, SESSION_FORMAT_VERSION);
+        let r = reproduce(&session).unwrap();
+        assert!(r.reproduces(), "{name}: {:?}", r.differences);
+        // Written again, it is a current session that reads back as itself.
+        let again = parse_session(&session_to_ron(&session).unwrap(), "again.ron").unwrap();
+        assert_eq!(again, session, "{name}");
+    }
+    // The same text, declared as the current format, is refused for its fraction of a cent:
+    // only older formats are rounded on reading.
+    let text = std::fs::read_to_string(data_path("sessions/format-2-dealer-trade-in.ron")).unwrap();
+    let as_current = text.replacen(
+        "format_version: 2,",
+        &format!("format_version: {SESSION_FORMAT_VERSION},"),
+        1,
+    );
+    let e = parse_session(&as_current, "edited.ron")
+        .unwrap_err()
+        .to_string();
+    assert!(e.contains("fraction of a cent"), "{e}");
 }
 
 #[test]

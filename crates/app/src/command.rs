@@ -97,7 +97,7 @@ pub fn apply(document: &mut AppraisalDocument, command: Command) -> bool {
         Command::SetLevel(level) => document.level = level.clamp(0.5, 0.99),
         Command::SetComparableCount(count) => document.rules.count = count.clamp(1, 30),
         Command::AddUserAdjustment(line) => {
-            if line.amount.is_finite() && !line.basis.trim().is_empty() {
+            if line.amount != model::money::Cents::ZERO && !line.basis.trim().is_empty() {
                 document.user_adjustments.push(line);
             }
         }

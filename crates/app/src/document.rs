@@ -9,7 +9,7 @@ use model::clean::Overrides;
 use model::comparables::{ComparableChoices, ComparableRules};
 use model::session::{Purpose, Session};
 use model::subject::Subject;
-use model::worksheet::{ClaimInputs, HoldingCost, JurisdictionProfile, Line, TradeInInputs};
+use model::worksheet::{ClaimInputs, JurisdictionProfile, TradeInInputs};
 use serde::{Deserialize, Serialize};
 
 /// Where the market comes from.
@@ -140,24 +140,10 @@ impl AppraisalDocument {
     }
 }
 
-/// A trade-in worksheet with the usual starting figures (common practice, no source; every
-/// one is the user's to change).
+/// A trade-in worksheet with the usual starting figures (see [`TradeInInputs::usual`]).
 #[must_use]
 pub fn default_trade_in() -> TradeInInputs {
-    TradeInInputs {
-        retail_value: 0.0,
-        retail_value_note: None,
-        list_to_sale_discount_pct: 4.0,
-        recon: vec![Line {
-            label: "detail and inspection".into(),
-            amount: 300.0,
-        }],
-        transport_and_fees: 300.0,
-        pack: 500.0,
-        target_front_gross: 2_000.0,
-        days_to_sell: 45.0,
-        holding: HoldingCost::PerDay { amount: 30.0 },
-    }
+    TradeInInputs::usual()
 }
 
 /// A claim worksheet under `profile`, with zero amounts for the adjuster to fill in.
@@ -169,20 +155,9 @@ pub fn default_claim(profile: JurisdictionProfile) -> Purpose {
     }
 }
 
-/// The claim inputs a new claim worksheet under `profile` starts from: a $500 deductible and
-/// zero for every other amount.
+/// The claim inputs a new claim worksheet under `profile` starts from (see
+/// [`ClaimInputs::starting`]).
 #[must_use]
 pub fn default_claim_inputs(profile: &JurisdictionProfile) -> ClaimInputs {
-    ClaimInputs {
-        profile_id: profile.id.clone(),
-        sales_tax_pct: 0.0,
-        title_fee: 0.0,
-        transfer_fee: 0.0,
-        annual_registration: 0.0,
-        registration_months_remaining: 0.0,
-        deductible: 500.0,
-        repair_estimate: 0.0,
-        salvage_value: 0.0,
-        owner_retains_salvage: false,
-    }
+    ClaimInputs::starting(&profile.id)
 }

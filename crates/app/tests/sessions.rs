@@ -33,7 +33,7 @@ fn workbench_on(document: AppraisalDocument) -> Workbench {
     wb
 }
 
-fn bottom_line(wb: &Workbench) -> f64 {
+fn bottom_line(wb: &Workbench) -> model::money::Cents {
     let doc = wb.document();
     let outcome = work_out(
         &doc.purpose,
@@ -107,9 +107,9 @@ fn a_claim_shows_the_settlement_the_profile_check_and_the_cautions() {
     let ny = wb.profiles().get("ny").unwrap().clone();
     let mut inputs = default_claim_inputs(&ny);
     inputs.sales_tax_pct = 8.0;
-    inputs.title_fee = 50.0;
-    inputs.repair_estimate = 25_000.0;
-    inputs.salvage_value = 5_000.0;
+    inputs.title_fee = model::money::Cents::whole_dollars(50);
+    inputs.repair_estimate = model::money::Cents::whole_dollars(25_000);
+    inputs.salvage_value = model::money::Cents::whole_dollars(5_000);
     wb.apply(Command::ChoosePurpose(Purpose::Claim {
         profile: ny,
         inputs,

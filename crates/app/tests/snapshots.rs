@@ -64,10 +64,10 @@ fn the_claim_worksheet_looks_as_it_should() {
     let ny = wb.profiles().get("ny").unwrap().clone();
     let mut inputs = default_claim_inputs(&ny);
     inputs.sales_tax_pct = 8.0;
-    inputs.title_fee = 50.0;
-    inputs.transfer_fee = 25.0;
-    inputs.repair_estimate = 24_000.0;
-    inputs.salvage_value = 5_000.0;
+    inputs.title_fee = model::money::Cents::whole_dollars(50);
+    inputs.transfer_fee = model::money::Cents::whole_dollars(25);
+    inputs.repair_estimate = model::money::Cents::whole_dollars(24_000);
+    inputs.salvage_value = model::money::Cents::whole_dollars(5_000);
     wb.apply(Command::ChoosePurpose(Purpose::Claim {
         profile: ny,
         inputs,

@@ -286,7 +286,7 @@ fn your_own_adjustment_lines_are_itemized_and_removable() {
         model::adjustment::UserAdjustment {
             line: None,
             kind: model::adjustment::AdjustmentKind::PriorDamage,
-            amount: -750.0,
+            amount: model::money::Cents::whole_dollars(-750),
             basis: "subject has a repaired rear quarter panel".into(),
         },
     ));

@@ -165,6 +165,9 @@ fn fit(args: &MarketArgs) -> Result<()> {
     })
 }
 
+/// Largest adjustment of the appraiser's own, either way, in dollars.
+const MAX_ADJUSTMENT_DOLLARS: f64 = 1e7;
+
 fn parse_adjustment(spec: &str) -> Result<UserAdjustment> {
     let parts: Vec<&str> = spec.splitn(4, ':').collect();
     let [kind, amount, basis, rest @ ..] = parts.as_slice() else {
@@ -176,7 +179,13 @@ fn parse_adjustment(spec: &str) -> Result<UserAdjustment> {
         format!("--adjust '{spec}': kind '{kind}' is not options, prior-damage, condition or other")
     })?;
     let amount = model::import::parse_number(amount)
-        .with_context(|| format!("--adjust '{spec}': amount '{amount}' is not a number"))?;
+        .filter(|a| a.abs() <= MAX_ADJUSTMENT_DOLLARS)
+        .and_then(|a| model::money::Cents::from_dollars(a).ok())
+        .with_context(|| {
+            format!(
+                "--adjust '{spec}': amount '{amount}' must be dollars and cents from -10,000,000 to 10,000,000"
+            )
+        })?;
     if basis.trim().is_empty() {
         bail!("--adjust '{spec}': every adjustment needs its basis");
     }

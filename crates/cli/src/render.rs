@@ -205,7 +205,7 @@ pub fn appraisal(doc: &AppraisalDocument) -> String {
     o
 }
 
-fn amount_line(o: &mut String, label: &str, amount: f64) {
+fn amount_line(o: &mut String, label: &str, amount: impl model::format::Dollars) {
     let _ = writeln!(
         o,
         "  {label:<58} {:>12}",

@@ -139,7 +139,7 @@ pub enum MarketFileStatus {
 pub struct Numbers {
     pub indicated_value: f64,
     pub value_band: model::ols::Interval,
-    pub bottom_line: Option<(&'static str, f64)>,
+    pub bottom_line: Option<(&'static str, model::money::Cents)>,
     pub total_loss: Option<bool>,
 }
 

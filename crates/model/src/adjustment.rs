@@ -12,6 +12,7 @@ use crate::condition::Condition;
 use crate::format::{signed_money, thousands};
 use crate::hedonic::{HedonicModel, age_years};
 use crate::market::Market;
+use crate::money::Cents;
 use crate::vocabulary::NameId;
 
 /// What an adjustment line corrects for.
@@ -80,8 +81,8 @@ pub struct UserAdjustment {
     pub line: Option<u64>,
     /// What it corrects for.
     pub kind: AdjustmentKind,
-    /// Amount in currency added to the comparable's price.
-    pub amount: f64,
+    /// Amount added to the comparable's price, in whole cents as the appraiser entered it.
+    pub amount: Cents,
     /// The appraiser's basis (required: every dollar needs one).
     pub basis: String,
 }
@@ -225,7 +226,7 @@ pub fn user_lines(user: &[UserAdjustment], line: u64) -> Vec<AdjustmentLine> {
         .filter(|u| u.line.is_none_or(|l| l == line))
         .map(|u| AdjustmentLine {
             kind: u.kind,
-            amount: u.amount,
+            amount: u.amount.dollars(),
             basis: format!(
                 "{} ({})",
                 u.basis,

@@ -1,5 +1,25 @@
 //! Number formatting shared by the command line, the workbench and reports.
 
+use crate::money::Cents;
+
+/// An amount that can be shown in dollars: a statistical `f64` or exact [`Cents`].
+pub trait Dollars: Copy {
+    /// The amount in dollars.
+    fn in_dollars(self) -> f64;
+}
+
+impl Dollars for f64 {
+    fn in_dollars(self) -> f64 {
+        self
+    }
+}
+
+impl Dollars for Cents {
+    fn in_dollars(self) -> f64 {
+        self.dollars()
+    }
+}
+
 /// 48000 → "48,000" (rounded to a whole number).
 #[must_use]
 pub fn thousands(value: f64) -> String {
@@ -18,7 +38,8 @@ pub fn thousands(value: f64) -> String {
 
 /// 24499.6 → "$24,500"; -812 → "-$812".
 #[must_use]
-pub fn money(value: f64) -> String {
+pub fn money(value: impl Dollars) -> String {
+    let value = value.in_dollars();
     if value.round() < 0.0 {
         format!("-${}", thousands(-value))
     } else {
@@ -28,7 +49,8 @@ pub fn money(value: f64) -> String {
 
 /// 812 → "+$812", -812 → "-$812": for adjustments, whose sign matters.
 #[must_use]
-pub fn signed_money(value: f64) -> String {
+pub fn signed_money(value: impl Dollars) -> String {
+    let value = value.in_dollars();
     if value.round() > 0.0 {
         format!("+{}", money(value))
     } else {
@@ -38,7 +60,8 @@ pub fn signed_money(value: f64) -> String {
 
 /// 22708.674 → "$22,708.67"; -1000 → "-$1,000.00": worksheet amounts, paid to the cent.
 #[must_use]
-pub fn cents(value: f64) -> String {
+pub fn cents(value: impl Dollars) -> String {
+    let value = value.in_dollars();
     let total = (value * 100.0).round();
     let sign = if total < 0.0 { "-" } else { "" };
     let whole = (total.abs() / 100.0).trunc();
@@ -48,7 +71,8 @@ pub fn cents(value: f64) -> String {
 
 /// As [`cents`] with a "+" on positive amounts.
 #[must_use]
-pub fn signed_cents(value: f64) -> String {
+pub fn signed_cents(value: impl Dollars) -> String {
+    let value = value.in_dollars();
     if (value * 100.0).round() > 0.0 {
         format!("+{}", cents(value))
     } else {

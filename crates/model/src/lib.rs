@@ -23,6 +23,7 @@ pub mod hedonic;
 pub mod import;
 pub mod linalg;
 pub mod market;
+pub mod money;
 pub mod ols;
 pub mod rates;
 pub mod reconcile;

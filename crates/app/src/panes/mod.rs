@@ -21,6 +21,30 @@ use crate::command::Command;
 use crate::document::AppraisalDocument;
 use crate::selection::Selection;
 
+/// Adds a drag field for an amount in whole cents (dollars on screen, at most two decimals),
+/// between `0` and `max_dollars`; the amount changes only to a whole number of cents.
+pub fn cents_drag(
+    ui: &mut Ui,
+    value: &mut model::money::Cents,
+    max_dollars: f64,
+    speed: f64,
+) -> egui::Response {
+    let mut dollars = value.dollars();
+    let response = ui.add(
+        egui::DragValue::new(&mut dollars)
+            .prefix("$")
+            .speed(speed)
+            .max_decimals(2)
+            .range(0.0..=max_dollars),
+    );
+    if response.changed() {
+        if let Ok(cents) = model::money::Cents::round_dollars(dollars) {
+            *value = cents;
+        }
+    }
+    response
+}
+
 /// Most listings a chart draws one by one; with more in view it draws the density grid
 /// ([`density`]) and says so (the comparables and the subject are always drawn exactly).
 pub const MAX_POINTS: usize = 20_000;

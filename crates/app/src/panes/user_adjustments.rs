@@ -71,7 +71,8 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
             egui::DragValue::new(&mut draft.amount)
                 .speed(10.0)
                 .prefix("$")
-                .max_decimals(0),
+                .max_decimals(2)
+                .range(-1e7..=1e7),
         )
         .on_hover_text(
             "Amount added to the comparable's price; negative when the comparable is better",
@@ -103,19 +104,24 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
             })
             .response
             .labelled_by(target_label.id);
-        let ready = draft.amount != 0.0 && !draft.basis.trim().is_empty();
+        let amount = model::money::Cents::round_dollars(draft.amount)
+            .ok()
+            .filter(|a| *a != model::money::Cents::ZERO);
+        let ready = amount.is_some() && !draft.basis.trim().is_empty();
         if ui
             .add_enabled(ready, egui::Button::new("Add adjustment"))
             .on_disabled_hover_text("Enter an amount and its basis: every dollar needs one")
             .clicked()
         {
-            cx.commands.push(Command::AddUserAdjustment(UserAdjustment {
-                line: draft.line,
-                kind: draft.kind,
-                amount: draft.amount,
-                basis: draft.basis.trim().to_owned(),
-            }));
-            draft = Draft::default();
+            if let Some(amount) = amount {
+                cx.commands.push(Command::AddUserAdjustment(UserAdjustment {
+                    line: draft.line,
+                    kind: draft.kind,
+                    amount,
+                    basis: draft.basis.trim().to_owned(),
+                }));
+                draft = Draft::default();
+            }
         }
     });
     ui.data_mut(|d| d.insert_temp(id, draft));

@@ -9,7 +9,7 @@ use super::Session;
 
 /// Format version this build writes. Files with a higher number are refused; lower numbers are
 /// migrated on reading.
-pub const SESSION_FORMAT_VERSION: u32 = 2;
+pub const SESSION_FORMAT_VERSION: u32 = 3;
 
 const HEADER: &str = "\
 // comptrail appraisal session. Human-readable on purpose: every comparable, every adjustment
@@ -207,12 +207,21 @@ pub fn parse_session(text: &str, source_name: &str) -> Result<Session, SessionEr
             });
         }
     }
-    if version == Ok(1) {
-        return ron::from_str::<super::legacy::SessionV1>(text)
-            .map(super::legacy::SessionV1::migrate)
-            .map_err(|e| syntax_error(text, source_name, &e));
+    match version {
+        Ok(1) => {
+            let _rounding = crate::money::RoundAmountsOnRead::begin();
+            ron::from_str::<super::legacy::SessionV1>(text)
+                .map(super::legacy::SessionV1::migrate)
+                .map_err(|e| syntax_error(text, source_name, &e))
+        }
+        Ok(2) => {
+            let _rounding = crate::money::RoundAmountsOnRead::begin();
+            ron::from_str::<super::legacy::SessionV2>(text)
+                .map(super::legacy::SessionV2::migrate)
+                .map_err(|e| syntax_error(text, source_name, &e))
+        }
+        _ => ron::from_str::<Session>(text).map_err(|e| syntax_error(text, source_name, &e)),
     }
-    ron::from_str::<Session>(text).map_err(|e| syntax_error(text, source_name, &e))
 }
 
 /// Reads a session file.

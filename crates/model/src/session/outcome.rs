@@ -5,6 +5,7 @@ use serde::{Deserialize, Serialize};
 use crate::adjustment::AdjustmentKind;
 use crate::adjustment::UserAdjustment;
 use crate::appraisal::{Appraisal, AppraisalRequest};
+use crate::money::Cents;
 use crate::ols::Interval;
 use crate::worksheet::{
     ClaimInputs, ClaimWorksheet, JurisdictionProfile, Line, OfferSensitivity, TradeInInputs,
@@ -76,7 +77,7 @@ pub struct Outcome {
 impl Outcome {
     /// The worksheet's bottom line: the offer, or the claim payment.
     #[must_use]
-    pub fn bottom_line(&self) -> Option<(&'static str, f64)> {
+    pub fn bottom_line(&self) -> Option<(&'static str, Cents)> {
         match &self.worksheet {
             Some(WorksheetOutcome::TradeIn { offer, .. }) => Some(("ACV offer", offer.offer)),
             Some(WorksheetOutcome::Claim(c)) => Some(("settlement payment", c.settlement.payment)),
@@ -88,7 +89,7 @@ impl Outcome {
 /// The trade-in inputs with the retail value the worksheet uses: the indicated value unless
 /// the appraiser edited it with a reason.
 #[must_use]
-pub fn trade_in_inputs(inputs: &TradeInInputs, indicated_value: f64) -> TradeInInputs {
+pub fn trade_in_inputs(inputs: &TradeInInputs, indicated_value: Cents) -> TradeInInputs {
     let mut inputs = inputs.clone();
     if inputs
         .retail_value_note
@@ -120,7 +121,17 @@ pub fn itemized_deductions(user: &[UserAdjustment]) -> Vec<Line> {
         .collect()
 }
 
-/// Works out the purpose's worksheet from an appraisal made for `request`.
+/// A statistical value (the indicated value, a band end) as money, to the cent.
+fn as_money(field: &'static str, dollars: f64) -> Result<Cents, WorksheetError> {
+    Cents::round_dollars(dollars).map_err(|_| WorksheetError::BadInput {
+        field,
+        value: dollars,
+        why: "a finite amount of at most $10,000,000,000",
+    })
+}
+
+/// Works out the purpose's worksheet from an appraisal made for `request`. The indicated value
+/// becomes money here, rounded once to the cent; everything after is worked in whole cents.
 pub fn work_out(
     purpose: &Purpose,
     appraisal: &Appraisal,
@@ -131,13 +142,13 @@ pub fn work_out(
     let worksheet = match purpose {
         Purpose::Value => None,
         Purpose::TradeIn(inputs) => {
-            let inputs = trade_in_inputs(inputs, value);
+            let inputs = trade_in_inputs(inputs, as_money("indicated value", value)?);
             let worked = offer(&inputs)?;
             let sensitivity = OfferSensitivity::of(
                 &inputs,
                 &SENSITIVITY_DAYS,
-                r.value_band.lower,
-                r.value_band.upper,
+                as_money("value band, low", r.value_band.lower)?,
+                as_money("value band, high", r.value_band.upper)?,
             )?;
             Some(WorksheetOutcome::TradeIn {
                 offer: worked,
@@ -149,7 +160,7 @@ pub fn work_out(
             Some(WorksheetOutcome::Claim(claim(
                 profile,
                 inputs,
-                value,
+                as_money("indicated value", value)?,
                 itemized_deductions(&request.user_adjustments),
                 check,
             )?))

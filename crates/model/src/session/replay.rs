@@ -7,7 +7,9 @@ use super::Session;
 use super::outcome::{Outcome, WorksheetOutcome, work_out};
 use crate::adjustment::user_lines;
 use crate::appraisal::{AdjustedComparable, Appraisal, reconcile_comparables};
+use crate::money::Cents;
 use crate::rates::RatesError;
+use crate::worksheet::Line;
 use crate::worksheet::WorksheetError;
 
 /// Why a session's evidence cannot be recomputed.
@@ -55,7 +57,9 @@ pub struct Reproduction {
     pub appraisal: Appraisal,
     /// Its outcome.
     pub outcome: Outcome,
-    /// Every saved number that differs by a cent or more (weights: by 1e-9).
+    /// Every saved number that does not reproduce: a worksheet amount that is not the same
+    /// whole number of cents, a statistical amount that fails [`reproduces_to_the_cent`], a
+    /// weight that differs by 1e-9 or more.
     pub differences: Vec<Difference>,
 }
 
@@ -67,18 +71,56 @@ impl Reproduction {
     }
 }
 
+/// Whether a recomputed statistical amount (`now`, in dollars) reproduces a stored one: it
+/// rounds to the same cent, or differs by less than half a cent before rounding. The second
+/// rule keeps a difference of 1e-12 that straddles a half cent (from another platform or
+/// library version) from reading as a failure; together they never pass a difference of a
+/// whole cent. A number that is not finite never reproduces.
+#[must_use]
+pub fn reproduces_to_the_cent(stored: f64, now: f64) -> bool {
+    if !(stored.is_finite() && now.is_finite()) {
+        return false;
+    }
+    // Rounded cents are whole numbers far inside f64's exact range: equality is exact.
+    #[allow(clippy::float_cmp)]
+    let same_cent = (stored * 100.0).round() == (now * 100.0).round();
+    same_cent || (stored - now).abs() < 0.005
+}
+
 struct Comparer(Vec<Difference>);
 
 impl Comparer {
     fn money(&mut self, what: impl Into<String>, stored: f64, now: f64) {
-        let cents = |x: f64| (x * 100.0).round();
-        // NaN compares unequal, so a damaged number is reported too.
-        if cents(stored).total_cmp(&cents(now)) != std::cmp::Ordering::Equal || stored.is_nan() {
+        if !reproduces_to_the_cent(stored, now) {
             self.0.push(Difference {
                 what: what.into(),
                 stored,
                 now,
             });
+        }
+    }
+
+    /// Worksheet amounts are whole cents: they reproduce only when equal.
+    fn cents(&mut self, what: impl Into<String>, stored: Cents, now: Cents) {
+        if stored != now {
+            self.0.push(Difference {
+                what: what.into(),
+                stored: stored.dollars(),
+                now: now.dollars(),
+            });
+        }
+    }
+
+    fn lines(&mut self, what: &str, stored: &[Line], now: &[Line]) {
+        if stored.len() != now.len() {
+            self.fraction(
+                format!("{what}: number of lines"),
+                stored.len() as f64,
+                now.len() as f64,
+            );
+        }
+        for (s, n) in stored.iter().zip(now) {
+            self.cents(format!("{what}: {}", s.label), s.amount, n.amount);
         }
     }
 
@@ -147,6 +189,34 @@ pub fn reproduce(session: &Session) -> Result<Reproduction, ReplayError> {
     })
 }
 
+/// Every worksheet line, to the cent.
+fn compare_worksheets(d: &mut Comparer, stored: &Outcome, now: &Outcome) {
+    match (&stored.worksheet, &now.worksheet) {
+        (
+            Some(WorksheetOutcome::TradeIn { offer: s, .. }),
+            Some(WorksheetOutcome::TradeIn { offer: n, .. }),
+        ) => {
+            d.cents("retail value", s.retail_value, n.retail_value);
+            d.cents("expected sale", s.expected_sale, n.expected_sale);
+            d.lines("trade-in deductions", &s.deductions, &n.deductions);
+        }
+        (Some(WorksheetOutcome::Claim(s)), Some(WorksheetOutcome::Claim(n))) => {
+            d.cents("ACV", s.acv, n.acv);
+            d.lines(
+                "settlement additions",
+                &s.settlement.additions,
+                &n.settlement.additions,
+            );
+            d.lines(
+                "settlement deductions",
+                &s.settlement.deductions,
+                &n.settlement.deductions,
+            );
+        }
+        _ => {}
+    }
+}
+
 fn compare(session: &Session, appraisal: &Appraisal, outcome: &Outcome) -> Vec<Difference> {
     let mut d = Comparer(Vec::new());
     let saved = &session.appraisal;
@@ -204,8 +274,9 @@ fn compare(session: &Session, appraisal: &Appraisal, outcome: &Outcome) -> Vec<D
         stored.value_band.upper,
         outcome.value_band.upper,
     );
+    compare_worksheets(&mut d, stored, outcome);
     match (stored.bottom_line(), outcome.bottom_line()) {
-        (Some((label, s)), Some((_, n))) => d.money(label, s, n),
+        (Some((label, s)), Some((_, n))) => d.cents(label, s, n),
         (None, None) => {}
         (s, n) => d.fraction(
             "worksheet present",

@@ -25,13 +25,6 @@ pub use trade_in::{
 pub struct Line {
     /// What it is.
     pub label: String,
-    /// Amount in currency (deductions positive; the worksheet says which way it goes).
-    pub amount: f64,
-}
-
-/// Rounds an amount to the cent: every worksheet line is a payable amount, and the bottom line
-/// is the sum of the lines as printed.
-#[must_use]
-pub fn to_cents(amount: f64) -> f64 {
-    (amount * 100.0).round() / 100.0
+    /// Amount in whole cents (deductions positive; the worksheet says which way it goes).
+    pub amount: crate::money::Cents,
 }

@@ -7,11 +7,13 @@
 //! given here as inputs. Total-loss test: either repair / ACV against a threshold T, or the
 //! total-loss formula repair + salvage against ACV; whether the boundary counts is a setting.
 
+use std::cmp::Ordering;
+
 use serde::{Deserialize, Serialize};
 
-use super::trade_in::WorksheetError;
-use super::{Line, to_cents};
-use crate::format::cents;
+use super::Line;
+use super::trade_in::{WorksheetError, amount, decimal_in};
+use crate::money::{Cents, Decimal};
 
 /// Whether reaching the threshold exactly makes a total loss.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
@@ -24,10 +26,21 @@ pub enum Boundary {
 }
 
 impl Boundary {
-    fn reached(self, measure: f64, threshold: f64) -> bool {
+    /// Whether a measure that compares with the threshold as `ordering` is a total loss.
+    #[must_use]
+    pub fn reached(self, ordering: Ordering) -> bool {
         match self {
-            Boundary::AtLeast => measure >= threshold,
-            Boundary::GreaterThan => measure > threshold,
+            Boundary::AtLeast => ordering != Ordering::Less,
+            Boundary::GreaterThan => ordering == Ordering::Greater,
+        }
+    }
+
+    /// "≥" or ">".
+    #[must_use]
+    pub fn sign(self) -> &'static str {
+        match self {
+            Boundary::AtLeast => "≥",
+            Boundary::GreaterThan => ">",
         }
     }
 }
@@ -38,7 +51,7 @@ impl Boundary {
 pub enum TotalLossRule {
     /// Repair cost as a percentage of ACV against a threshold.
     Percentage {
-        /// Threshold, percent of ACV.
+        /// Threshold, percent of ACV (exact to a millionth of a point).
         threshold_pct: f64,
         /// Boundary.
         boundary: Boundary,
@@ -53,85 +66,100 @@ pub enum TotalLossRule {
 /// The outcome of the total-loss test, with its inputs.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct TotalLossVerdict {
-    /// Whether the vehicle is a total loss.
+    /// Whether the vehicle is a total loss, decided exactly on whole cents.
     pub total_loss: bool,
-    /// The measure compared (percent of ACV, or repair + salvage in currency).
+    /// The measure compared (percent of ACV, or repair + salvage in dollars), for display.
     pub measure: f64,
-    /// What it was compared with.
+    /// What it was compared with (percent, or the ACV in dollars), for display.
     pub threshold: f64,
     /// The comparison in words.
     pub explanation: String,
 }
 
-/// Applies `rule` to a repair estimate and salvage value.
-pub fn total_loss_test(
-    rule: TotalLossRule,
-    acv: f64,
-    repair_estimate: f64,
-    salvage_value: f64,
-) -> Result<TotalLossVerdict, WorksheetError> {
-    for (field, value) in [
-        ("acv", acv),
-        ("repair_estimate", repair_estimate),
-        ("salvage_value", salvage_value),
-    ] {
-        if !(value.is_finite() && value >= 0.0) {
-            return Err(WorksheetError::BadInput {
-                field,
-                value,
-                why: "a non-negative amount",
-            });
+/// How `100 · repair / acv` compares with `threshold` %, exactly: `100 · repair · 10^6`
+/// against `threshold (in millionths) · acv`, in integers.
+#[must_use]
+pub fn percentage_ordering(repair: Cents, acv: Cents, threshold: Decimal) -> Ordering {
+    let lhs = 100 * 1_000_000 * i128::from(repair.get());
+    let rhs = i128::from(threshold.micros()) * i128::from(acv.get());
+    lhs.cmp(&rhs)
+}
+
+/// `measure` with as many decimals (2 to 9) as it takes for the printed number to stand on the
+/// same side of `threshold` as the exact comparison: 74.9999 % is never printed "75.00 %"
+/// beside a "no" under "≥ 75 %".
+fn percent_beside(measure: f64, threshold: f64, exact: Ordering) -> String {
+    for decimals in 2..=9 {
+        let text = format!("{measure:.decimals$}");
+        let shown: f64 = text.parse().unwrap_or(measure);
+        if shown.partial_cmp(&threshold) == Some(exact) {
+            return text;
         }
     }
-    if acv <= 0.0 {
+    let side = match exact {
+        Ordering::Less => "just under ",
+        Ordering::Greater => "just over ",
+        Ordering::Equal => "",
+    };
+    format!("{side}{threshold}")
+}
+
+/// Applies `rule` to a repair estimate and salvage value; the verdict is decided on whole
+/// cents, so a sum that reaches the ACV to the cent reaches it.
+pub fn total_loss_test(
+    rule: TotalLossRule,
+    acv: Cents,
+    repair_estimate: Cents,
+    salvage_value: Cents,
+) -> Result<TotalLossVerdict, WorksheetError> {
+    let acv = amount("acv", acv)?;
+    let repair_estimate = amount("repair_estimate", repair_estimate)?;
+    let salvage_value = amount("salvage_value", salvage_value)?;
+    if acv == Cents::ZERO {
         return Err(WorksheetError::BadInput {
             field: "acv",
-            value: acv,
+            value: 0.0,
             why: "a positive amount",
         });
     }
-    let sign = |b: Boundary| {
-        if matches!(b, Boundary::AtLeast) {
-            "≥"
-        } else {
-            ">"
-        }
-    };
+    let yes_no = |b: bool| if b { "yes" } else { "no" };
     Ok(match rule {
         TotalLossRule::Percentage {
             threshold_pct,
             boundary,
         } => {
-            let measure = 100.0 * repair_estimate / acv;
-            let total_loss = boundary.reached(measure, threshold_pct);
+            let threshold = decimal_in(
+                "total-loss threshold",
+                threshold_pct,
+                1_000.0,
+                "0 to 1,000 % of ACV",
+            )?;
+            let exact = percentage_ordering(repair_estimate, acv, threshold);
+            let total_loss = boundary.reached(exact);
+            let measure = 100.0 * repair_estimate.dollars() / acv.dollars();
             TotalLossVerdict {
                 total_loss,
                 measure,
-                threshold: threshold_pct,
+                threshold: threshold.to_f64(),
                 explanation: format!(
-                    "repair {} is {measure:.2} % of ACV {}; total loss when {} {threshold_pct} %: {}",
-                    cents(repair_estimate),
-                    cents(acv),
-                    sign(boundary),
-                    if total_loss { "yes" } else { "no" }
+                    "repair {repair_estimate} is {} % of ACV {acv}; total loss when {} {threshold} %: {}",
+                    percent_beside(measure, threshold.to_f64(), exact),
+                    boundary.sign(),
+                    yes_no(total_loss)
                 ),
             }
         }
         TotalLossRule::Formula { boundary } => {
             let measure = repair_estimate + salvage_value;
-            let total_loss = boundary.reached(measure, acv);
+            let total_loss = boundary.reached(measure.cmp(&acv));
             TotalLossVerdict {
                 total_loss,
-                measure,
-                threshold: acv,
+                measure: measure.dollars(),
+                threshold: acv.dollars(),
                 explanation: format!(
-                    "repair {} + salvage {} = {}; total loss when {} ACV {}: {}",
-                    cents(repair_estimate),
-                    cents(salvage_value),
-                    cents(measure),
-                    sign(boundary),
-                    cents(acv),
-                    if total_loss { "yes" } else { "no" }
+                    "repair {repair_estimate} + salvage {salvage_value} = {measure}; total loss when {} ACV {acv}: {}",
+                    boundary.sign(),
+                    yes_no(total_loss)
                 ),
             }
         }
@@ -142,19 +170,19 @@ pub fn total_loss_test(
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct SettlementInputs {
     /// Actual cash value (the reconciled value, after any itemized deductions).
-    pub acv: f64,
+    pub acv: Cents,
     /// Sales tax rate, percent, when the jurisdiction pays it.
     pub sales_tax_pct: f64,
     /// Title and transfer fees.
-    pub title_and_transfer_fees: f64,
+    pub title_and_transfer_fees: Cents,
     /// Annual registration fee.
-    pub annual_registration: f64,
+    pub annual_registration: Cents,
     /// Months of registration remaining (prorated).
     pub registration_months_remaining: f64,
     /// Policy deductible.
-    pub deductible: f64,
+    pub deductible: Cents,
     /// Salvage value deducted when the owner keeps the vehicle; `None` when the insurer takes it.
-    pub owner_retains_salvage: Option<f64>,
+    pub owner_retains_salvage: Option<Cents>,
 }
 
 /// The settlement with each part shown.
@@ -164,78 +192,49 @@ pub struct Settlement {
     pub additions: Vec<Line>,
     /// Deductions (deductible, retained salvage).
     pub deductions: Vec<Line>,
-    /// The amount paid.
-    pub payment: f64,
+    /// The amount paid: the ACV plus the additions less the deductions, to the cent.
+    pub payment: Cents,
 }
 
-/// Computes the settlement.
+/// Computes the settlement: each line is worked exactly in cents (a rate is an exact decimal)
+/// and rounded once; the payment is the sum of the lines as printed.
 pub fn settle(inputs: &SettlementInputs) -> Result<Settlement, WorksheetError> {
-    let fields = [
-        ("acv", inputs.acv),
-        ("sales_tax_pct", inputs.sales_tax_pct),
-        ("title_and_transfer_fees", inputs.title_and_transfer_fees),
-        ("annual_registration", inputs.annual_registration),
-        (
-            "registration_months_remaining",
-            inputs.registration_months_remaining,
-        ),
-        ("deductible", inputs.deductible),
-        (
-            "owner_retains_salvage",
-            inputs.owner_retains_salvage.unwrap_or(0.0),
-        ),
-    ];
-    for (field, value) in fields {
-        if !(value.is_finite() && value >= 0.0) {
-            return Err(WorksheetError::BadInput {
-                field,
-                value,
-                why: "a non-negative amount",
-            });
-        }
-    }
-    if inputs.registration_months_remaining > 12.0 {
-        return Err(WorksheetError::BadInput {
-            field: "registration_months_remaining",
-            value: inputs.registration_months_remaining,
-            why: "0 to 12 months",
-        });
-    }
-    // The ACV is paid to the cent; each line is rounded and the payment is their sum.
-    let acv = to_cents(inputs.acv);
+    let acv = amount("acv", inputs.acv)?;
+    let tax = decimal_in("sales_tax_pct", inputs.sales_tax_pct, 100.0, "0 to 100 %")?;
+    let months = decimal_in(
+        "registration_months_remaining",
+        inputs.registration_months_remaining,
+        12.0,
+        "0 to 12 months",
+    )?;
+    let fees = amount("title_and_transfer_fees", inputs.title_and_transfer_fees)?;
+    let registration = amount("annual_registration", inputs.annual_registration)?;
     let additions = vec![
         Line {
-            label: format!("sales tax {} %", inputs.sales_tax_pct),
-            amount: to_cents(acv * inputs.sales_tax_pct / 100.0),
+            label: format!("sales tax {tax} %"),
+            amount: acv.percent(tax),
         },
         Line {
             label: "title and transfer fees".into(),
-            amount: to_cents(inputs.title_and_transfer_fees),
+            amount: fees,
         },
         Line {
-            label: format!(
-                "registration, {} of 12 months remaining",
-                inputs.registration_months_remaining
-            ),
-            amount: to_cents(
-                inputs.annual_registration * inputs.registration_months_remaining / 12.0,
-            ),
+            label: format!("registration, {months} of 12 months remaining"),
+            amount: registration.scaled(i128::from(months.micros()), 12 * 1_000_000),
         },
     ];
     let mut deductions = vec![Line {
         label: "deductible".into(),
-        amount: to_cents(inputs.deductible),
+        amount: amount("deductible", inputs.deductible)?,
     }];
     if let Some(salvage) = inputs.owner_retains_salvage {
         deductions.push(Line {
             label: "salvage retained by the owner".into(),
-            amount: to_cents(salvage),
+            amount: amount("owner_retains_salvage", salvage)?,
         });
     }
-    let payment = to_cents(
-        acv + additions.iter().map(|l| l.amount).sum::<f64>()
-            - deductions.iter().map(|l| l.amount).sum::<f64>(),
-    );
+    let payment = acv + additions.iter().map(|l| l.amount).sum::<Cents>()
+        - deductions.iter().map(|l| l.amount).sum::<Cents>();
     Ok(Settlement {
         additions,
         deductions,
@@ -246,17 +245,13 @@ pub fn settle(inputs: &SettlementInputs) -> Result<Settlement, WorksheetError> {
 impl std::fmt::Display for TotalLossRule {
     /// "repair ≥ 75 % of ACV" or "repair + salvage ≥ ACV".
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        let sign = |b: Boundary| match b {
-            Boundary::AtLeast => "≥",
-            Boundary::GreaterThan => ">",
-        };
         match *self {
             TotalLossRule::Percentage {
                 threshold_pct,
                 boundary,
-            } => write!(f, "repair {} {threshold_pct} % of ACV", sign(boundary)),
+            } => write!(f, "repair {} {threshold_pct} % of ACV", boundary.sign()),
             TotalLossRule::Formula { boundary } => {
-                write!(f, "repair + salvage {} ACV", sign(boundary))
+                write!(f, "repair + salvage {} ACV", boundary.sign())
             }
         }
     }

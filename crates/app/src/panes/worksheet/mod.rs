@@ -137,16 +137,14 @@ fn input_row(ui: &mut Ui, label: &str, control: impl egui::Widget) -> bool {
     changed
 }
 
-/// A row for an amount of money.
-fn money_input(ui: &mut Ui, label: &str, value: &mut f64) -> bool {
-    input_row(
-        ui,
-        label,
-        egui::DragValue::new(value)
-            .prefix("$")
-            .speed(10.0)
-            .range(0.0..=1e7),
-    )
+/// A row for an amount of money, in whole cents.
+fn money_input(ui: &mut Ui, label: &str, value: &mut model::money::Cents) -> bool {
+    let label = ui.label(label);
+    let changed = super::cents_drag(ui, value, 1e7, 10.0)
+        .labelled_by(label.id)
+        .changed();
+    ui.end_row();
+    changed
 }
 
 fn amount_row(ui: &mut Ui, label: &str, amount: String) {

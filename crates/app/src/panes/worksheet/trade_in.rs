@@ -6,7 +6,9 @@ use model::format::money;
 use model::session::Purpose;
 use model::worksheet::{HoldingCost, Line, TradeInInputs};
 
-use super::super::{PaneContext, cached, fit_id, inputs_key};
+use model::money::Cents;
+
+use super::super::{PaneContext, cached, cents_drag, fit_id, inputs_key};
 use super::{input_row, money_input};
 use crate::command::Command;
 
@@ -46,7 +48,9 @@ pub fn inputs_ui(
             ui.horizontal(|ui| {
                 let per_day = matches!(edited.holding, HoldingCost::PerDay { .. });
                 if ui.radio(per_day, "per day").clicked() && !per_day {
-                    edited.holding = HoldingCost::PerDay { amount: 30.0 };
+                    edited.holding = HoldingCost::PerDay {
+                        amount: Cents::whole_dollars(30),
+                    };
                     changed = true;
                 }
                 if ui.radio(!per_day, "rate on the offer").clicked() && per_day {
@@ -55,14 +59,8 @@ pub fn inputs_ui(
                 }
                 match &mut edited.holding {
                     HoldingCost::PerDay { amount } => {
-                        changed |= ui
-                            .add(
-                                egui::DragValue::new(amount)
-                                    .prefix("$")
-                                    .suffix(" a day")
-                                    .range(0.0..=1e4),
-                            )
-                            .changed();
+                        changed |= cents_drag(ui, amount, 1e4, 1.0).changed();
+                        ui.label("a day");
                     }
                     HoldingCost::RateOnOffer { annual_pct } => {
                         changed |= ui
@@ -101,7 +99,9 @@ fn retail_value_ui(ui: &mut Ui, edited: &mut TradeInInputs, appraisal: &Appraisa
     {
         changed = true;
         if edit_retail {
-            edited.retail_value = appraisal.reconciliation.indicated_value.round();
+            edited.retail_value =
+                Cents::round_dollars(appraisal.reconciliation.indicated_value.round())
+                    .unwrap_or_default();
             edited.retail_value_note = Some(String::new());
         } else {
             edited.retail_value_note = None;
@@ -109,13 +109,7 @@ fn retail_value_ui(ui: &mut Ui, edited: &mut TradeInInputs, appraisal: &Appraisa
     }
     if let Some(note) = edited.retail_value_note.as_mut() {
         ui.horizontal(|ui| {
-            changed |= ui
-                .add(
-                    egui::DragValue::new(&mut edited.retail_value)
-                        .prefix("$")
-                        .speed(10.0),
-                )
-                .changed();
+            changed |= cents_drag(ui, &mut edited.retail_value, 1e8, 10.0).changed();
             ui.label("because");
             changed |= ui
                 .add(egui::TextEdit::singleline(note).hint_text("the reason (required)"))
@@ -141,14 +135,7 @@ fn recon_ui(ui: &mut Ui, recon: &mut Vec<Line>) -> bool {
             changed |= ui
                 .add(egui::TextEdit::singleline(&mut line.label).desired_width(200.0))
                 .changed();
-            changed |= ui
-                .add(
-                    egui::DragValue::new(&mut line.amount)
-                        .prefix("$")
-                        .speed(5.0)
-                        .range(0.0..=1e6),
-                )
-                .changed();
+            changed |= cents_drag(ui, &mut line.amount, 1e6, 5.0).changed();
             if ui.small_button("Remove").clicked() {
                 remove = Some(i);
             }
@@ -161,7 +148,7 @@ fn recon_ui(ui: &mut Ui, recon: &mut Vec<Line>) -> bool {
     if ui.button("Add recon line").clicked() {
         recon.push(Line {
             label: "recon".into(),
-            amount: 0.0,
+            amount: Cents::ZERO,
         });
         changed = true;
     }
