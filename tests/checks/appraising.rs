@@ -280,3 +280,124 @@ fn robust_fit_resists_contamination_that_moves_least_squares() {
     );
     assert!((huber.residual_sd() - truth.noise_sd).abs() < 0.01);
 }
+
+/// A small constructed segment: `exact` listings lying exactly on ln P = 10.4 − 0.12 age −
+/// 0.02 miles/10k, and `off` listings 25 % above or below it.
+fn constructed_segment(exact: usize, off: usize) -> model::market::Market {
+    let mut market = model::market::Market::default();
+    for i in 0..exact + off {
+        let age = (i % 7) as i32;
+        let miles = 8_000.0 + 11_000.0 * f64::from(age) + 1_500.0 * (i % 3) as f64;
+        let on_curve = (10.4 - 0.12 * f64::from(age) - 0.02 * miles / 10_000.0).exp();
+        let price = if i < exact {
+            on_curve
+        } else if i % 2 == 0 {
+            on_curve * 1.25
+        } else {
+            on_curve * 0.75
+        };
+        market.push(&model::market::Listing {
+            row: i,
+            line: i as u64 + 2,
+            model_year: 2026 - age,
+            make: "Quellmark".into(),
+            model: "Tessel".into(),
+            variant: None,
+            asking_price: price,
+            miles,
+            condition: model::condition::Condition::Used,
+            listed_on: None,
+            sold_on: None,
+            sale_price: None,
+            vin: None,
+            seller: Some(format!("Seller {i}")),
+            location: None,
+            coordinates: None,
+            distance_miles: None,
+            title: None,
+            options: None,
+        });
+    }
+    market
+}
+
+#[test]
+fn a_robust_fit_that_stops_at_its_limit_says_so() {
+    use linfa::ParamGuard;
+    use model::hedonic::HedonicParams;
+    use model::warnings::{WarningCode, has};
+    // Constructed: 14 listings on the curve and 8 off it; one pass cannot settle.
+    let market = constructed_segment(14, 8);
+    let rows: Vec<usize> = (0..market.len()).collect();
+    let as_of = chrono::NaiveDate::from_ymd_opt(2026, 6, 1).unwrap();
+    let params = |limit| {
+        HedonicParams::new(as_of)
+            .age_form(model::hedonic::AgeForm::Linear)
+            .robust(true)
+            .max_iterations(limit)
+            .check()
+            .unwrap()
+    };
+    let stopped = params(1).fit(&market, &rows).unwrap();
+    let report = stopped.robust_report().unwrap();
+    assert!(!report.converged);
+    assert_eq!(report.iterations, 1);
+    let warnings = stopped.warnings();
+    assert!(
+        has(&warnings, WarningCode::RobustFitNotConverged),
+        "{warnings:?}"
+    );
+    assert_eq!(warnings[0].figures["limit"], 1.0);
+    // With room to iterate, the same data converge or collapse, and say which.
+    let settled = params(200).fit(&market, &rows).unwrap();
+    let r = settled.robust_report().unwrap();
+    assert!(r.converged || r.scale_collapsed, "{r:?}");
+    assert!(!has(
+        &settled.warnings(),
+        WarningCode::RobustFitNotConverged
+    ));
+    // Least squares has no robust report and no such warning.
+    let ols = HedonicParams::new(as_of)
+        .check()
+        .unwrap()
+        .fit(&market, &rows)
+        .unwrap();
+    assert!(ols.robust_report().is_none() && ols.warnings().is_empty());
+}
+
+#[test]
+fn a_collapsed_robust_scale_does_not_flag_the_market_as_outliers() {
+    use model::warnings::{WarningCode, has};
+    // Constructed: 16 of 22 listings exactly on the curve. The robust scale falls to rounding
+    // noise (about 1e-15, not exactly 0); scored against it, every listing off the curve is
+    // an "outlier" by a factor of 1e13 (without the floor, all 6 were excluded). The scale is
+    // treated as collapsed: cleaning skips the outlier rules and says why, and the robust fit
+    // falls back to least squares.
+    let market = constructed_segment(16, 6);
+    let segment = market.find_segment("Quellmark", "Tessel").unwrap();
+    let settings = FitSettings {
+        age_form: model::hedonic::AgeForm::Linear,
+        robust: true,
+        as_of: Some(chrono::NaiveDate::from_ymd_opt(2026, 6, 1).unwrap()),
+        ..FitSettings::default()
+    };
+    let fit = fit_market(&market, segment, &settings, &Overrides::new()).unwrap();
+    let excluded: usize = fit.cleaning.counts().values().sum();
+    assert_eq!(excluded, 0, "{:?}", fit.cleaning.counts());
+    assert!(fit.cleaning.outlier_check_skipped.is_some());
+    let warnings = fit.warnings();
+    assert!(
+        has(&warnings, WarningCode::OutliersNotChecked),
+        "{warnings:?}"
+    );
+    assert!(
+        has(&warnings, WarningCode::RobustScaleCollapsed),
+        "{warnings:?}"
+    );
+    // The model falls back to least squares: a real spread, not rounding noise.
+    assert!(
+        fit.model.residual_sd() > 0.05,
+        "{}",
+        fit.model.residual_sd()
+    );
+}

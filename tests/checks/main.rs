@@ -6,6 +6,7 @@
 
 mod appraising;
 mod crosscheck;
+mod fuzz;
 mod import;
 mod nist;
 mod profiles;

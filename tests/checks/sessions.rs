@@ -144,6 +144,14 @@ fn a_truncated_session_names_the_line_where_it_stops() {
 }
 
 #[test]
+fn regression_an_error_after_a_character_of_several_bytes_is_reported_not_a_panic() {
+    // Found by the fuzz check: naming the field before an error sliced the text one byte after
+    // a multi-byte character.
+    let e = parse_session("(\n  format_version: 3,\n  é: ]", "x.ron").unwrap_err();
+    assert!(e.to_string().contains("x.ron, line 3"), "{e}");
+}
+
+#[test]
 fn a_garbled_value_is_named_by_line_and_field() {
     let text = session_to_ron(&demo_session(trade_in(), None)).unwrap();
     let garbled = text.replacen("miles: 41000.0", "miles: forty-one thousand", 1);
@@ -294,4 +302,86 @@ mod properties {
             prop_assert!(!html.contains("<script"));
         }
     }
+}
+
+#[test]
+fn a_hand_included_comparable_the_fit_cannot_price_is_refused_and_the_session_reopens() {
+    // Every Summit listing is dropped from the fit by hand, then one is included as a
+    // comparable for a Plus subject: the fit has no Summit rate. It used to be adjusted
+    // silently as the base variant, and the saved session could not be reopened (the saved
+    // rates had no Summit). Now it is refused with its reason, kept as evidence, and the
+    // session reproduces.
+    let market = acceptance::demo_market(2_000, 1);
+    let segment = market.find_segment("Quellmark", "Tessel").unwrap();
+    let summit_lines: Vec<u64> = market
+        .rows_of(segment)
+        .into_iter()
+        .filter(|&r| market.variant_name(r) == "Summit")
+        .map(|r| market.line[r])
+        .collect();
+    assert!(summit_lines.len() > 10);
+    let mut overrides = model::clean::Overrides::new();
+    for &line in &summit_lines {
+        overrides.insert(
+            line,
+            model::clean::Override::Exclude {
+                note: "checking the Plus market alone".into(),
+            },
+        );
+    }
+    let settings = model::appraisal::FitSettings {
+        as_of: Some(model::demo::demo_as_of()),
+        ..model::appraisal::FitSettings::default()
+    };
+    let fit = model::appraisal::fit_market(&market, segment, &settings, &overrides).unwrap();
+    let subject = model::subject::Subject::parse(
+        "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used",
+    )
+    .unwrap();
+    let mut request = model::appraisal::AppraisalRequest::new(subject);
+    request.choices.include.insert(summit_lines[0]);
+    let appraisal = model::appraisal::appraise(&market, &fit, &request).unwrap();
+    assert_eq!(appraisal.refused.len(), 1);
+    assert_eq!(appraisal.refused[0].listing.line, summit_lines[0]);
+    assert!(
+        appraisal.refused[0].reason.contains("'Summit'"),
+        "{}",
+        appraisal.refused[0].reason
+    );
+    assert!(
+        appraisal
+            .comparables
+            .iter()
+            .all(|c| c.listing.line != summit_lines[0])
+    );
+    let at = chrono::DateTime::parse_from_rfc3339("2026-12-01T10:00:00Z")
+        .unwrap()
+        .to_utc();
+    let session = model::session::Session::capture(
+        &model::session::Capture {
+            market: &market,
+            market_path: None,
+            fit: &fit,
+            settings: &settings,
+            overrides: &overrides,
+            request: &request,
+            appraisal: &appraisal,
+            purpose: &Purpose::Value,
+            keep_segment: false,
+        },
+        model::session::Authorship {
+            appraiser: "Test Appraiser (invented)".into(),
+            created: at,
+            saved: at,
+            notes: String::new(),
+        },
+    )
+    .unwrap();
+    let dir = scratch_dir("refused");
+    let path = dir.join("refused.ron");
+    write_session(&path, &session).unwrap();
+    let reopened = read_session(&path).unwrap();
+    assert_eq!(reopened.appraisal.refused, appraisal.refused);
+    let r = reproduce(&reopened).unwrap();
+    assert!(r.reproduces(), "{:?}", r.differences);
 }

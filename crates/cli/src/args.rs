@@ -4,6 +4,36 @@ use std::path::PathBuf;
 
 use clap::{Args, Parser, Subcommand, ValueEnum};
 
+/// A value parser for a finite number from `min` to `max`, whose error names the range.
+fn number_in(min: f64, max: f64) -> impl Fn(&str) -> Result<f64, String> + Clone + Send + Sync {
+    move |text: &str| {
+        let value = model::import::parse_number(text)
+            .ok_or_else(|| format!("not a number; give one from {min} to {max}"))?;
+        if (min..=max).contains(&value) {
+            Ok(value)
+        } else {
+            Err(format!("must be from {min} to {max}"))
+        }
+    }
+}
+
+/// A value parser for an interval level, strictly between 0 and 1.
+fn level(text: &str) -> Result<f64, String> {
+    match model::import::parse_number(text) {
+        Some(v) if v > 0.0 && v < 1.0 => Ok(v),
+        _ => Err("must be strictly between 0 and 1, e.g. 0.8 for an 80 % band".into()),
+    }
+}
+
+/// A value parser for a field separator: one ASCII character.
+fn separator(text: &str) -> Result<char, String> {
+    match text.chars().collect::<Vec<_>>().as_slice() {
+        ['\\', 't'] => Ok('\t'),
+        [c] if c.is_ascii() && !c.is_ascii_alphanumeric() && *c != '"' && *c != '\n' => Ok(*c),
+        _ => Err("must be one ASCII punctuation character such as , ; | or \\t for a tab".into()),
+    }
+}
+
 /// comptrail: value one vehicle from a market of listings, with the basis of every dollar.
 #[derive(Debug, Parser)]
 #[command(name = "comptrail", version, about, long_about = None)]
@@ -18,9 +48,9 @@ pub struct Cli {
 pub enum Command {
     /// Write an invented demo market as CSV.
     DemoMarket {
-        /// Listings to generate (up to 10,000,000).
-        #[arg(long, default_value_t = 20_000)]
-        rows: usize,
+        /// Listings to generate (1 to 10,000,000).
+        #[arg(long, default_value_t = 20_000, value_parser = clap::value_parser!(u64).range(1..=10_000_000))]
+        rows: u64,
         /// Random seed; the same seed gives the same file.
         #[arg(long, default_value_t = 1)]
         seed: u64,
@@ -37,8 +67,8 @@ pub enum Command {
         /// Market options.
         #[command(flatten)]
         market: MarketArgs,
-        /// Oldest age in the table.
-        #[arg(long, default_value_t = 10)]
+        /// Oldest age in the table (1 to 60).
+        #[arg(long, default_value_t = 10, value_parser = clap::value_parser!(u32).range(1..=60))]
         max_age: u32,
     },
     /// Every listing's asking price against the market for its attributes, ranked.
@@ -46,8 +76,8 @@ pub enum Command {
         /// Market options.
         #[command(flatten)]
         market: MarketArgs,
-        /// Interval level used to flag listings.
-        #[arg(long, default_value_t = 0.8)]
+        /// Interval level used to flag listings (strictly between 0 and 1).
+        #[arg(long, default_value_t = 0.8, value_parser = level)]
         level: f64,
         /// Rows to print at each end (human output).
         #[arg(long, default_value_t = 15)]
@@ -78,15 +108,15 @@ pub enum Command {
         /// Market options.
         #[command(flatten)]
         market: MarketArgs,
-        /// Folds.
-        #[arg(long, default_value_t = 5)]
-        folds: usize,
-        /// Interval level whose coverage is measured.
-        #[arg(long, default_value_t = 0.8)]
+        /// Folds (2 to 20).
+        #[arg(long, default_value_t = 5, value_parser = clap::value_parser!(u64).range(2..=20))]
+        folds: u64,
+        /// Interval level whose coverage is measured (strictly between 0 and 1).
+        #[arg(long, default_value_t = 0.8, value_parser = level)]
         level: f64,
-        /// Held-out listings valued by comparables per fold.
-        #[arg(long, default_value_t = 100)]
-        comparable_subjects: usize,
+        /// Held-out listings valued by comparables per fold (0 to 10,000).
+        #[arg(long, default_value_t = 100, value_parser = clap::value_parser!(u64).range(0..=10_000))]
+        comparable_subjects: u64,
     },
 }
 
@@ -131,13 +161,13 @@ pub struct MarketArgs {
     #[arg(long)]
     pub as_of: Option<String>,
     /// Field separator (default: detected from the header).
-    #[arg(long)]
+    #[arg(long, value_parser = separator)]
     pub delimiter: Option<char>,
     /// Unit of a column named only "mileage" or "odometer".
     #[arg(long, value_enum, default_value = "miles")]
     pub odometer: OdometerArg,
-    /// Unsold listings older than this many days are stale (0 keeps them all).
-    #[arg(long, default_value_t = 180)]
+    /// Unsold listings older than this many days are stale (0 keeps them all; at most 3,650).
+    #[arg(long, default_value_t = 180, value_parser = clap::value_parser!(u32).range(0..=3_650))]
     pub stale_days: u32,
     /// Keep the listing on this file line even if a cleaning rule excludes it (repeatable).
     #[arg(long = "keep", value_name = "LINE")]
@@ -145,9 +175,9 @@ pub struct MarketArgs {
     /// Exclude the listing on this file line from the fit and comparables (repeatable).
     #[arg(long = "drop", value_name = "LINE")]
     pub drop: Vec<u64>,
-    /// Rows of the demo market when no file is given.
-    #[arg(long, default_value_t = 20_000)]
-    pub demo_rows: usize,
+    /// Rows of the demo market when no file is given (1 to 10,000,000).
+    #[arg(long, default_value_t = 20_000, value_parser = clap::value_parser!(u64).range(1..=10_000_000))]
+    pub demo_rows: u64,
     /// Print JSON instead of tables.
     #[arg(long)]
     pub json: bool,
@@ -173,23 +203,23 @@ pub struct AppraiseArgs {
     /// The subject, e.g. "year=2021,make=Quellmark,model=Tessel,variant=Plus,miles=48000,condition=used".
     #[arg(long)]
     pub subject: Option<String>,
-    /// Level of the intervals and the value band.
-    #[arg(long, default_value_t = 0.8)]
+    /// Level of the intervals and the value band (strictly between 0 and 1).
+    #[arg(long, default_value_t = 0.8, value_parser = level)]
     pub level: f64,
-    /// Comparables to keep.
-    #[arg(long, default_value_t = 8)]
-    pub comps: usize,
-    /// Model years either side of the subject's.
-    #[arg(long, default_value_t = 1)]
+    /// Comparables to keep (1 to 100).
+    #[arg(long, default_value_t = 8, value_parser = clap::value_parser!(u32).range(1..=100))]
+    pub comps: u32,
+    /// Model years either side of the subject's (0 to 30).
+    #[arg(long, default_value_t = 1, value_parser = clap::value_parser!(i32).range(0..=30))]
     pub year_window: i32,
     /// Mileage rule.
     #[arg(long, value_enum, default_value = "pricing")]
     pub mileage_rule: MileageRuleArg,
-    /// Listed at most this many days before the appraisal date (0: no limit).
-    #[arg(long, default_value_t = 90)]
+    /// Listed at most this many days before the appraisal date (0: no limit; at most 3,650).
+    #[arg(long, default_value_t = 90, value_parser = clap::value_parser!(u32).range(0..=3_650))]
     pub max_days: u32,
-    /// At most this many miles away (needs a distance column).
-    #[arg(long)]
+    /// At most this many miles away, 0 to 25,000 (needs a distance column).
+    #[arg(long, value_parser = number_in(0.0, 25_000.0))]
     pub max_distance: Option<f64>,
     /// Only the subject's own variant.
     #[arg(long)]
@@ -204,11 +234,11 @@ pub struct AppraiseArgs {
     /// without LINE it applies to every comparable (repeatable).
     #[arg(long = "adjust", value_name = "SPEC")]
     pub adjust: Vec<String>,
-    /// Also forecast the value after this many months.
-    #[arg(long)]
+    /// Also forecast the value after this many months (0 to 120).
+    #[arg(long, value_parser = number_in(0.0, 120.0))]
     pub hold_months: Option<f64>,
-    /// Miles added over the holding period (default: the market's typical pace).
-    #[arg(long)]
+    /// Miles added over the holding period, 0 to 500,000 (default: the market's typical pace).
+    #[arg(long, value_parser = number_in(0.0, 500_000.0))]
     pub hold_miles: Option<f64>,
 
     /// Re-run a saved session: recompute it from its evidence and say whether it reproduces

@@ -33,11 +33,8 @@ pub fn load_market(args: &MarketArgs) -> Result<Loaded> {
     let (market, report) = if let Some(path) = &args.file {
         import_csv_file(path, &options)?
     } else {
-        if args.demo_rows == 0 || args.demo_rows > 10_000_000 {
-            bail!("--demo-rows must be between 1 and 10,000,000");
-        }
         options.latest_model_year = options.latest_model_year.max(2027);
-        let bytes = model::demo::demo_csv_bytes(args.demo_rows, 1);
+        let bytes = model::demo::demo_csv_bytes(args.demo_rows as usize, 1);
         import_csv_bytes("demo market (seed 1)", bytes, &options)?
     };
     Ok(Loaded { market, report })

@@ -32,7 +32,10 @@ const DEMO_SUBJECT: &str =
     "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used";
 
 fn main() -> ExitCode {
-    let cli = Cli::parse();
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        Err(e) => return refuse_arguments(&e),
+    };
     match run(cli) {
         Ok(code) => code,
         Err(e) => {
@@ -42,6 +45,38 @@ fn main() -> ExitCode {
             ExitCode::FAILURE
         }
     }
+}
+
+/// Help and version print as clap writes them; any other argument error is one line naming
+/// the option and what it allows, with exit status 1 (2 means "does not reproduce").
+fn refuse_arguments(e: &clap::Error) -> ExitCode {
+    use clap::error::ErrorKind;
+    match e.kind() {
+        ErrorKind::DisplayHelp
+        | ErrorKind::DisplayVersion
+        | ErrorKind::DisplayHelpOnMissingArgumentOrSubcommand => {
+            let _ = e.print();
+            ExitCode::SUCCESS
+        }
+        _ => {
+            eprintln!("comptrail: {}", one_line(e));
+            ExitCode::FAILURE
+        }
+    }
+}
+
+/// clap's message without its "error: " prefix, usage and tips.
+fn one_line(e: &clap::Error) -> String {
+    let text = e.render().to_string();
+    let first = text.lines().next().unwrap_or_default();
+    let first = first.strip_prefix("error: ").unwrap_or(first);
+    let tip = text
+        .lines()
+        .map(str::trim)
+        .find_map(|l| l.strip_prefix("tip: "))
+        .map(|t| format!(" ({t})"))
+        .unwrap_or_default();
+    format!("{first}{tip}; see comptrail --help")
 }
 
 fn run(cli: Cli) -> Result<ExitCode> {
@@ -133,10 +168,9 @@ fn print(json: bool, doc: &impl Serialize, human: impl FnOnce() -> String) -> Re
     Ok(())
 }
 
-fn demo_market(rows: usize, seed: u64, out: &std::path::Path) -> Result<()> {
-    if rows == 0 || rows > 10_000_000 {
-        bail!("--rows must be between 1 and 10,000,000");
-    }
+fn demo_market(rows: u64, seed: u64, out: &std::path::Path) -> Result<()> {
+    // --rows is checked to 1..=10,000,000 when it is read.
+    let rows = rows as usize;
     let file =
         std::fs::File::create(out).with_context(|| format!("cannot create {}", out.display()))?;
     let mut writer = std::io::BufWriter::new(file);
@@ -157,11 +191,17 @@ fn fit(args: &MarketArgs) -> Result<()> {
     let segment = load::choose_segment(&loaded.market, args, None)?;
     let fit = load::fit(&loaded, args, segment)?;
     let doc = FitDocument {
+        warnings: fit.warnings(),
         import: ImportSummary::from_report(&loaded.report),
         fit: FitSummary::new(&loaded.market, &fit),
     };
     print(args.json, &doc, || {
-        format!("{}{}", render::import(&doc.import), render::fit(&doc.fit))
+        format!(
+            "{}{}{}",
+            render::import(&doc.import),
+            render::fit(&doc.fit),
+            render::warnings(&doc.warnings)
+        )
     })
 }
 
@@ -206,9 +246,6 @@ fn parse_adjustment(spec: &str) -> Result<UserAdjustment> {
 }
 
 fn comparable_rules(args: &AppraiseArgs) -> Result<ComparableRules> {
-    if args.comps == 0 {
-        bail!("--comps must be at least 1");
-    }
     Ok(ComparableRules {
         model_year_window: args.year_window.max(0),
         mileage: match args.mileage_rule {
@@ -222,7 +259,7 @@ fn comparable_rules(args: &AppraiseArgs) -> Result<ComparableRules> {
         max_listing_age_days: (args.max_days > 0).then_some(args.max_days),
         max_distance_miles: args.max_distance,
         same_variant_only: args.same_variant,
-        count: args.comps,
+        count: args.comps as usize,
         ..ComparableRules::default()
     })
 }
@@ -317,6 +354,7 @@ fn depreciation(args: &MarketArgs, max_age: u32) -> Result<()> {
     let fit = load::fit(&loaded, args, segment)?;
     let settings = load::fit_settings(args)?;
     let doc = DepreciationDocument {
+        warnings: fit.warnings(),
         import: ImportSummary::from_report(&loaded.report),
         fit: FitSummary::new(&loaded.market, &fit),
         table: depreciation_table(&fit.model, &loaded.market, max_age),
@@ -333,6 +371,7 @@ fn gaps(args: &MarketArgs, level: f64, top: usize) -> Result<()> {
     let segment = load::choose_segment(&loaded.market, args, None)?;
     let fit = load::fit(&loaded, args, segment)?;
     let doc = GapsDocument {
+        warnings: fit.warnings(),
         import: ImportSummary::from_report(&loaded.report),
         fit: FitSummary::new(&loaded.market, &fit),
         level,
@@ -343,21 +382,22 @@ fn gaps(args: &MarketArgs, level: f64, top: usize) -> Result<()> {
 
 fn backtest_command(
     args: &MarketArgs,
-    folds: usize,
+    folds: u64,
     level: f64,
-    comparable_subjects: usize,
+    comparable_subjects: u64,
 ) -> Result<()> {
     let loaded = load::load_market(args)?;
     let segment = load::choose_segment(&loaded.market, args, None)?;
     let fit = load::fit(&loaded, args, segment)?;
     let settings = BacktestSettings {
-        folds,
+        folds: folds as usize,
         level,
-        comparable_subjects_per_fold: comparable_subjects,
+        comparable_subjects_per_fold: comparable_subjects as usize,
         ..BacktestSettings::default()
     };
     let result = backtest(&loaded.market, &fit, &ComparableRules::default(), &settings)?;
     let doc = BacktestDocument {
+        warnings: fit.warnings(),
         import: ImportSummary::from_report(&loaded.report),
         fit: FitSummary::new(&loaded.market, &fit),
         backtest: result,

@@ -109,6 +109,8 @@ impl FitSummary {
 /// `fit --json`.
 #[derive(Debug, Serialize)]
 pub struct FitDocument {
+    /// What the market cannot support, before anything else.
+    pub warnings: Vec<model::warnings::Warning>,
     pub import: ImportSummary,
     pub fit: FitSummary,
 }
@@ -133,6 +135,8 @@ pub struct AppraisalDocument {
 /// `depreciation --json`.
 #[derive(Debug, Serialize)]
 pub struct DepreciationDocument {
+    /// What the market cannot support, before anything else.
+    pub warnings: Vec<model::warnings::Warning>,
     pub import: ImportSummary,
     pub fit: FitSummary,
     #[serde(flatten)]
@@ -143,6 +147,8 @@ pub struct DepreciationDocument {
 /// `gaps --json`.
 #[derive(Debug, Serialize)]
 pub struct GapsDocument {
+    /// What the market cannot support, before anything else.
+    pub warnings: Vec<model::warnings::Warning>,
     pub import: ImportSummary,
     pub fit: FitSummary,
     pub level: f64,
@@ -152,6 +158,8 @@ pub struct GapsDocument {
 /// `backtest --json`.
 #[derive(Debug, Serialize)]
 pub struct BacktestDocument {
+    /// What the market cannot support, before anything else.
+    pub warnings: Vec<model::warnings::Warning>,
     pub import: ImportSummary,
     pub fit: FitSummary,
     #[serde(flatten)]

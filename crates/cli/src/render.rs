@@ -125,6 +125,15 @@ pub fn fit(f: &FitSummary) -> String {
     o
 }
 
+/// Each warning on its own line, in words (the codes are in `--json`).
+pub fn warnings(warnings: &[model::warnings::Warning]) -> String {
+    let mut o = String::new();
+    for w in warnings {
+        let _ = writeln!(o, "WARNING: {}", w.message);
+    }
+    o
+}
+
 pub fn appraisal(doc: &AppraisalDocument) -> String {
     let a = &doc.appraisal;
     let mut o = import(&doc.import);
@@ -146,7 +155,9 @@ pub fn appraisal(doc: &AppraisalDocument) -> String {
     }
     let r = &a.reconciliation;
     let m = &a.model_estimate;
-    let _ = writeln!(o, "\nIndicated value: {}", money(r.indicated_value));
+    o.push('\n');
+    o.push_str(&warnings(&a.warnings));
+    let _ = writeln!(o, "Indicated value: {}", money(r.indicated_value));
     let _ = writeln!(
         o,
         "Value band ({level:.0} %): {} to {}  (width set by the {})",
@@ -321,6 +332,7 @@ fn comparable(o: &mut String, number: usize, c: &model::appraisal::AdjustedCompa
 pub fn depreciation(doc: &DepreciationDocument) -> String {
     let mut o = import(&doc.import);
     o.push_str(&fit(&doc.fit));
+    o.push_str(&warnings(&doc.warnings));
     for curve in &doc.table.curves {
         let _ = writeln!(
             o,
@@ -386,6 +398,7 @@ pub fn depreciation(doc: &DepreciationDocument) -> String {
 pub fn gaps(doc: &GapsDocument, top: usize) -> String {
     let mut o = import(&doc.import);
     o.push_str(&fit(&doc.fit));
+    o.push_str(&warnings(&doc.warnings));
     let line = |o: &mut String, g: &model::gaps::PriceGap| {
         let _ = writeln!(
             o,
@@ -424,6 +437,7 @@ pub fn gaps(doc: &GapsDocument, top: usize) -> String {
 pub fn backtest(doc: &BacktestDocument) -> String {
     let mut o = import(&doc.import);
     o.push_str(&fit(&doc.fit));
+    o.push_str(&warnings(&doc.warnings));
     let b = &doc.backtest;
     let _ = writeln!(
         o,

@@ -17,9 +17,10 @@ use crate::hedonic::{
     AgeForm, Attributes, FitError, HedonicModel, HedonicParams, ValueEstimate, age_years,
 };
 use crate::market::{Listing, Market, Segment};
-use crate::reconcile::{ReconcileInput, Reconciliation, reconcile};
+use crate::reconcile::{BandRule, ReconcileInput, Reconciliation, reconcile};
 use crate::subject::Subject;
 use crate::vocabulary::NO_NAME;
+use crate::warnings::{Warning, WarningCode};
 
 /// Why an appraisal could not be made.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -53,6 +54,16 @@ pub enum AppraisalError {
     /// The level is not strictly between 0 and 1.
     #[error("level {0} must be strictly between 0 and 1 (e.g. 0.8)")]
     BadLevel(f64),
+    /// A number given for the appraisal is outside what it allows.
+    #[error("{what} = {value} is not valid: {allowed}")]
+    BadInput {
+        /// What it is.
+        what: &'static str,
+        /// Its value.
+        value: f64,
+        /// What is allowed.
+        allowed: &'static str,
+    },
     /// The fit failed.
     #[error(transparent)]
     Fit(#[from] FitError),
@@ -97,6 +108,23 @@ pub struct MarketFit {
     pub included_rows: Vec<usize>,
     /// Every row of the segment by model year, for the comparable search.
     pub candidates: CandidateIndex,
+}
+
+impl MarketFit {
+    /// What the fitted market cannot vouch for (empty when nothing is wrong).
+    #[must_use]
+    pub fn warnings(&self) -> Vec<Warning> {
+        let mut out = self.model.warnings();
+        if let Some(why) = &self.cleaning.outlier_check_skipped {
+            out.push(Warning::new(
+                WarningCode::OutliersNotChecked,
+                format!(
+                    "Listings were not checked for outliers or for prices implausibly far below the market ({why}). A damaged or mispriced listing may be in the fit; look over the cheapest listings by hand."
+                ),
+            ));
+        }
+        out
+    }
 }
 
 /// Finds a segment by name, with an error listing what the market holds.
@@ -228,12 +256,14 @@ impl AdjustedComparable {
     }
 }
 
-/// Reconciles adjusted comparables with the model's estimate and writes each one's weight.
+/// Reconciles adjusted comparables with the model's estimate under `rule` and writes each
+/// one's weight.
 pub fn reconcile_comparables(
     comparables: &mut [AdjustedComparable],
     model_estimate: &ValueEstimate,
     model_df: f64,
     level: f64,
+    rule: BandRule,
 ) -> Reconciliation {
     let inputs: Vec<ReconcileInput> = comparables
         .iter()
@@ -243,7 +273,7 @@ pub fn reconcile_comparables(
             gross_fraction: c.gross_pct / 100.0,
         })
         .collect();
-    let reconciliation = reconcile(&inputs, model_estimate, model_df, level);
+    let reconciliation = reconcile(&inputs, model_estimate, model_df, level, rule);
     for (c, w) in comparables.iter_mut().zip(&reconciliation.weights) {
         c.weight = *w;
     }
@@ -298,8 +328,63 @@ pub struct Appraisal {
     pub candidates_passed: usize,
     /// Listings stopped by each filter.
     pub stopped_by: std::collections::BTreeMap<String, usize>,
+    /// Comparables included by hand that the fitted market cannot adjust, with why; they are
+    /// not in the grid or the value (format 3 on).
+    #[serde(default)]
+    pub refused: Vec<RefusedComparable>,
+    /// What the market cannot support about this appraisal: the fit's warnings and the
+    /// appraisal's own (format 3 on).
+    #[serde(default)]
+    pub warnings: Vec<Warning>,
     /// The reconciliation.
     pub reconciliation: Reconciliation,
+}
+
+/// The fit's warnings and this appraisal's own.
+fn appraisal_warnings(fit: &MarketFit, refused: &[RefusedComparable]) -> Vec<Warning> {
+    let mut out = fit.warnings();
+    for r in refused {
+        out.push(
+            Warning::new(
+                WarningCode::ComparableNotAdjustable,
+                format!(
+                    "The comparable on market line {} was included by hand but is left out of the value: {}.",
+                    r.listing.line, r.reason
+                ),
+            )
+            .with("line", r.listing.line as f64),
+        );
+    }
+    out
+}
+
+/// A comparable included by hand that could not be adjusted to the subject.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct RefusedComparable {
+    /// The listing, every field.
+    pub listing: Listing,
+    /// Why it cannot be adjusted, in words for the appraiser.
+    pub reason: String,
+}
+
+/// Why the fitted market cannot adjust the listing on `row`: its variant or condition has no
+/// fitted effect (every listing of it was kept out of the fit by cleaning), so a grid line for
+/// it would silently treat it as the base level.
+fn unadjustable(market: &Market, fit: &MarketFit, row: usize) -> Option<String> {
+    let design = fit.model.design();
+    if !design.knows_variant(market.variant[row]) {
+        return Some(format!(
+            "its variant '{}' has no listing in the fit after cleaning, so the market gives no rate to adjust it by; choose another comparable or enter your own variant adjustment on one that can be adjusted",
+            market.variant_name(row)
+        ));
+    }
+    if !design.knows_condition(market.condition[row]) {
+        return Some(format!(
+            "no {} listing is in the fit after cleaning, so the market gives no rate to adjust its condition by; choose another comparable",
+            market.condition[row]
+        ));
+    }
+    None
 }
 
 /// The subject's attributes in the fitted market's terms, checking that the market can price
@@ -309,6 +394,13 @@ pub fn subject_terms(
     fit: &MarketFit,
     subject: &Subject,
 ) -> Result<SubjectTerms, AppraisalError> {
+    if !(subject.miles.is_finite() && (0.0..=crate::import::MAX_MILES).contains(&subject.miles)) {
+        return Err(AppraisalError::BadInput {
+            what: "subject miles",
+            value: subject.miles,
+            allowed: "0 to 1,000,000 miles",
+        });
+    }
     let design = fit.model.design();
     let variant = match &subject.variant {
         Some(v) => market.names.id_ignore_case(v),
@@ -386,10 +478,23 @@ pub fn appraise_among(
         &request.choices,
         fit.as_of,
     );
-    let mut comparables: Vec<AdjustedComparable> = selection
+    let (chosen, refused): (Vec<_>, Vec<_>) = selection
         .chosen
         .iter()
-        .map(|c| {
+        .map(|c| (c, unadjustable(market, fit, c.row)))
+        .partition(|(_, why)| why.is_none());
+    let refused: Vec<RefusedComparable> = refused
+        .into_iter()
+        .filter_map(|(c, why)| {
+            why.map(|reason| RefusedComparable {
+                listing: market.listing(c.row),
+                reason,
+            })
+        })
+        .collect();
+    let mut comparables: Vec<AdjustedComparable> = chosen
+        .into_iter()
+        .map(|(c, _)| {
             let mut adjustments = model_lines(&fit.model, market, c.row, &terms);
             adjustments.extend(user_lines(&request.user_adjustments, market.line[c.row]));
             AdjustedComparable::new(
@@ -407,6 +512,7 @@ pub fn appraise_among(
         &model_estimate,
         fit.model.df_residual() as f64,
         request.level,
+        crate::reconcile::BAND_RULE,
     );
     Ok(Appraisal {
         subject: request.subject.clone(),
@@ -416,6 +522,8 @@ pub fn appraise_among(
         candidates_considered: selection.considered,
         candidates_passed: selection.passed,
         stopped_by: selection.stopped_by,
+        warnings: appraisal_warnings(fit, &refused),
+        refused,
         reconciliation,
     })
 }

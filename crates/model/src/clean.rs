@@ -445,8 +445,10 @@ fn mark_outliers(
         Err(e) => return Some(format!("first robust fit failed: {e}")),
     };
     let s = model.residual_sd();
-    if s <= 0.0 {
-        return Some("first robust fit left no residual spread".into());
+    if model.robust_report().is_some_and(|r| r.scale_collapsed) || !(s > 0.0) {
+        return Some(
+            "more than half the listings sit exactly on the first fit, so there is no spread to measure outliers against".into(),
+        );
     }
     // Leverage from the sample's cross-products, rescaled to the number of listings scored.
     let leverage_scale = sample.len() as f64 / clean.len().max(1) as f64;

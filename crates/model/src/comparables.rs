@@ -311,7 +311,8 @@ pub fn filter_breaks(
     as_of: NaiveDate,
 ) -> Vec<RuleBreak> {
     let mut breaks = Vec::new();
-    let years_apart = (market.model_year[row] - subject.model_year).abs();
+    let years_apart = market.model_year[row].abs_diff(subject.model_year);
+    let years_apart = i32::try_from(years_apart).unwrap_or(i32::MAX);
     if years_apart > rules.model_year_window {
         breaks.push(RuleBreak::ModelYearOutsideWindow {
             years_apart,
@@ -442,7 +443,10 @@ pub fn choose_comparables(
 ) -> ComparableSelection {
     let mut stopped: BTreeMap<&'static str, usize> = BTreeMap::new();
     let window = rules.model_year_window.max(0);
-    let (first, last) = (subject.model_year - window, subject.model_year + window);
+    let (first, last) = (
+        subject.model_year.saturating_sub(window),
+        subject.model_year.saturating_add(window),
+    );
     let mut in_window = 0usize;
     let mut passing: Vec<&CandidateRow> = Vec::new();
     let hand_picked = !choices.include.is_empty() || !choices.exclude.is_empty();

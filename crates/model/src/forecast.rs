@@ -26,6 +26,9 @@ pub struct Forecast {
     pub extrapolated: bool,
 }
 
+/// Longest holding period forecast, months.
+pub const MAX_MONTHS: f64 = 120.0;
+
 /// Forecasts `subject` `months` ahead, adding `added_miles` (the market's typical annual miles
 /// pro rata when `None`), at `level`.
 pub fn forecast(
@@ -38,6 +41,22 @@ pub fn forecast(
 ) -> Result<Forecast, AppraisalError> {
     if !(level > 0.0 && level < 1.0) {
         return Err(AppraisalError::BadLevel(level));
+    }
+    if !(months.is_finite() && (0.0..=MAX_MONTHS).contains(&months)) {
+        return Err(AppraisalError::BadInput {
+            what: "holding period",
+            value: months,
+            allowed: "0 to 120 months",
+        });
+    }
+    if let Some(miles) = added_miles {
+        if !(miles.is_finite() && (0.0..=crate::import::MAX_MILES).contains(&miles)) {
+            return Err(AppraisalError::BadInput {
+                what: "miles added over the holding period",
+                value: miles,
+                allowed: "0 to 1,000,000 miles",
+            });
+        }
     }
     let terms = subject_terms(market, fit, subject)?;
     let age = age_years(terms.model_year, fit.model.as_of_year());

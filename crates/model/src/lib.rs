@@ -33,4 +33,5 @@ pub mod subject;
 pub mod supply;
 pub mod texts;
 pub mod vocabulary;
+pub mod warnings;
 pub mod worksheet;

@@ -11,6 +11,7 @@ use crate::condition::Condition;
 use crate::hedonic::age_years;
 use crate::market::{Listing, Market};
 use crate::subject::Subject;
+use crate::vocabulary::name_key;
 
 /// Label of a listing or subject without a variant, as the grid prints it.
 pub const NO_VARIANT: &str = "(no variant)";
@@ -93,12 +94,21 @@ impl FittedRates {
             .ok_or(RatesError::ModelYear(year))
     }
 
+    /// The stored effect of a variant: by its exact label, else by the one stored label with
+    /// the same [`name_key`] (two stored labels that share a key are not guessed between).
     fn variant(&self, label: &str) -> Result<f64, RatesError> {
-        self.variant_effects
+        if let Some(v) = self.variant_effects.get(label) {
+            return Ok(*v);
+        }
+        let key = name_key(label);
+        let mut matches = self
+            .variant_effects
             .iter()
-            .find(|(k, _)| k.eq_ignore_ascii_case(label))
-            .map(|(_, v)| *v)
-            .ok_or_else(|| RatesError::Variant(label.to_owned()))
+            .filter(|(k, _)| name_key(k) == key);
+        match (matches.next(), matches.next()) {
+            (Some((_, v)), None) => Ok(*v),
+            _ => Err(RatesError::Variant(label.to_owned())),
+        }
     }
 
     fn condition(&self, condition: Condition) -> Result<f64, RatesError> {
@@ -133,5 +143,37 @@ impl FittedRates {
             condition_log_change: self.condition(subject.condition)?
                 - self.condition(comparable.condition)?,
         }))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn rates(variants: &[(&str, f64)]) -> FittedRates {
+        FittedRates {
+            miles_slope: 0.0,
+            model_year_effects: BTreeMap::new(),
+            variant_effects: variants
+                .iter()
+                .map(|(k, v)| ((*k).to_owned(), *v))
+                .collect(),
+            condition_effects: BTreeMap::new(),
+            df_residual: 10.0,
+        }
+    }
+
+    #[test]
+    fn a_variant_is_found_by_its_exact_label_before_its_spelling() {
+        // Regression: look-ups ignored case, so with "Plus" and "PLUS" both stored, "Plus"
+        // found "PLUS" first (BTreeMap order) and replayed with the wrong effect.
+        let r = rates(&[("Plus", 0.1), ("PLUS", 0.3), ("Core", 0.0)]);
+        assert_eq!(r.variant("Plus"), Ok(0.1));
+        assert_eq!(r.variant("PLUS"), Ok(0.3));
+        // Another spelling of two stored labels is not guessed between.
+        assert!(r.variant("plus").is_err());
+        // One stored label matches another spelling by its name key.
+        assert_eq!(r.variant(" core "), Ok(0.0));
+        assert_eq!(r.variant("CORE"), Ok(0.0));
     }
 }

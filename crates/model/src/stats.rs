@@ -11,10 +11,14 @@ pub fn t_two_sided(level: f64, df: f64) -> f64 {
     t_quantile(1.0 - (1.0 - level) / 2.0, df)
 }
 
-/// Quantile `t(p; df)` of Student's t distribution.
+/// Quantile `t(p; df)` of Student's t distribution; NaN unless `0 < p < 1` and `df > 0`
+/// (the library's own routines are never handed a value they may panic on).
 #[must_use]
 pub fn t_quantile(p: f64, df: f64) -> f64 {
-    if df > 1.0e7 || !df.is_finite() {
+    if !(p > 0.0 && p < 1.0) || df.is_nan() || df <= 0.0 {
+        return f64::NAN;
+    }
+    if df > 1.0e7 {
         return normal_quantile(p);
     }
     match StudentsT::new(0.0, 1.0, df) {
@@ -23,18 +27,44 @@ pub fn t_quantile(p: f64, df: f64) -> f64 {
     }
 }
 
-/// Two-sided p-value of a t statistic with `df` degrees of freedom.
+/// Two-sided p-value of a t statistic with `df` degrees of freedom: 0 for an infinite t, NaN
+/// for a NaN t or degrees of freedom (a coefficient and its standard error both 0 give such a
+/// t).
 #[must_use]
 pub fn t_p_value(t: f64, df: f64) -> f64 {
+    if t.is_nan() || df.is_nan() {
+        return f64::NAN;
+    }
+    if t.is_infinite() {
+        return 0.0;
+    }
+    if df > 1.0e7 {
+        return 2.0 * (1.0 - normal_cdf(t.abs()));
+    }
     match StudentsT::new(0.0, 1.0, df.max(1.0)) {
         Ok(dist) => 2.0 * (1.0 - dist.cdf(t.abs())),
         Err(_) => f64::NAN,
     }
 }
 
-/// Quantile of the standard normal distribution.
+/// Standard normal distribution function; NaN for NaN.
+#[must_use]
+pub fn normal_cdf(x: f64) -> f64 {
+    if x.is_nan() {
+        return f64::NAN;
+    }
+    match Normal::new(0.0, 1.0) {
+        Ok(dist) => dist.cdf(x),
+        Err(_) => f64::NAN,
+    }
+}
+
+/// Quantile of the standard normal distribution; NaN unless `0 < p < 1`.
 #[must_use]
 pub fn normal_quantile(p: f64) -> f64 {
+    if !(p > 0.0 && p < 1.0) {
+        return f64::NAN;
+    }
     match Normal::new(0.0, 1.0) {
         Ok(dist) => dist.inverse_cdf(p),
         Err(_) => f64::NAN,
@@ -88,6 +118,34 @@ pub fn weighted_mean_sd(values: &[f64], weights: &[f64]) -> (f64, Option<f64>) {
         .map(|(x, w)| w * (x - mean).powi(2))
         .sum();
     (mean, Some((ss / (v1 - v2 / v1)).sqrt()))
+}
+
+#[cfg(test)]
+mod guard_tests {
+    use super::*;
+
+    #[test]
+    fn values_the_distributions_cannot_take_give_nan_not_a_panic() {
+        for (p, df) in [
+            (f64::NAN, 10.0),
+            (0.9, f64::NAN),
+            (0.0, 10.0),
+            (1.0, 10.0),
+            (0.9, 0.0),
+            (0.9, -3.0),
+            (f64::INFINITY, 5.0),
+        ] {
+            assert!(t_quantile(p, df).is_nan(), "t({p}; {df})");
+        }
+        assert!(t_p_value(f64::NAN, 10.0).is_nan());
+        assert_eq!(t_p_value(f64::INFINITY, 10.0), 0.0);
+        assert_eq!(t_p_value(f64::NEG_INFINITY, f64::INFINITY), 0.0);
+        assert!(normal_quantile(f64::NAN).is_nan());
+        assert!(normal_cdf(f64::NAN).is_nan());
+        // Infinite degrees of freedom are the normal distribution.
+        assert!((t_quantile(0.975, f64::INFINITY) - 1.959_963_984_540_054).abs() < 1e-12);
+        assert!((t_p_value(1.959_963_984_540_054, 1e12) - 0.05).abs() < 1e-12);
+    }
 }
 
 #[cfg(test)]

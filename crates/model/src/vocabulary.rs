@@ -2,6 +2,21 @@
 
 use foldhash::HashMap;
 
+/// The form a name is matched by: surrounding spaces dropped, runs of inner white space made
+/// one space, letters in lower case ("  QUELLMARK " and "Quellmark" are one make). Every
+/// look-up of a make, model or variant by name goes through this one function.
+#[must_use]
+pub fn name_key(name: &str) -> String {
+    let mut key = String::with_capacity(name.len());
+    for word in name.split_whitespace() {
+        if !key.is_empty() {
+            key.push(' ');
+        }
+        key.extend(word.chars().flat_map(char::to_lowercase));
+    }
+    key
+}
+
 /// Index of a name in a [`Vocabulary`].
 pub type NameId = u32;
 
@@ -33,13 +48,14 @@ impl Vocabulary {
         self.ids.get(name).copied()
     }
 
-    /// The id of `name` compared without regard to ASCII case, if present.
+    /// The id of `name`, matched exactly or else by [`name_key`], if present.
     #[must_use]
     pub fn id_ignore_case(&self, name: &str) -> Option<NameId> {
         self.id(name).or_else(|| {
+            let key = name_key(name);
             self.names
                 .iter()
-                .position(|n| n.eq_ignore_ascii_case(name))
+                .position(|n| name_key(n) == key)
                 .map(|i| i as NameId)
         })
     }
@@ -60,5 +76,18 @@ impl Vocabulary {
     #[must_use]
     pub fn is_empty(&self) -> bool {
         self.names.is_empty()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::name_key;
+
+    #[test]
+    fn names_match_without_case_or_extra_spaces() {
+        assert_eq!(name_key("  QUELLMARK "), "quellmark");
+        assert_eq!(name_key("Tessel\t  Plus"), "tessel plus");
+        assert_eq!(name_key("ÉCLAT"), "éclat");
+        assert_eq!(name_key(""), "");
     }
 }

@@ -207,7 +207,13 @@ impl Design {
         let levels = &self.age_levels;
         let Some(&first) = levels.first() else { return };
         let last = levels[levels.len() - 1];
-        let age = age.clamp(f64::from(first), f64::from(last));
+        // A NaN age (never from the data; from a caller's arithmetic) takes the base level
+        // rather than an index before the first.
+        let age = if age.is_nan() {
+            f64::from(first)
+        } else {
+            age.clamp(f64::from(first), f64::from(last))
+        };
         // Indicator k (0-based) belongs to levels[k + 1]; the base level has none.
         let set = |out: &mut [f64], level_index: usize, weight: f64| {
             if level_index > 0 {

@@ -20,6 +20,7 @@ use crate::market::Market;
 use crate::ols::{Interval, OlsError, OlsFit};
 use crate::stats;
 use crate::vocabulary::NameId;
+use crate::warnings::{Warning, WarningCode};
 
 pub use design::{AgeForm, Design, MILES_UNIT, age_years};
 pub use mileage::MileageProfile;
@@ -219,8 +220,22 @@ pub struct HedonicModel {
     rows: usize,
     r_squared: f64,
     smearing: f64,
-    iterations: u32,
+    robust_report: Option<RobustReport>,
     mileage: MileageProfile,
+}
+
+/// How the robust fit went.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+pub struct RobustReport {
+    /// IRLS passes made.
+    pub iterations: u32,
+    /// The iteration limit.
+    pub limit: u32,
+    /// Whether the coefficients settled within the limit.
+    pub converged: bool,
+    /// Whether the residual scale collapsed to rounding noise (the least-squares fit is then
+    /// used).
+    pub scale_collapsed: bool,
 }
 
 impl ValidHedonicParams {
@@ -254,14 +269,23 @@ impl ValidHedonicParams {
         let df = (rows.len() - p) as f64;
         let mut residual_sd = (rss / df).sqrt();
         let mut coefficient_sd = residual_sd;
-        let mut iterations = 0;
+        let mut robust_report = None;
         if self.robust {
-            let outcome = robust::huber(self, &fit_rows, coefficients, residuals)?;
-            coefficients = outcome.coefficients;
-            residuals = outcome.residuals;
-            residual_sd = outcome.scale;
-            coefficient_sd = outcome.coefficient_sd;
-            iterations = outcome.iterations;
+            let outcome = robust::huber(self, &fit_rows, coefficients.clone(), residuals.clone())?;
+            robust_report = Some(RobustReport {
+                iterations: outcome.iterations,
+                limit: self.max_iterations,
+                converged: outcome.converged,
+                scale_collapsed: outcome.scale_collapsed,
+            });
+            // A collapsed scale cannot weigh residuals or set intervals: the least-squares
+            // fit stands, with its own residual SD, and the model says so.
+            if !outcome.scale_collapsed {
+                coefficients = outcome.coefficients;
+                residuals = outcome.residuals;
+                residual_sd = outcome.scale;
+                coefficient_sd = outcome.coefficient_sd;
+            }
         }
         let factor = ols.into_factor();
         let std_errors = factor
@@ -285,7 +309,7 @@ impl ValidHedonicParams {
             rows: rows.len(),
             r_squared: 1.0 - rss / tss,
             smearing,
-            iterations,
+            robust_report,
         })
     }
 }
@@ -475,7 +499,44 @@ impl HedonicModel {
     /// IRLS iterations used (0 for least squares).
     #[must_use]
     pub fn iterations(&self) -> u32 {
-        self.iterations
+        self.robust_report.map_or(0, |r| r.iterations)
+    }
+
+    /// How the robust fit went; `None` for least squares.
+    #[must_use]
+    pub fn robust_report(&self) -> Option<RobustReport> {
+        self.robust_report
+    }
+
+    /// What the fit itself cannot vouch for: a robust fit that did not settle, or whose scale
+    /// collapsed.
+    #[must_use]
+    pub fn warnings(&self) -> Vec<Warning> {
+        let mut out = Vec::new();
+        if let Some(r) = self.robust_report {
+            if r.scale_collapsed {
+                out.push(
+                    Warning::new(
+                        WarningCode::RobustScaleCollapsed,
+                        "More than half the listings sit exactly on the fitted curve (copies of one listing, or a fit of very few), so the robust fit has no spread to weigh the others by. The least-squares fit is used instead; check the file for repeated rows.",
+                    )
+                    .with("listings", self.rows as f64),
+                );
+            } else if !r.converged {
+                out.push(
+                    Warning::new(
+                        WarningCode::RobustFitNotConverged,
+                        format!(
+                            "The robust fit stopped at its limit of {} passes before its estimates settled, so they may still move. Compare with the least-squares fit (leave out --robust) before relying on the value.",
+                            r.limit
+                        ),
+                    )
+                    .with("iterations", f64::from(r.iterations))
+                    .with("limit", f64::from(r.limit)),
+                );
+            }
+        }
+        out
     }
 
     /// Appraisal year ages are counted to.

@@ -11,6 +11,22 @@ use super::{FitError, FitRows, ValidHedonicParams, accumulate, residuals};
 /// MAD to normal-SD factor.
 const MAD_TO_SD: f64 = 0.674_489_750_196_081_7;
 
+/// A residual scale below this fraction of the ln-price level is rounding noise, not a spread:
+/// more than half the listings sit exactly on the fit (a perfect fit of a tiny segment, or
+/// copies of one listing). Real markets have scales of 0.01 to 0.3 in ln price (a level near
+/// 10); rounding leaves about 1e-15. Scoring outliers against such a scale would flag nearly
+/// every other listing.
+pub const RELATIVE_SCALE_FLOOR: f64 = 1e-9;
+
+/// Change in the coefficients (relative) below which the iteration has settled.
+const TOLERANCE: f64 = 1e-8;
+
+/// Whether `scale` counts as collapsed for ln prices around `level`.
+#[must_use]
+pub fn scale_collapsed(scale: f64, level: f64) -> bool {
+    !(scale > RELATIVE_SCALE_FLOOR * level.abs().max(1.0))
+}
+
 /// The converged robust fit.
 pub(super) struct RobustOutcome {
     pub coefficients: Vec<f64>,
@@ -20,6 +36,10 @@ pub(super) struct RobustOutcome {
     /// Scale for the coefficient covariance.
     pub coefficient_sd: f64,
     pub iterations: u32,
+    /// Whether the coefficients settled within the iteration limit.
+    pub converged: bool,
+    /// Whether the scale collapsed (see [`RELATIVE_SCALE_FLOOR`]).
+    pub scale_collapsed: bool,
 }
 
 pub(super) fn huber(
@@ -29,13 +49,19 @@ pub(super) fn huber(
     mut resid: Vec<f64>,
 ) -> Result<RobustOutcome, FitError> {
     let k = params.huber_k;
+    let level =
+        rows.ln_price.iter().map(|p| p.abs()).sum::<f64>() / rows.ln_price.len().max(1) as f64;
     let mut scale = robust_scale(&resid);
     let mut iterations = 0;
+    let mut converged = false;
     while iterations < params.max_iterations {
-        iterations += 1;
-        if scale <= 0.0 {
-            break; // a perfect fit of at least half the rows: nothing to down-weight
+        if scale_collapsed(scale, level) {
+            // A perfect fit of at least half the rows: nothing to down-weight, and the least
+            // squares fit stands.
+            converged = true;
+            break;
         }
+        iterations += 1;
         let weights: Vec<f64> = resid
             .iter()
             .map(|r| {
@@ -59,10 +85,12 @@ pub(super) fn huber(
         coefficients = next;
         resid = residuals(rows, &coefficients);
         scale = robust_scale(&resid);
-        if change < 1e-8 {
+        if change < TOLERANCE {
+            converged = true;
             break;
         }
     }
+    let scale_collapsed = scale_collapsed(scale, level);
     let coefficient_sd = huber_coefficient_sd(&resid, scale, k, rows.design.width());
     Ok(RobustOutcome {
         coefficients,
@@ -70,6 +98,8 @@ pub(super) fn huber(
         scale,
         coefficient_sd,
         iterations,
+        converged,
+        scale_collapsed,
     })
 }
 
@@ -86,7 +116,7 @@ fn robust_scale(resid: &[f64]) -> f64 {
 
 fn huber_coefficient_sd(resid: &[f64], scale: f64, k: f64, p: usize) -> f64 {
     let n = resid.len() as f64;
-    if scale <= 0.0 || n <= p as f64 {
+    if !(scale > 0.0) || n <= p as f64 {
         return 0.0;
     }
     let mut sum_psi2 = 0.0;

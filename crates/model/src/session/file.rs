@@ -98,9 +98,13 @@ fn field_before(text: &str, offset: usize) -> Option<&str> {
     let mut rest = head;
     while let Some(colon) = rest.rfind(':') {
         let before = rest[..colon].trim_end();
+        // Just after the last character that cannot be in a name (which may be several bytes
+        // long: the text is whatever the file holds).
         let start = before
-            .rfind(|c: char| !(c.is_ascii_alphanumeric() || c == '_'))
-            .map_or(0, |i| i + 1);
+            .char_indices()
+            .rev()
+            .find(|(_, c)| !(c.is_ascii_alphanumeric() || *c == '_'))
+            .map_or(0, |(i, c)| i + c.len_utf8());
         let name = &before[start..];
         if !name.is_empty()
             && name

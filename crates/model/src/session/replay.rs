@@ -173,6 +173,7 @@ pub fn reproduce(session: &Session) -> Result<Reproduction, ReplayError> {
         &session.appraisal.model_estimate,
         rates.df_residual,
         request.level,
+        session.appraisal.reconciliation.band_rule,
     );
     let appraisal = Appraisal {
         subject: request.subject.clone(),

@@ -231,7 +231,9 @@ impl ProfileCheck {
     /// One plain sentence for the claim screen and the report.
     #[must_use]
     pub fn summary(&self) -> String {
-        let breaking = self.comparables.len() - self.complying;
+        // Saturating: a check read back from an edited session may claim more complying
+        // comparables than it lists.
+        let breaking = self.comparables.len().saturating_sub(self.complying);
         if self.enough() {
             format!(
                 "{} of {} comparables meet every rule of the profile; it requires at least {}.",
