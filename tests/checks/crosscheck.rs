@@ -10,7 +10,8 @@ use ndarray::{Array1, Array2};
 
 #[test]
 fn agrees_with_linfa_linear_on_longley() {
-    // NIST StRD Longley data; both solvers should agree with each other to many digits.
+    // NIST StRD Longley data (computed by two libraries, not a certified value): both solvers
+    // should agree with each other to at least 9 digits, as each reaches the certified values.
     let (x, y) = read_reference("longley.csv");
     let ours = OlsParams::new()
         .check()
@@ -18,12 +19,12 @@ fn agrees_with_linfa_linear_on_longley() {
         .fit(&Dataset::new(x.clone(), y.clone()))
         .unwrap();
     let theirs = LinearRegression::new().fit(&Dataset::new(x, y)).unwrap();
-    assert!(lre(ours.coefficients()[0], theirs.intercept()) > 7.0);
+    assert!(lre(ours.coefficients()[0], theirs.intercept()) >= 9.0);
     for (k, b) in theirs.params().iter().enumerate() {
         let l = lre(ours.coefficients()[k + 1], *b);
         println!("Longley B{}: ours vs linfa-linear LRE {l:.1}", k + 1);
         assert!(
-            l > 7.0,
+            l >= 9.0,
             "B{}: {} vs {}",
             k + 1,
             ours.coefficients()[k + 1],

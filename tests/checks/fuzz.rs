@@ -294,6 +294,12 @@ fn profile_bases() -> &'static [Vec<u8>] {
     BASES.get_or_init(|| vec![model::worksheet::SHIPPED_PROFILES.as_bytes().to_vec()])
 }
 
+/// A saved demo appraisal to work claims on.
+fn value_session() -> &'static model::session::Session {
+    static SESSION: OnceLock<model::session::Session> = OnceLock::new();
+    SESSION.get_or_init(|| acceptance::demo_session(Purpose::Value, None))
+}
+
 /// Reads a profile file; if it reads, works a claim under each profile on a saved appraisal.
 /// Returns how many claims were worked.
 fn read_and_use_profiles(bytes: &[u8]) -> usize {
@@ -303,8 +309,7 @@ fn read_and_use_profiles(bytes: &[u8]) -> usize {
     let Ok(file) = ProfileFile::parse(text, "fuzz-profiles.ron") else {
         return 0;
     };
-    static SESSION: OnceLock<model::session::Session> = OnceLock::new();
-    let session = SESSION.get_or_init(|| acceptance::demo_session(Purpose::Value, None));
+    let session = value_session();
     let mut worked = 0;
     for profile in file.profiles {
         let mut request = session.request.clone();

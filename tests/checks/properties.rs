@@ -70,20 +70,47 @@ proptest! {
         prop_assert!((refit.residual_sd() - fit.model.residual_sd()).abs() < 1e-12);
     }
 
+    /// The numbers obey their formulas, not merely their order: the prediction interval's
+    /// half-width in ln price is t·√(s² + se_fit²) and the confidence interval's t·se_fit
+    /// (Kutner et al., ch. 2 and 6), so (PI/t)² − (CI/t)² = s²; the indicated value is Σ w·adjusted
+    /// price; the band's half-width in ln price is t·σ of the source named; a higher level gives
+    /// a wider band.
     #[test]
-    fn the_value_band_contains_the_indicated_value(pick in 0usize..10_000, level in 0.5f64..0.99) {
+    fn intervals_values_and_bands_follow_their_formulas(pick in 0usize..10_000, level in 0.5f64..0.95) {
         let (market, fit) = shared();
         let row = fit.included_rows[pick % fit.included_rows.len()];
-        let mut request = model::appraisal::AppraisalRequest::new(model::subject::Subject::from_listing(&market.listing(row)));
-        request.level = level;
-        let a = model::appraisal::appraise(market, fit, &request).unwrap();
-        let r = &a.reconciliation;
-        prop_assert!(r.value_band.lower <= r.indicated_value && r.indicated_value <= r.value_band.upper);
-        let total: f64 = r.weights.iter().sum();
-        prop_assert!(r.weights.is_empty() || (total - 1.0).abs() < 1e-9);
+        let subject = model::subject::Subject::from_listing(&market.listing(row));
+        let appraise_at = |level: f64| {
+            let mut request = model::appraisal::AppraisalRequest::new(subject.clone());
+            request.level = level;
+            model::appraisal::appraise(market, fit, &request).unwrap()
+        };
+        let a = appraise_at(level);
         let m = &a.model_estimate;
-        prop_assert!(m.confidence_interval.lower <= m.median && m.median <= m.confidence_interval.upper);
-        prop_assert!(m.prediction_interval.lower <= m.confidence_interval.lower);
-        prop_assert!(m.prediction_interval.upper >= m.confidence_interval.upper);
+        let df = fit.model.df_residual() as f64;
+        let t = model::stats::t_two_sided(level, df);
+        let pi_half = (m.prediction_interval.upper / m.median).ln() / t;
+        let ci_half = (m.confidence_interval.upper / m.median).ln() / t;
+        let s = fit.model.residual_sd();
+        prop_assert!((pi_half * pi_half - ci_half * ci_half - s * s).abs() < 1e-9 * s * s, "{} {} {}", pi_half, ci_half, s);
+        prop_assert!(((m.median / m.prediction_interval.lower).ln() / t - pi_half).abs() < 1e-9);
+        let r = &a.reconciliation;
+        if !a.comparables.is_empty() {
+            let weighted: f64 = a.comparables.iter().map(|c| c.weight * c.adjusted_price).sum();
+            prop_assert!((weighted - r.indicated_value).abs() < 1e-6 * r.indicated_value);
+            let total: f64 = r.weights.iter().sum();
+            prop_assert!((total - 1.0).abs() < 1e-9);
+        }
+        let half = (r.value_band.upper / r.indicated_value).ln();
+        let expected = match r.band_source {
+            model::reconcile::BandSource::Comparables => {
+                model::stats::t_two_sided(level, r.effective_count - 1.0) * r.comparables_sigma.unwrap()
+            }
+            _ => t * r.model_sigma,
+        };
+        prop_assert!((half - expected).abs() < 1e-9, "{} vs {} ({:?})", half, expected, r.band_source);
+        let wider = appraise_at((level + 0.04).min(0.99));
+        let wider_half = (wider.reconciliation.value_band.upper / wider.reconciliation.indicated_value).ln();
+        prop_assert!(wider_half > half, "{} at a higher level vs {}", wider_half, half);
     }
 }

@@ -152,6 +152,26 @@ fn regression_an_error_after_a_character_of_several_bytes_is_reported_not_a_pani
 }
 
 #[test]
+fn regression_impossible_degrees_of_freedom_are_refused_not_a_hang() {
+    // Found by the fuzz check's long run: `df_residual: 1e-320` sent the t quantile's search
+    // into an endless loop inside the statistics library.
+    let text = std::fs::read_to_string(data_path("sessions/format-2-total-loss-claim.ron")).unwrap();
+    let edited = text.replacen("df_residual: 541.0,", "df_residual: 1e-320,", 1);
+    assert_ne!(edited, text);
+    let session = parse_session(&edited, "edited.ron").unwrap();
+    let e = reproduce(&session).unwrap_err().to_string();
+    assert!(e.contains("df_residual"), "{e}");
+    // A report is still built from the saved evidence, without hanging.
+    let identity = report::Identity {
+        session_file: "edited.ron".into(),
+        session_hash: "xxh3:0".into(),
+        reproduction: "does not reproduce".into(),
+    };
+    let doc = report::Report::from_session(&session, &identity);
+    assert!(report::html::render(&doc).contains("<html"));
+}
+
+#[test]
 fn a_garbled_value_is_named_by_line_and_field() {
     let text = session_to_ron(&demo_session(trade_in(), None)).unwrap();
     let garbled = text.replacen("miles: 41000.0", "miles: forty-one thousand", 1);

@@ -49,7 +49,7 @@ pub enum Command {
     /// Write an invented demo market as CSV.
     DemoMarket {
         /// Listings to generate (1 to 10,000,000).
-        #[arg(long, default_value_t = 20_000, value_parser = clap::value_parser!(u64).range(1..=10_000_000))]
+        #[arg(long, allow_negative_numbers = true, default_value_t = 20_000, value_parser = clap::value_parser!(u64).range(1..=10_000_000))]
         rows: u64,
         /// Random seed; the same seed gives the same file.
         #[arg(long, default_value_t = 1)]
@@ -68,7 +68,7 @@ pub enum Command {
         #[command(flatten)]
         market: MarketArgs,
         /// Oldest age in the table (1 to 60).
-        #[arg(long, default_value_t = 10, value_parser = clap::value_parser!(u32).range(1..=60))]
+        #[arg(long, allow_negative_numbers = true, default_value_t = 10, value_parser = clap::value_parser!(u32).range(1..=60))]
         max_age: u32,
     },
     /// Every listing's asking price against the market for its attributes, ranked.
@@ -77,7 +77,7 @@ pub enum Command {
         #[command(flatten)]
         market: MarketArgs,
         /// Interval level used to flag listings (strictly between 0 and 1).
-        #[arg(long, default_value_t = 0.8, value_parser = level)]
+        #[arg(long, allow_negative_numbers = true, default_value_t = 0.8, value_parser = level)]
         level: f64,
         /// Rows to print at each end (human output).
         #[arg(long, default_value_t = 15)]
@@ -109,13 +109,13 @@ pub enum Command {
         #[command(flatten)]
         market: MarketArgs,
         /// Folds (2 to 20).
-        #[arg(long, default_value_t = 5, value_parser = clap::value_parser!(u64).range(2..=20))]
+        #[arg(long, allow_negative_numbers = true, default_value_t = 5, value_parser = clap::value_parser!(u64).range(2..=20))]
         folds: u64,
         /// Interval level whose coverage is measured (strictly between 0 and 1).
-        #[arg(long, default_value_t = 0.8, value_parser = level)]
+        #[arg(long, allow_negative_numbers = true, default_value_t = 0.8, value_parser = level)]
         level: f64,
         /// Held-out listings valued by comparables per fold (0 to 10,000).
-        #[arg(long, default_value_t = 100, value_parser = clap::value_parser!(u64).range(0..=10_000))]
+        #[arg(long, allow_negative_numbers = true, default_value_t = 100, value_parser = clap::value_parser!(u64).range(0..=10_000))]
         comparable_subjects: u64,
     },
 }
@@ -161,13 +161,13 @@ pub struct MarketArgs {
     #[arg(long)]
     pub as_of: Option<String>,
     /// Field separator (default: detected from the header).
-    #[arg(long, value_parser = separator)]
+    #[arg(long, allow_negative_numbers = true, value_parser = separator)]
     pub delimiter: Option<char>,
     /// Unit of a column named only "mileage" or "odometer".
     #[arg(long, value_enum, default_value = "miles")]
     pub odometer: OdometerArg,
     /// Unsold listings older than this many days are stale (0 keeps them all; at most 3,650).
-    #[arg(long, default_value_t = 180, value_parser = clap::value_parser!(u32).range(0..=3_650))]
+    #[arg(long, allow_negative_numbers = true, default_value_t = 180, value_parser = clap::value_parser!(u32).range(0..=3_650))]
     pub stale_days: u32,
     /// Keep the listing on this file line even if a cleaning rule excludes it (repeatable).
     #[arg(long = "keep", value_name = "LINE")]
@@ -176,7 +176,7 @@ pub struct MarketArgs {
     #[arg(long = "drop", value_name = "LINE")]
     pub drop: Vec<u64>,
     /// Rows of the demo market when no file is given (1 to 10,000,000).
-    #[arg(long, default_value_t = 20_000, value_parser = clap::value_parser!(u64).range(1..=10_000_000))]
+    #[arg(long, allow_negative_numbers = true, default_value_t = 20_000, value_parser = clap::value_parser!(u64).range(1..=10_000_000))]
     pub demo_rows: u64,
     /// Print JSON instead of tables.
     #[arg(long)]
@@ -204,22 +204,22 @@ pub struct AppraiseArgs {
     #[arg(long)]
     pub subject: Option<String>,
     /// Level of the intervals and the value band (strictly between 0 and 1).
-    #[arg(long, default_value_t = 0.8, value_parser = level)]
+    #[arg(long, allow_negative_numbers = true, default_value_t = 0.8, value_parser = level)]
     pub level: f64,
     /// Comparables to keep (1 to 100).
-    #[arg(long, default_value_t = 8, value_parser = clap::value_parser!(u32).range(1..=100))]
+    #[arg(long, allow_negative_numbers = true, default_value_t = 8, value_parser = clap::value_parser!(u32).range(1..=100))]
     pub comps: u32,
     /// Model years either side of the subject's (0 to 30).
-    #[arg(long, default_value_t = 1, value_parser = clap::value_parser!(i32).range(0..=30))]
+    #[arg(long, allow_negative_numbers = true, default_value_t = 1, value_parser = clap::value_parser!(i32).range(0..=30))]
     pub year_window: i32,
     /// Mileage rule.
     #[arg(long, value_enum, default_value = "pricing")]
     pub mileage_rule: MileageRuleArg,
     /// Listed at most this many days before the appraisal date (0: no limit; at most 3,650).
-    #[arg(long, default_value_t = 90, value_parser = clap::value_parser!(u32).range(0..=3_650))]
+    #[arg(long, allow_negative_numbers = true, default_value_t = 90, value_parser = clap::value_parser!(u32).range(0..=3_650))]
     pub max_days: u32,
     /// At most this many miles away, 0 to 25,000 (needs a distance column).
-    #[arg(long, value_parser = number_in(0.0, 25_000.0))]
+    #[arg(long, allow_negative_numbers = true, value_parser = number_in(0.0, 25_000.0))]
     pub max_distance: Option<f64>,
     /// Only the subject's own variant.
     #[arg(long)]
@@ -235,10 +235,10 @@ pub struct AppraiseArgs {
     #[arg(long = "adjust", value_name = "SPEC")]
     pub adjust: Vec<String>,
     /// Also forecast the value after this many months (0 to 120).
-    #[arg(long, value_parser = number_in(0.0, 120.0))]
+    #[arg(long, allow_negative_numbers = true, value_parser = number_in(0.0, 120.0))]
     pub hold_months: Option<f64>,
     /// Miles added over the holding period, 0 to 500,000 (default: the market's typical pace).
-    #[arg(long, value_parser = number_in(0.0, 500_000.0))]
+    #[arg(long, allow_negative_numbers = true, value_parser = number_in(0.0, 500_000.0))]
     pub hold_miles: Option<f64>,
 
     /// Re-run a saved session: recompute it from its evidence and say whether it reproduces

@@ -5,6 +5,8 @@ mod load;
 mod output;
 mod render;
 mod session;
+#[cfg(test)]
+mod tests;
 
 use std::io::Write;
 use std::process::ExitCode;
@@ -245,8 +247,8 @@ fn parse_adjustment(spec: &str) -> Result<UserAdjustment> {
     })
 }
 
-fn comparable_rules(args: &AppraiseArgs) -> Result<ComparableRules> {
-    Ok(ComparableRules {
+fn comparable_rules(args: &AppraiseArgs) -> ComparableRules {
+    ComparableRules {
         model_year_window: args.year_window.max(0),
         mileage: match args.mileage_rule {
             MileageRuleArg::Pricing => MileageRule::default_pricing(),
@@ -261,7 +263,22 @@ fn comparable_rules(args: &AppraiseArgs) -> Result<ComparableRules> {
         same_variant_only: args.same_variant,
         count: args.comps as usize,
         ..ComparableRules::default()
-    })
+    }
+}
+
+/// The appraisal request the options describe for `subject` (before a claim's profile).
+fn appraisal_request(args: &AppraiseArgs, subject: Subject) -> Result<AppraisalRequest> {
+    let mut request = AppraisalRequest::new(subject);
+    request.rules = comparable_rules(args);
+    request.level = args.level;
+    request.choices.include = args.include_comp.iter().copied().collect();
+    request.choices.exclude = args.exclude_comp.iter().copied().collect();
+    request.user_adjustments = args
+        .adjust
+        .iter()
+        .map(|s| parse_adjustment(s))
+        .collect::<Result<_>>()?;
+    Ok(request)
 }
 
 fn appraise_command(args: &AppraiseArgs) -> Result<()> {
@@ -280,16 +297,7 @@ fn appraise_command(args: &AppraiseArgs) -> Result<()> {
         Some((&subject.make, &subject.model)),
     )?;
     let fit = load::fit(&loaded, &args.market, segment)?;
-    let mut request = AppraisalRequest::new(subject.clone());
-    request.rules = comparable_rules(args)?;
-    request.level = args.level;
-    request.choices.include = args.include_comp.iter().copied().collect();
-    request.choices.exclude = args.exclude_comp.iter().copied().collect();
-    request.user_adjustments = args
-        .adjust
-        .iter()
-        .map(|s| parse_adjustment(s))
-        .collect::<Result<_>>()?;
+    let mut request = appraisal_request(args, subject.clone())?;
     let purpose = session::purpose(args, &mut request)?;
     let appraisal = appraise(&loaded.market, &fit, &request)?;
     let worked = model::session::work_out(&purpose, &appraisal, &request)?;

@@ -205,11 +205,75 @@ fn bad_input_gives_a_non_zero_exit_and_one_line() {
     for args in cases {
         let out = comptrail(&args.iter().map(String::as_str).collect::<Vec<_>>());
         let stderr = String::from_utf8_lossy(&out.stderr);
-        assert!(!out.status.success(), "{args:?} should fail");
+        assert_eq!(
+            out.status.code(),
+            Some(1),
+            "{args:?} should fail with 1: {stderr}"
+        );
         assert_eq!(stderr.trim_end().lines().count(), 1, "{args:?}: {stderr}");
         assert!(stderr.starts_with("comptrail: "), "{stderr}");
     }
     std::fs::remove_dir_all(&dir).ok();
+}
+
+#[test]
+fn every_number_typed_is_checked_against_its_range() {
+    // Regression: `--age-form per-year --hold-months nan` and `--year-window 2147483647`
+    // panicked (exit 101). Every numeric option now names itself and its range, exit 1.
+    let cases: [(&[&str], &str); 17] = [
+        (
+            &["--age-form", "per-year", "--hold-months", "nan"],
+            "--hold-months",
+        ),
+        (&["--year-window", "2147483647"], "--year-window"),
+        (&["--year-window", "-1"], "--year-window"),
+        (&["--level", "1"], "--level"),
+        (&["--level", "NaN"], "--level"),
+        (&["--level", "0"], "--level"),
+        (&["--hold-months", "-3"], "--hold-months"),
+        (&["--hold-months", "inf"], "--hold-months"),
+        (&["--hold-miles", "1e9"], "--hold-miles"),
+        (&["--max-days", "99999"], "--max-days"),
+        (&["--max-distance", "-5"], "--max-distance"),
+        (&["--max-distance", "nan"], "--max-distance"),
+        (&["--stale-days", "4000"], "--stale-days"),
+        (&["--comps", "0"], "--comps"),
+        (&["--comps", "100000"], "--comps"),
+        (&["--adjust", "options:1e300:too much"], "--adjust"),
+        (
+            &["--adjust", "options:12.345:fractions of a cent"],
+            "--adjust",
+        ),
+    ];
+    for (extra, option) in cases {
+        let mut args = vec!["appraise"];
+        args.extend_from_slice(extra);
+        let out = comptrail(&args);
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(1), "{args:?}: {stderr}");
+        assert_eq!(stderr.trim_end().lines().count(), 1, "{args:?}: {stderr}");
+        assert!(stderr.contains(option), "{args:?}: {stderr}");
+    }
+    for (args, option) in [
+        (
+            vec!["demo-market", "--rows", "0", "--out", "x.csv"],
+            "--rows",
+        ),
+        (vec!["fit", "--demo-rows", "20000000"], "--demo-rows"),
+        (vec!["fit", "--delimiter", "é"], "--delimiter"),
+        (vec!["depreciation", "--max-age", "0"], "--max-age"),
+        (vec!["gaps", "--level", "2"], "--level"),
+        (vec!["backtest", "--folds", "1"], "--folds"),
+    ] {
+        let out = comptrail(&args);
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(1), "{args:?}: {stderr}");
+        assert!(stderr.contains(option), "{args:?}: {stderr}");
+    }
+    // Help still prints in full and succeeds.
+    let help = comptrail(&["appraise", "--help"]);
+    assert_eq!(help.status.code(), Some(0));
+    assert!(String::from_utf8_lossy(&help.stdout).contains("--hold-months"));
 }
 
 #[test]

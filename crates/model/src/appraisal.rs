@@ -52,10 +52,10 @@ pub enum AppraisalError {
         condition: String,
     },
     /// The level is not strictly between 0 and 1.
-    #[error("level {0} must be strictly between 0 and 1 (e.g. 0.8)")]
+    #[error("level {} must be strictly between 0 and 1 (e.g. 0.8)", crate::format::number(*.0))]
     BadLevel(f64),
     /// A number given for the appraisal is outside what it allows.
-    #[error("{what} = {value} is not valid: {allowed}")]
+    #[error("{what} = {} is not valid: {allowed}", crate::format::number(*.value))]
     BadInput {
         /// What it is.
         what: &'static str,

@@ -445,7 +445,7 @@ fn mark_outliers(
         Err(e) => return Some(format!("first robust fit failed: {e}")),
     };
     let s = model.residual_sd();
-    if model.robust_report().is_some_and(|r| r.scale_collapsed) || !(s > 0.0) {
+    if model.robust_report().is_some_and(|r| r.scale_collapsed) || s.is_nan() || s <= 0.0 {
         return Some(
             "more than half the listings sit exactly on the first fit, so there is no spread to measure outliers against".into(),
         );

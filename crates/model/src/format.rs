@@ -20,6 +20,19 @@ impl Dollars for Cents {
     }
 }
 
+/// A number as typed in an error message: plain for everyday sizes ("0.5", "2968.374"), in
+/// exponent form for the very large or very small ("1e-320", "1e300"), so a damaged value reads
+/// as one short word.
+#[must_use]
+pub fn number(value: f64) -> String {
+    let size = value.abs();
+    if value == 0.0 || !value.is_finite() || (1e-4..1e15).contains(&size) {
+        format!("{value}")
+    } else {
+        format!("{value:e}")
+    }
+}
+
 /// 48000 → "48,000" (rounded to a whole number).
 #[must_use]
 pub fn thousands(value: f64) -> String {
@@ -99,5 +112,9 @@ mod tests {
         assert_eq!(cents(-1000.0), "-$1,000.00");
         assert_eq!(cents(0.005), "$0.01");
         assert_eq!(signed_cents(12.5), "+$12.50");
+        assert_eq!(number(0.5), "0.5");
+        assert_eq!(number(1e-320), "1e-320");
+        assert_eq!(number(1e300), "1e300");
+        assert_eq!(number(f64::NAN), "NaN");
     }
 }

@@ -32,13 +32,13 @@ const MICROS: i64 = 1_000_000;
 #[derive(Debug, Clone, Copy, PartialEq, thiserror::Error)]
 pub enum MoneyError {
     /// Not a finite number.
-    #[error("{0} is not a number")]
+    #[error("{} is not a number", crate::format::number(*.0))]
     NotFinite(f64),
     /// Larger than comptrail accepts.
-    #[error("{0} is out of range (at most 10,000,000,000 in size)")]
+    #[error("{} is out of range (at most 10,000,000,000 in size)", crate::format::number(*.0))]
     OutOfRange(f64),
     /// An amount with a fraction of a cent.
-    #[error("{0} has a fraction of a cent (write at most two decimals)")]
+    #[error("{} has a fraction of a cent (write at most two decimals)", crate::format::number(*.0))]
     FractionOfACent(f64),
 }
 

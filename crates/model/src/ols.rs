@@ -39,7 +39,7 @@ pub enum OlsError {
         row: usize,
     },
     /// The interval level is not strictly between 0 and 1.
-    #[error("interval level {0} must be strictly between 0 and 1")]
+    #[error("interval level {} must be strictly between 0 and 1", crate::format::number(*.0))]
     BadLevel(f64),
     /// An error raised inside linfa.
     #[error("linfa: {0}")]

@@ -24,7 +24,7 @@ const TOLERANCE: f64 = 1e-8;
 /// Whether `scale` counts as collapsed for ln prices around `level`.
 #[must_use]
 pub fn scale_collapsed(scale: f64, level: f64) -> bool {
-    !(scale > RELATIVE_SCALE_FLOOR * level.abs().max(1.0))
+    scale.is_nan() || scale <= RELATIVE_SCALE_FLOOR * level.abs().max(1.0)
 }
 
 /// The converged robust fit.
@@ -116,7 +116,7 @@ fn robust_scale(resid: &[f64]) -> f64 {
 
 fn huber_coefficient_sd(resid: &[f64], scale: f64, k: f64, p: usize) -> f64 {
     let n = resid.len() as f64;
-    if !(scale > 0.0) || n <= p as f64 {
+    if scale.is_nan() || scale <= 0.0 || n <= p as f64 {
         return 0.0;
     }
     let mut sum_psi2 = 0.0;

@@ -24,7 +24,7 @@ pub enum ReplayError {
         source: RatesError,
     },
     /// A comparable's price is not a positive amount.
-    #[error("comparable on market line {line}: asking price {price} is not a positive amount")]
+    #[error("comparable on market line {line}: asking price {} is not a positive amount", crate::format::number(*.price))]
     BadPrice {
         /// The comparable's market line.
         line: u64,
@@ -32,8 +32,11 @@ pub enum ReplayError {
         price: f64,
     },
     /// The interval level is outside (0, 1).
-    #[error("request.level = {0} is not between 0 and 1")]
+    #[error("request.level = {} is not between 0 and 1", crate::format::number(*.0))]
     BadLevel(f64),
+    /// The saved fit's residual degrees of freedom are not a count of at least one.
+    #[error("fit.rates.df_residual = {} is not a count of at least 1", crate::format::number(*.0))]
+    BadDegreesOfFreedom(f64),
     /// The worksheet's inputs are not valid.
     #[error("worksheet: {0}")]
     Worksheet(#[from] WorksheetError),
@@ -142,6 +145,9 @@ pub fn reproduce(session: &Session) -> Result<Reproduction, ReplayError> {
         return Err(ReplayError::BadLevel(request.level));
     }
     let rates = &session.fit.rates;
+    if !(rates.df_residual.is_finite() && rates.df_residual >= 1.0) {
+        return Err(ReplayError::BadDegreesOfFreedom(rates.df_residual));
+    }
     let mut comparables = session
         .appraisal
         .comparables

@@ -11,7 +11,7 @@ use crate::money::{Cents, Decimal};
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum WorksheetError {
     /// An input is negative, not a number, or out of its range.
-    #[error("{field} = {value} is not valid: {why}")]
+    #[error("{field} = {} is not valid: {why}", crate::format::number(*.value))]
     BadInput {
         /// Which input.
         field: &'static str,
