@@ -123,6 +123,8 @@ pub enum Command {
 /// How age enters the fit.
 #[derive(Debug, Clone, Copy, ValueEnum)]
 pub enum AgeFormArg {
+    /// Chosen by the data: the form that falls with age and has the lowest BIC.
+    Auto,
     /// ln price linear in age (constant geometric rate).
     Linear,
     /// ln price quadratic in age.
@@ -152,7 +154,7 @@ pub struct MarketArgs {
     #[arg(long)]
     pub model: Option<String>,
     /// How age enters the fit.
-    #[arg(long, value_enum, default_value = "quadratic")]
+    #[arg(long, value_enum, default_value = "auto")]
     pub age_form: AgeFormArg,
     /// Huber robust fit instead of least squares.
     #[arg(long)]

@@ -54,6 +54,7 @@ fn parse_as_of(args: &MarketArgs) -> Result<Option<NaiveDate>> {
 pub fn fit_settings(args: &MarketArgs) -> Result<FitSettings> {
     let mut settings = FitSettings {
         age_form: match args.age_form {
+            AgeFormArg::Auto => AgeForm::Auto,
             AgeFormArg::Linear => AgeForm::Linear,
             AgeFormArg::Quadratic => AgeForm::Quadratic,
             AgeFormArg::PerYear => AgeForm::PerYear,

@@ -146,7 +146,7 @@ fn default_market_args() -> MarketArgs {
         file: None,
         make: None,
         model: None,
-        age_form: args::AgeFormArg::Quadratic,
+        age_form: args::AgeFormArg::Auto,
         robust: false,
         as_of: None,
         delimiter: None,

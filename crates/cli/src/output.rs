@@ -32,6 +32,8 @@ pub struct ImportSummary {
     pub ignored_columns: Vec<String>,
     pub condition_inferred: usize,
     pub blank_lines: usize,
+    /// Makes, models and variants written in several spellings and read as one.
+    pub merged_spellings: Vec<model::market::MergedSpelling>,
 }
 
 impl ImportSummary {
@@ -51,6 +53,7 @@ impl ImportSummary {
             ignored_columns: r.ignored_columns.clone(),
             condition_inferred: r.condition_inferred,
             blank_lines: r.blank_lines,
+            merged_spellings: r.merged_spellings.clone(),
         }
     }
 }
@@ -70,6 +73,8 @@ pub struct FitSummary {
     pub segment: String,
     pub as_of: String,
     pub age_form: model::hedonic::AgeForm,
+    /// Why that age form: the data's choice under `auto`, else "as asked".
+    pub age_form_reason: String,
     pub robust: bool,
     pub n: usize,
     pub terms: Vec<Term>,
@@ -88,6 +93,10 @@ impl FitSummary {
             segment: market.segment_name(fit.segment),
             as_of: fit.as_of.to_string(),
             age_form: m.params().age_form,
+            age_form_reason: fit.age_form_choice.as_ref().map_or_else(
+                || format!("{} age: as asked", m.params().age_form),
+                |c| c.reason.clone(),
+            ),
             robust: m.params().robust,
             n: m.rows(),
             terms: m.terms(),

@@ -59,6 +59,19 @@ pub fn import(s: &ImportSummary) -> String {
             thousands(s.blank_lines as f64)
         );
     }
+    for m in &s.merged_spellings {
+        let spellings = m
+            .spellings
+            .iter()
+            .map(|(text, n)| format!("\"{text}\" ({n})"))
+            .collect::<Vec<_>>()
+            .join(", ");
+        let _ = writeln!(
+            o,
+            "  {} spellings read as one, shown as \"{}\": {spellings}",
+            m.field, m.shown
+        );
+    }
     if !s.ignored_columns.is_empty() {
         let _ = writeln!(o, "  ignored columns: {}", s.ignored_columns.join(", "));
     }
@@ -95,6 +108,7 @@ pub fn fit(f: &FitSummary) -> String {
         f.r_squared,
         f.smearing_factor
     );
+    let _ = writeln!(o, "  age form: {}", f.age_form_reason);
     let _ = writeln!(
         o,
         "  {:<26} {:>12} {:>11} {:>9} {:>10}",

@@ -160,6 +160,8 @@ impl Numbers {
 /// What `appraise --session` reports.
 #[derive(Debug, Serialize)]
 pub struct SessionCheck {
+    /// The warnings saved with the appraisal (none in sessions before format 3).
+    pub warnings: Vec<model::warnings::Warning>,
     pub session: String,
     pub format_version: u32,
     pub purpose: &'static str,
@@ -249,6 +251,7 @@ pub fn check(args: &AppraiseArgs, path: &Path) -> Result<bool> {
         None
     };
     let doc = SessionCheck {
+        warnings: session.appraisal.warnings.clone(),
         session: path.display().to_string(),
         format_version: on_disk,
         purpose: session.purpose.title(),
@@ -311,6 +314,7 @@ fn render_check(d: &SessionCheck) -> String {
         },
         d.saved.format("%Y-%m-%d %H:%M UTC")
     );
+    out.push_str(&crate::render::warnings(&d.warnings));
     let _ = writeln!(
         out,
         "market: {} (hash {}): {}",
@@ -332,7 +336,8 @@ fn render_check(d: &SessionCheck) -> String {
     if d.reproduces {
         let _ = writeln!(
             out,
-            "reproduces to the cent from the saved evidence: {}",
+            "reproduces from the saved evidence ({}): {}",
+            model::session::REPRODUCTION_RULE,
             bottom(&d.recomputed)
         );
     } else {
@@ -387,15 +392,7 @@ pub fn report(path: &Path, pdf: Option<&Path>, html: Option<&Path>) -> Result<()
             |n| n.to_string_lossy().into_owned(),
         ),
         session_hash: content_hash(&bytes),
-        reproduction: if reproduction.reproduces() {
-            "recomputed from the saved evidence: every number matches to the cent".into()
-        } else {
-            format!(
-                "recomputed from the saved evidence: {} numbers differ from the saved ones (first: {})",
-                reproduction.differences.len(),
-                reproduction.differences[0].what
-            )
-        },
+        reproduction: reproduction.summary(),
     };
     let doc = report::Report::from_session(&session, &identity);
     if let Some(out) = pdf {

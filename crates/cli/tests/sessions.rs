@@ -132,7 +132,10 @@ fn a_moved_market_file_is_reported_and_the_evidence_still_reproduces() {
     ]);
     let shown = text(&out);
     assert!(shown.contains("CHANGED"), "{shown}");
-    assert!(shown.contains("reproduces to the cent"), "{shown}");
+    assert!(
+        shown.contains(model::session::REPRODUCTION_RULE),
+        "{shown}"
+    );
     assert!(
         shown.contains("appraised again on the current market file"),
         "{shown}"

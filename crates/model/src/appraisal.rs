@@ -14,13 +14,14 @@ use crate::comparables::{
     CandidateIndex, ComparableChoices, ComparableRules, RuleBreak, SubjectKey, choose_comparables,
 };
 use crate::hedonic::{
-    AgeForm, Attributes, FitError, HedonicModel, HedonicParams, ValueEstimate, age_years,
+    AgeForm, AgeFormChoice, Attributes, FitError, HedonicModel, HedonicParams, ValueEstimate,
+    age_years, choose_age_form,
 };
 use crate::market::{Listing, Market, Segment};
 use crate::reconcile::{BandRule, ReconcileInput, Reconciliation, reconcile};
 use crate::subject::Subject;
 use crate::vocabulary::NO_NAME;
-use crate::warnings::{Warning, WarningCode};
+use crate::warnings::Warning;
 
 /// Why an appraisal could not be made.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -87,10 +88,33 @@ impl FitSettings {
     /// date, else today.
     #[must_use]
     pub fn as_of_for(&self, market: &Market) -> NaiveDate {
-        self.as_of
-            .or_else(|| market.latest_date())
-            .unwrap_or_else(crate::import::today)
+        self.as_of_with_source(market).0
     }
+
+    /// The appraisal date for `market` and where it came from.
+    #[must_use]
+    pub fn as_of_with_source(&self, market: &Market) -> (NaiveDate, AsOfSource) {
+        if let Some(d) = self.as_of {
+            return (d, AsOfSource::Given);
+        }
+        match market.latest_date() {
+            Some(d) => (d, AsOfSource::LatestInMarket),
+            None => (crate::import::today(), AsOfSource::Today),
+        }
+    }
+}
+
+/// Where an appraisal date came from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, Default)]
+#[serde(rename_all = "snake_case")]
+pub enum AsOfSource {
+    /// Given by the appraiser (`--as-of`, the date of loss, the workbench's setting).
+    #[default]
+    Given,
+    /// The latest listing or sale date in the market file.
+    LatestInMarket,
+    /// The computer's clock: the file has no dates and none was given.
+    Today,
 }
 
 /// A cleaned and fitted segment.
@@ -108,22 +132,20 @@ pub struct MarketFit {
     pub included_rows: Vec<usize>,
     /// Every row of the segment by model year, for the comparable search.
     pub candidates: CandidateIndex,
+    /// Where the appraisal date came from.
+    pub as_of_source: AsOfSource,
+    /// Whether any listing of the segment has a listing or sale date.
+    pub segment_dated: bool,
+    /// The age form the data chose, when the settings asked for `auto`.
+    pub age_form_choice: Option<AgeFormChoice>,
 }
 
 impl MarketFit {
-    /// What the fitted market cannot vouch for (empty when nothing is wrong).
+    /// What the fitted market cannot vouch for, whatever the subject (empty when nothing is
+    /// wrong); see [`crate::guards::fit_warnings`].
     #[must_use]
     pub fn warnings(&self) -> Vec<Warning> {
-        let mut out = self.model.warnings();
-        if let Some(why) = &self.cleaning.outlier_check_skipped {
-            out.push(Warning::new(
-                WarningCode::OutliersNotChecked,
-                format!(
-                    "Listings were not checked for outliers or for prices implausibly far below the market ({why}). A damaged or mispriced listing may be in the fit; look over the cheapest listings by hand."
-                ),
-            ));
-        }
-        out
+        crate::guards::fit_warnings(self)
     }
 }
 
@@ -162,7 +184,7 @@ pub fn fit_market(
     settings: &FitSettings,
     overrides: &Overrides,
 ) -> Result<MarketFit, AppraisalError> {
-    let as_of = settings.as_of_for(market);
+    let (as_of, as_of_source) = settings.as_of_with_source(market);
     let cleaning = clean_segment(
         market,
         segment,
@@ -172,10 +194,19 @@ pub fn fit_market(
         overrides,
     );
     let included_rows = cleaning.included_rows();
+    let age_form_choice = (settings.age_form == AgeForm::Auto)
+        .then(|| choose_age_form(market, &included_rows, as_of));
+    let age_form = age_form_choice
+        .as_ref()
+        .map_or(settings.age_form, |c| c.chosen);
     let params = HedonicParams::new(as_of)
-        .age_form(settings.age_form)
+        .age_form(age_form)
         .robust(settings.robust)
         .check()?;
+    let segment_dated = cleaning
+        .rows
+        .iter()
+        .any(|&r| market.listed_on[r].is_some() || market.sold_on[r].is_some());
     // The comparables' index needs only the cleaning: build it while the model is fitted.
     let (model, candidates) = std::thread::scope(|scope| {
         let index = scope.spawn(|| CandidateIndex::new(market, &cleaning.rows, &cleaning));
@@ -193,6 +224,9 @@ pub fn fit_market(
         cleaning,
         model: model?,
         included_rows,
+        as_of_source,
+        segment_dated,
+        age_form_choice,
     })
 }
 
@@ -340,22 +374,21 @@ pub struct Appraisal {
     pub reconciliation: Reconciliation,
 }
 
-/// The fit's warnings and this appraisal's own.
-fn appraisal_warnings(fit: &MarketFit, refused: &[RefusedComparable]) -> Vec<Warning> {
-    let mut out = fit.warnings();
-    for r in refused {
-        out.push(
-            Warning::new(
-                WarningCode::ComparableNotAdjustable,
-                format!(
-                    "The comparable on market line {} was included by hand but is left out of the value: {}.",
-                    r.listing.line, r.reason
-                ),
-            )
-            .with("line", r.listing.line as f64),
-        );
+/// `subject` with its make, model and variant written as the market writes them (it may have
+/// been typed "QUELLMARK tessel").
+fn as_the_market_spells_it(market: &Market, subject: &Subject, terms: &SubjectTerms) -> Subject {
+    let spelled = |typed: &str| {
+        market
+            .names
+            .id_ignore_case(typed)
+            .map_or_else(|| typed.to_owned(), |id| market.names.name(id).to_owned())
+    };
+    Subject {
+        make: spelled(&subject.make),
+        model: spelled(&subject.model),
+        variant: (terms.variant != NO_NAME).then(|| market.names.name(terms.variant).to_owned()),
+        ..subject.clone()
     }
-    out
 }
 
 /// A comparable included by hand that could not be adjusted to the subject.
@@ -514,15 +547,25 @@ pub fn appraise_among(
         request.level,
         crate::reconcile::BAND_RULE,
     );
+    let warnings = crate::guards::appraisal_warnings(&crate::guards::AppraisalFacts {
+        fit,
+        model_year: terms.model_year,
+        miles: terms.miles,
+        comparables_asked: request.rules.count,
+        comparables: &comparables,
+        refused: &refused,
+        model_median: model_estimate.median,
+        reconciliation: &reconciliation,
+    });
     Ok(Appraisal {
-        subject: request.subject.clone(),
+        subject: as_the_market_spells_it(market, &request.subject, &terms),
         as_of: fit.as_of,
         model_estimate,
         comparables,
         candidates_considered: selection.considered,
         candidates_passed: selection.passed,
         stopped_by: selection.stopped_by,
-        warnings: appraisal_warnings(fit, &refused),
+        warnings,
         refused,
         reconciliation,
     })

@@ -110,6 +110,9 @@ pub fn backtest(
             model,
             included_rows: training,
             candidates,
+            as_of_source: fit.as_of_source,
+            segment_dated: fit.segment_dated,
+            age_form_choice: fit.age_form_choice.clone(),
         };
         for &row in &held {
             let a = fold_fit.model.attributes_of_row(market, row);

@@ -432,6 +432,16 @@ fn mark_outliers(
         .div_ceil(rules.robust_sample_limit.max(1))
         .max(1);
     let sample: Vec<usize> = clean.iter().copied().step_by(step).collect();
+    // The automatic form is chosen after cleaning; this first fit takes the quadratic only
+    // when the listings can carry it.
+    let age_form = if age_form == AgeForm::Auto {
+        let width =
+            crate::hedonic::Design::for_rows(market, &sample, AgeForm::Quadratic, as_of.year())
+                .width();
+        crate::hedonic::cleaning_form(clean.len(), width)
+    } else {
+        age_form
+    };
     let params = match HedonicParams::new(as_of)
         .age_form(age_form)
         .robust(true)

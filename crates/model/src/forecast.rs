@@ -24,6 +24,9 @@ pub struct Forecast {
     pub change_pct: f64,
     /// Whether the end age lies beyond the oldest age in the market (an extrapolation).
     pub extrapolated: bool,
+    /// What the market cannot support about the forecast.
+    #[serde(default)]
+    pub warnings: Vec<crate::warnings::Warning>,
 }
 
 /// Longest holding period forecast, months.
@@ -76,7 +79,11 @@ pub fn forecast(
     let now = fit.model.estimate(&now_attributes, level);
     let then = fit.model.estimate(&then_attributes, level);
     let oldest = fit.model.design().age_levels.last().copied().unwrap_or(0);
+    let warnings = crate::guards::forecast_warning(fit, end_age, then_attributes.miles)
+        .into_iter()
+        .collect();
     Ok(Forecast {
+        warnings,
         months,
         added_miles,
         now,

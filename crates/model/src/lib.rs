@@ -19,6 +19,7 @@ pub mod forecast;
 pub mod format;
 pub mod gaps;
 pub mod gower;
+pub mod guards;
 pub mod hedonic;
 pub mod import;
 pub mod linalg;

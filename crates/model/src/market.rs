@@ -324,6 +324,71 @@ impl Market {
         self.options.extend(other.options.into_iter().map(map));
     }
 
+    /// Merges the spellings of one make, model or variant that differ only in case or spaces
+    /// ("QUELLMARK", "Quellmark", "tessel ", "Tessel"): each column's ids are replaced by its
+    /// commonest spelling's (the first in the file on a tie), so the market holds one name,
+    /// one model. Returns what was merged, for the import report.
+    pub fn merge_spellings(&mut self) -> Vec<MergedSpelling> {
+        let mut merged = Vec::new();
+        for field in ["make", "model", "variant"] {
+            let column = match field {
+                "make" => &self.make,
+                "model" => &self.model,
+                _ => &self.variant,
+            };
+            let mut counts = vec![0usize; self.names.len()];
+            for &id in column {
+                if id != NO_NAME {
+                    counts[id as usize] += 1;
+                }
+            }
+            let mut by_key: std::collections::BTreeMap<String, Vec<NameId>> =
+                std::collections::BTreeMap::new();
+            for (id, &n) in counts.iter().enumerate() {
+                if n > 0 {
+                    by_key
+                        .entry(crate::vocabulary::name_key(self.names.name(id as NameId)))
+                        .or_default()
+                        .push(id as NameId);
+                }
+            }
+            let mut remap: Vec<NameId> = (0..self.names.len() as NameId).collect();
+            for ids in by_key.into_values().filter(|ids| ids.len() > 1) {
+                // Ids ascend in order of first appearance: max_by_key keeps the last maximum,
+                // so walk them in reverse to keep the first.
+                let shown = ids
+                    .iter()
+                    .rev()
+                    .copied()
+                    .max_by_key(|&id| counts[id as usize])
+                    .unwrap_or(ids[0]);
+                for &id in &ids {
+                    remap[id as usize] = shown;
+                    if id != shown {
+                        self.names.alias(id, shown);
+                    }
+                }
+                merged.push(MergedSpelling {
+                    field: field.to_owned(),
+                    shown: self.names.name(shown).to_owned(),
+                    spellings: ids
+                        .iter()
+                        .map(|&id| (self.names.name(id).to_owned(), counts[id as usize]))
+                        .collect(),
+                });
+            }
+            let column = match field {
+                "make" => &mut self.make,
+                "model" => &mut self.model,
+                _ => &mut self.variant,
+            };
+            for id in column.iter_mut().filter(|id| **id != NO_NAME) {
+                *id = remap[*id as usize];
+            }
+        }
+        merged
+    }
+
     /// Appends an owned listing (used to rebuild a market from saved evidence and in tests).
     pub fn push(&mut self, listing: &Listing) {
         let intern = |names: &mut Vocabulary, v: &Option<String>| {
@@ -354,6 +419,17 @@ impl Market {
         let options = intern(&mut self.names, &listing.options);
         self.options.push(options);
     }
+}
+
+/// Spellings of one name merged on import.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct MergedSpelling {
+    /// The column: `make`, `model` or `variant`.
+    pub field: String,
+    /// The name shown for all of them (the commonest spelling).
+    pub shown: String,
+    /// Each spelling as written, with how many rows used it.
+    pub spellings: Vec<(String, usize)>,
 }
 
 /// XXH3 64-bit hash of bytes, as 16 hex digits prefixed "xxh3:": a content fingerprint for

@@ -52,6 +52,14 @@ impl From<linfa::Error> for OlsError {
     }
 }
 
+/// [`OlsFit::bic`] from its parts: `n` observations, `p` coefficients, residual sum of squares.
+#[must_use]
+pub fn bic(n: usize, p: usize, rss: f64) -> f64 {
+    let n = n as f64;
+    let log_likelihood = -0.5 * n * ((2.0 * std::f64::consts::PI * rss / n).ln() + 1.0);
+    -2.0 * log_likelihood + p as f64 * n.ln()
+}
+
 /// Unchecked OLS settings.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct OlsParams(ValidOlsParams);
@@ -275,6 +283,15 @@ impl OlsFit {
     #[must_use]
     pub fn residual_sd(&self) -> f64 {
         self.mse().sqrt()
+    }
+
+    /// Schwarz's Bayesian information criterion for the Gaussian linear model (Schwarz 1978):
+    /// `−2 ln L + p ln n`, with the maximised log-likelihood `ln L = −(n/2)(ln(2π·RSS/n) + 1)`
+    /// and `p` the number of coefficients (the error variance is not counted, as in the
+    /// general-purpose libraries this is checked against). Lower is better.
+    #[must_use]
+    pub fn bic(&self) -> f64 {
+        bic(self.rows, self.coefficients.len(), self.rss)
     }
 
     /// Coefficient of determination; uncentred when the model has no intercept.

@@ -23,29 +23,33 @@ pub type NameId = u32;
 /// The id meaning "no value" in an interned column.
 pub const NO_NAME: NameId = NameId::MAX;
 
-/// A set of distinct strings, each with a stable small id.
+/// A set of distinct strings, each with a stable small id. A spelling merged into another
+/// ([`Vocabulary::alias`]) answers with the other's id.
 #[derive(Debug, Clone, Default)]
 pub struct Vocabulary {
     names: Vec<String>,
     ids: HashMap<String, NameId>,
+    /// The id each name stands for: itself, or the spelling it was merged into.
+    canonical: Vec<NameId>,
 }
 
 impl Vocabulary {
     /// Returns the id of `name`, adding it when new.
     pub fn intern(&mut self, name: &str) -> NameId {
         if let Some(&id) = self.ids.get(name) {
-            return id;
+            return self.canonical[id as usize];
         }
         let id = self.names.len() as NameId;
         self.names.push(name.to_owned());
         self.ids.insert(name.to_owned(), id);
+        self.canonical.push(id);
         id
     }
 
     /// The id of `name` if present.
     #[must_use]
     pub fn id(&self, name: &str) -> Option<NameId> {
-        self.ids.get(name).copied()
+        self.ids.get(name).map(|&i| self.canonical[i as usize])
     }
 
     /// The id of `name`, matched exactly or else by [`name_key`], if present.
@@ -56,8 +60,16 @@ impl Vocabulary {
             self.names
                 .iter()
                 .position(|n| name_key(n) == key)
-                .map(|i| i as NameId)
+                .map(|i| self.canonical[i])
         })
+    }
+
+    /// Makes `spelling` stand for `shown` from now on (both ids stay valid; look-ups and new
+    /// interning of `spelling` answer with `shown`).
+    pub fn alias(&mut self, spelling: NameId, shown: NameId) {
+        if let Some(c) = self.canonical.get_mut(spelling as usize) {
+            *c = shown;
+        }
     }
 
     /// The name behind `id`; empty for [`NO_NAME`] or an unknown id.

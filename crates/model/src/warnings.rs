@@ -22,9 +22,50 @@ pub enum WarningCode {
     OutliersNotChecked,
     /// A comparable included by hand has a variant or condition the fit cannot price.
     ComparableNotAdjustable,
+    /// The subject's model year lies outside the years in the fit.
+    SubjectYearOutsideMarket,
+    /// The subject's mileage lies outside the mileages in the fit.
+    SubjectMileageOutsideMarket,
+    /// The fitted value rises with age somewhere inside the data.
+    AgeCurveNotFalling,
+    /// The fitted value rises with mileage.
+    MileageNotFalling,
+    /// Too few listings for the terms of the fit.
+    FewListings,
+    /// No listing or sale dates: the appraisal date was given or taken from the clock.
+    NoListingDates,
+    /// Fewer comparables than asked for (or than a profile requires).
+    FewComparables,
+    /// Comparables needing large gross adjustments.
+    LargeAdjustments,
+    /// The model's estimate lies outside the band the comparables give.
+    ModelAndComparablesDisagree,
+    /// A forecast beyond the ages or mileages of the market.
+    ForecastBeyondMarket,
+    /// Held-out listings miss their estimates by more than the band.
+    BacktestErrorExceedsBand,
 }
 
 impl WarningCode {
+    /// Every code, in the order the README lists them.
+    pub const ALL: [WarningCode; 15] = [
+        Self::SubjectYearOutsideMarket,
+        Self::SubjectMileageOutsideMarket,
+        Self::AgeCurveNotFalling,
+        Self::MileageNotFalling,
+        Self::FewListings,
+        Self::NoListingDates,
+        Self::FewComparables,
+        Self::LargeAdjustments,
+        Self::ModelAndComparablesDisagree,
+        Self::RobustFitNotConverged,
+        Self::RobustScaleCollapsed,
+        Self::OutliersNotChecked,
+        Self::ComparableNotAdjustable,
+        Self::ForecastBeyondMarket,
+        Self::BacktestErrorExceedsBand,
+    ];
+
     /// The stable code, as in JSON.
     #[must_use]
     pub fn as_str(self) -> &'static str {
@@ -33,6 +74,17 @@ impl WarningCode {
             Self::RobustScaleCollapsed => "robust_scale_collapsed",
             Self::OutliersNotChecked => "outliers_not_checked",
             Self::ComparableNotAdjustable => "comparable_not_adjustable",
+            Self::SubjectYearOutsideMarket => "subject_year_outside_market",
+            Self::SubjectMileageOutsideMarket => "subject_mileage_outside_market",
+            Self::AgeCurveNotFalling => "age_curve_not_falling",
+            Self::MileageNotFalling => "mileage_not_falling",
+            Self::FewListings => "few_listings",
+            Self::NoListingDates => "no_listing_dates",
+            Self::FewComparables => "few_comparables",
+            Self::LargeAdjustments => "large_adjustments",
+            Self::ModelAndComparablesDisagree => "model_and_comparables_disagree",
+            Self::ForecastBeyondMarket => "forecast_beyond_market",
+            Self::BacktestErrorExceedsBand => "backtest_error_exceeds_band",
         }
     }
 }

@@ -15,8 +15,7 @@ pub struct Identity {
     pub session_file: String,
     /// XXH3-64 of the session file's bytes.
     pub session_hash: String,
-    /// What reopening the session found ("recomputed from the saved evidence: every number
-    /// matches to the cent").
+    /// What reopening the session found (`Reproduction::summary`).
     pub reproduction: String,
 }
 

@@ -588,8 +588,9 @@ impl Workbench {
         if r.reproduces() {
             ui.label(
                 RichText::new(format!(
-                    "{name}: the saved evidence reproduces {} to the cent.",
-                    money(stored)
+                    "{name}: the saved evidence reproduces {} ({}).",
+                    money(stored),
+                    model::session::REPRODUCTION_RULE
                 ))
                 .strong(),
             );

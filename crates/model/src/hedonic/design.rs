@@ -18,10 +18,14 @@ pub fn age_years(model_year: i32, as_of_year: i32) -> f64 {
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, Default)]
 #[serde(rename_all = "snake_case")]
 pub enum AgeForm {
+    /// Chosen by the data: the form whose value falls with age and whose BIC is lowest (see
+    /// `hedonic::choose_age_form`). Resolved before any fit; a fit is always of one of the
+    /// forms below.
+    #[default]
+    Auto,
     /// ln P linear in age: geometric depreciation at a constant rate.
     Linear,
     /// ln P quadratic in age: the rate may fall (or rise) with age.
-    #[default]
     Quadratic,
     /// One indicator per age in the data: no shape imposed.
     PerYear,
@@ -30,6 +34,7 @@ pub enum AgeForm {
 impl std::fmt::Display for AgeForm {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         f.write_str(match self {
+            AgeForm::Auto => "auto",
             AgeForm::Linear => "linear",
             AgeForm::Quadratic => "quadratic",
             AgeForm::PerYear => "per-year",
@@ -38,10 +43,14 @@ impl std::fmt::Display for AgeForm {
 }
 
 impl AgeForm {
-    /// Reads "linear", "quadratic" or "per-year".
+    /// The forms a fit can take, simplest first.
+    pub const FITTED: [AgeForm; 3] = [AgeForm::Linear, AgeForm::Quadratic, AgeForm::PerYear];
+
+    /// Reads "auto", "linear", "quadratic" or "per-year".
     #[must_use]
     pub fn parse(text: &str) -> Option<Self> {
         match text.trim().to_ascii_lowercase().replace('_', "-").as_str() {
+            "auto" => Some(Self::Auto),
             "linear" => Some(Self::Linear),
             "quadratic" => Some(Self::Quadratic),
             "per-year" | "peryear" | "dummies" => Some(Self::PerYear),
@@ -104,7 +113,8 @@ impl Design {
 
         let mut names = vec!["intercept".to_owned()];
         match age_form {
-            AgeForm::Linear => names.push("age_years".into()),
+            // `Auto` is resolved before a fit; a design asked for it directly is linear.
+            AgeForm::Linear | AgeForm::Auto => names.push("age_years".into()),
             AgeForm::Quadratic => {
                 names.push("age_years".into());
                 names.push("age_years_squared".into());
@@ -146,11 +156,22 @@ impl Design {
         1 + self.age_width()
     }
 
-    fn age_width(&self) -> usize {
+    /// Number of age columns (after the intercept).
+    #[must_use]
+    pub fn age_width(&self) -> usize {
         match self.age_form {
-            AgeForm::Linear => 1,
+            AgeForm::Linear | AgeForm::Auto => 1,
             AgeForm::Quadratic => 2,
             AgeForm::PerYear => self.age_levels.len().saturating_sub(1),
+        }
+    }
+
+    /// Youngest and oldest age in the fitted data, years.
+    #[must_use]
+    pub fn age_range(&self) -> (f64, f64) {
+        match (self.age_levels.first(), self.age_levels.last()) {
+            (Some(&lo), Some(&hi)) => (f64::from(lo), f64::from(hi)),
+            _ => (0.0, 0.0),
         }
     }
 
@@ -180,7 +201,7 @@ impl Design {
         out.fill(0.0);
         out[0] = 1.0;
         match self.age_form {
-            AgeForm::Linear => out[1] = age,
+            AgeForm::Linear | AgeForm::Auto => out[1] = age,
             AgeForm::Quadratic => {
                 out[1] = age;
                 out[2] = age * age;

@@ -7,6 +7,8 @@
 //! iteratively reweighted least squares (Huber 1964; Huber & Ronchetti 2009).
 
 mod design;
+mod extrapolation;
+mod form_choice;
 mod mileage;
 mod robust;
 
@@ -23,6 +25,10 @@ use crate::vocabulary::NameId;
 use crate::warnings::{Warning, WarningCode};
 
 pub use design::{AgeForm, Design, MILES_UNIT, age_years};
+pub use form_choice::{
+    AgeFormCandidate, AgeFormChoice, CHOICE_SAMPLE, LISTINGS_PER_TERM, choose_age_form,
+    cleaning_form,
+};
 pub use mileage::MileageProfile;
 
 /// Why a market fit could not be made.
@@ -80,7 +86,7 @@ impl HedonicParams {
     #[must_use]
     pub fn new(as_of: NaiveDate) -> Self {
         Self(ValidHedonicParams {
-            age_form: AgeForm::default(),
+            age_form: AgeForm::Quadratic,
             robust: false,
             as_of,
             huber_k: 1.345,
@@ -132,6 +138,11 @@ impl ParamGuard for HedonicParams {
         if p.max_iterations == 0 {
             return Err(FitError::InvalidParams(
                 "the robust fit needs at least one iteration".into(),
+            ));
+        }
+        if p.age_form == AgeForm::Auto {
+            return Err(FitError::InvalidParams(
+                "the age form 'auto' is chosen before a fit (choose_age_form); a fit takes linear, quadratic or per-year".into(),
             ));
         }
         Ok(p)
@@ -220,8 +231,12 @@ pub struct HedonicModel {
     rows: usize,
     r_squared: f64,
     smearing: f64,
+    /// Residual sum of squares of ln price.
+    rss: f64,
     robust_report: Option<RobustReport>,
     mileage: MileageProfile,
+    /// Lowest and highest odometer among the fitted listings.
+    miles_range: (f64, f64),
 }
 
 /// How the robust fit went.
@@ -297,9 +312,16 @@ impl ValidHedonicParams {
         let rss: f64 = residuals.iter().map(|r| r * r).sum();
         // Duan (1983): the mean of exp(e) over the residuals converts a median to a mean.
         let smearing = residuals.iter().map(|r| r.exp()).sum::<f64>() / residuals.len() as f64;
+        let miles_range = rows
+            .iter()
+            .map(|&r| market.miles[r])
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), m| {
+                (lo.min(m), hi.max(m))
+            });
         Ok(HedonicModel {
             params: *self,
             mileage: MileageProfile::from_rows(market, rows, as_of_year),
+            miles_range,
             design,
             coefficients,
             std_errors,
@@ -308,6 +330,7 @@ impl ValidHedonicParams {
             coefficient_sd,
             rows: rows.len(),
             r_squared: 1.0 - rss / tss,
+            rss,
             smearing,
             robust_report,
         })
@@ -490,6 +513,13 @@ impl HedonicModel {
         self.r_squared
     }
 
+    /// Schwarz's BIC of the least-squares fit of ln price (see [`crate::ols::bic`]); for a
+    /// robust fit, of its residuals against the same formula.
+    #[must_use]
+    pub fn bic(&self) -> f64 {
+        crate::ols::bic(self.rows, self.coefficients.len(), self.rss)
+    }
+
     /// Duan's smearing factor.
     #[must_use]
     pub fn smearing(&self) -> f64 {
@@ -568,13 +598,11 @@ impl HedonicModel {
             .collect()
     }
 
-    /// The design row for `attributes`.
+    /// The design row for `attributes` (continued beyond the data; see
+    /// [`Self::prediction_row`]).
     #[must_use]
     pub fn design_row(&self, a: &Attributes) -> Vec<f64> {
-        let mut x = vec![0.0; self.design.width()];
-        self.design
-            .fill_row(a.age_years, a.miles, a.variant, a.condition, &mut x);
-        x
+        self.prediction_row(a)
     }
 
     /// `x' b` for a full design row.
@@ -589,10 +617,10 @@ impl HedonicModel {
         self.factor.leverage_of(design_row)
     }
 
-    /// Fitted ln price for `attributes`.
+    /// Fitted ln price for `attributes` (continued beyond the data).
     #[must_use]
     pub fn log_price(&self, a: &Attributes) -> f64 {
-        dot(&self.design_row(a), &self.coefficients)
+        dot(&self.prediction_row(a), &self.coefficients)
     }
 
     /// Fitted ln price of market row `row`.
@@ -615,14 +643,15 @@ impl HedonicModel {
     /// `x'(X'X)^-1 x` for `attributes`: the leverage a listing with them would have.
     #[must_use]
     pub fn leverage(&self, a: &Attributes) -> f64 {
-        self.factor.leverage_of(&self.design_row(a))
+        self.factor.leverage_of(&self.prediction_row(a))
     }
 
     /// Market value in currency with both intervals at `level` (e.g. 0.8).
     #[must_use]
     pub fn estimate(&self, a: &Attributes, level: f64) -> ValueEstimate {
-        let log_fitted = self.log_price(a);
-        let h = self.leverage(a);
+        let x = self.prediction_row(a);
+        let log_fitted = dot(&x, &self.coefficients);
+        let h = self.factor.leverage_of(&x);
         let log_se_fit = self.coefficient_sd * h.sqrt();
         let log_se_prediction = (self.residual_sd.powi(2) + self.coefficient_sd.powi(2) * h).sqrt();
         let t = stats::t_two_sided(level, self.df_residual() as f64);
@@ -644,27 +673,6 @@ impl HedonicModel {
             log_se_fit,
             log_se_prediction,
         }
-    }
-
-    /// The part of ln price that depends on age alone, at (possibly fractional) `age`.
-    #[must_use]
-    pub fn age_effect(&self, age: f64) -> f64 {
-        let mut x = vec![0.0; self.design.width()];
-        let base_variant = self
-            .design
-            .variants
-            .first()
-            .copied()
-            .unwrap_or(crate::vocabulary::NO_NAME);
-        let base_condition = self
-            .design
-            .conditions
-            .first()
-            .copied()
-            .unwrap_or(Condition::Used);
-        self.design
-            .fill_row(age, 0.0, base_variant, base_condition, &mut x);
-        dot(&x, &self.coefficients) - self.coefficients[0]
     }
 
     /// Coefficient on ln price per mile.

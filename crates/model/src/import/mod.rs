@@ -261,7 +261,9 @@ fn import_planned(
             Err(message) => return Err(malformed(&file, &bytes, tokenizer.delimiter, &message)),
         };
     drop(bytes);
+    let merged_spellings = market.merge_spellings();
     let mut report = ImportReport {
+        merged_spellings,
         file_name: file.clone(),
         delimiter: delimiter_name(tokenizer.delimiter),
         rows_read: issues.rows_read,

@@ -125,6 +125,9 @@ pub struct ImportReport {
     /// Blank lines between records, passed over (not rows, not rejections).
     #[serde(default)]
     pub blank_lines: usize,
+    /// Makes, models and variants written in several spellings (case, spaces) and read as one.
+    #[serde(default)]
+    pub merged_spellings: Vec<crate::market::MergedSpelling>,
 }
 
 impl ImportReport {

@@ -21,7 +21,9 @@ pub use outcome::{
     Outcome, Purpose, SENSITIVITY_DAYS, WorksheetOutcome, itemized_deductions, trade_in_inputs,
     work_out,
 };
-pub use replay::{Difference, Reproduction, reproduce};
+pub use replay::{
+    Difference, REPRODUCTION_RULE, Reproduction, reproduce, reproduces_to_the_cent,
+};
 
 use chrono::{DateTime, Utc};
 use serde::{Deserialize, Serialize};
@@ -90,6 +92,9 @@ pub struct FitRecord {
     pub annual_depreciation: AnnualDepreciation,
     /// The rates the grid used.
     pub rates: FittedRates,
+    /// The age form the data chose and why, when the settings asked for `auto` (format 3 on).
+    #[serde(default)]
+    pub age_form_choice: Option<crate::hedonic::AgeFormChoice>,
 }
 
 /// Who made the appraisal and when.
@@ -183,6 +188,7 @@ impl Session {
                 residual_sd: c.fit.model.residual_sd(),
                 annual_depreciation: c.fit.model.annual_depreciation(5),
                 rates,
+                age_form_choice: c.fit.age_form_choice.clone(),
             },
             request: c.request.clone(),
             appraisal: c.appraisal.clone(),

@@ -66,11 +66,33 @@ pub struct Reproduction {
     pub differences: Vec<Difference>,
 }
 
+/// What "reproduces" means, in words for the banner, the command line and the report.
+pub const REPRODUCTION_RULE: &str = "every worksheet amount to the cent, every value within half a cent of the saved one";
+
 impl Reproduction {
     /// Whether every number came out as saved.
     #[must_use]
     pub fn reproduces(&self) -> bool {
         self.differences.is_empty()
+    }
+
+    /// One sentence on what recomputing the saved evidence found, with the rule it was held to.
+    #[must_use]
+    pub fn summary(&self) -> String {
+        match self.differences.first() {
+            None => format!(
+                "recomputed from the saved evidence, it reproduces ({REPRODUCTION_RULE})"
+            ),
+            Some(first) => format!(
+                "recomputed from the saved evidence, it does not reproduce: {} number{} differ{} ({REPRODUCTION_RULE} is required), first {}: saved {}, now {}",
+                self.differences.len(),
+                if self.differences.len() == 1 { "" } else { "s" },
+                if self.differences.len() == 1 { "s" } else { "" },
+                first.what,
+                crate::format::cents(first.stored),
+                crate::format::cents(first.now)
+            ),
+        }
     }
 }
 
@@ -182,7 +204,7 @@ pub fn reproduce(session: &Session) -> Result<Reproduction, ReplayError> {
         session.appraisal.reconciliation.band_rule,
     );
     let appraisal = Appraisal {
-        subject: request.subject.clone(),
+        // The subject as the market spelled it when saved; the grid reads `request.subject`.
         comparables,
         reconciliation,
         ..session.appraisal.clone()
