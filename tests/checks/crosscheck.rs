@@ -60,3 +60,52 @@ fn agrees_with_linfa_linear_on_the_demo_market_design() {
         );
     }
 }
+
+#[test]
+fn the_information_criterion_matches_a_general_purpose_library() {
+    // Computed with statsmodels 0.15.0 (OLS `.bic`) from the published Toluca data (Kutner et
+    // al., Table 1.1) and the NIST StRD Longley data; the script and its output are kept in
+    // tests/data/library/bic_reference.{py,txt}. Not printed in any source.
+    let expected =
+        std::fs::read_to_string(acceptance::data_path("library/bic_reference.txt")).unwrap();
+    let bic_of = |name: &str| -> f64 {
+        let line = expected
+            .lines()
+            .find(|l| l.starts_with(&format!("{name} ")))
+            .unwrap();
+        line.split_whitespace()
+            .find_map(|w| w.strip_prefix("bic="))
+            .unwrap()
+            .parse()
+            .unwrap()
+    };
+    let fit = |x: Array2<f64>, y: Array1<f64>| {
+        OlsParams::new()
+            .check()
+            .unwrap()
+            .fit(&Dataset::new(x, y))
+            .unwrap()
+    };
+    let (lot, hours) = acceptance::read_reference_with_response("toluca.csv", 1);
+    let linear = fit(lot.clone(), hours.clone());
+    let mut quadratic = Array2::zeros((lot.nrows(), 2));
+    for i in 0..lot.nrows() {
+        quadratic[[i, 0]] = lot[[i, 0]];
+        quadratic[[i, 1]] = lot[[i, 0]] * lot[[i, 0]];
+    }
+    let quadratic = fit(quadratic, hours);
+    let (x, y) = read_reference("longley.csv");
+    let longley = fit(x, y);
+    for (name, ours) in [
+        ("toluca_linear", linear.bic()),
+        ("toluca_quadratic", quadratic.bic()),
+        ("longley_full", longley.bic()),
+    ] {
+        let theirs = bic_of(name);
+        println!("{name}: ours {ours:.10}, statsmodels {theirs:.10}");
+        assert!(lre(ours, theirs) >= 9.0, "{name}: {ours} vs {theirs}");
+    }
+    // On Toluca the straight line has the lower BIC: the quadratic term does not earn its
+    // ln(25) charge, as the automatic age form would decide.
+    assert!(linear.bic() < quadratic.bic());
+}

@@ -7,6 +7,7 @@
 mod appraising;
 mod crosscheck;
 mod fuzz;
+mod guards;
 mod import;
 mod nist;
 mod profiles;

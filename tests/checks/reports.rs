@@ -86,3 +86,41 @@ fn the_html_report_is_self_contained() {
         assert!(html.contains(&caution.replace('&', "&amp;")), "{caution}");
     }
 }
+
+#[test]
+fn the_warnings_stand_in_a_box_beside_the_value_on_the_first_page() {
+    let (mut session, _) = sample("dealer-trade-in");
+    session.appraisal.warnings = vec![model::warnings::Warning::new(
+        model::warnings::WarningCode::FewListings,
+        "Only 16 listings for the 4 terms of the fit.",
+    )];
+    let identity = report::Identity {
+        session_file: "x.ron".into(),
+        session_hash: "xxh3:0".into(),
+        reproduction: "checked".into(),
+    };
+    let doc = report::Report::from_session(&session, &identity);
+    // Right after the headline figures, before anything else.
+    assert!(matches!(doc.blocks[0], report::blocks::Block::Headline(_)));
+    assert!(matches!(&doc.blocks[1], report::blocks::Block::Warnings(w) if w.len() == 1));
+    let bytes = report::pdf::render(&doc);
+    let pdf = lopdf::Document::load_mem(&bytes).unwrap();
+    let first = *pdf.get_pages().keys().next().unwrap();
+    let text = pdf.extract_text(&[first]).unwrap();
+    assert!(
+        text.contains("Warnings: what the market cannot support"),
+        "{text}"
+    );
+    assert!(text.contains("Only 16 listings"), "{text}");
+    let html = report::html::render(&doc);
+    assert!(html.contains("class=\"warnings\"") && html.contains("Only 16 listings"));
+    // Without warnings there is no box.
+    session.appraisal.warnings.clear();
+    let plain = report::Report::from_session(&session, &identity);
+    assert!(
+        !plain
+            .blocks
+            .iter()
+            .any(|b| matches!(b, report::blocks::Block::Warnings(_)))
+    );
+}

@@ -155,7 +155,8 @@ fn regression_an_error_after_a_character_of_several_bytes_is_reported_not_a_pani
 fn regression_impossible_degrees_of_freedom_are_refused_not_a_hang() {
     // Found by the fuzz check's long run: `df_residual: 1e-320` sent the t quantile's search
     // into an endless loop inside the statistics library.
-    let text = std::fs::read_to_string(data_path("sessions/format-2-total-loss-claim.ron")).unwrap();
+    let text =
+        std::fs::read_to_string(data_path("sessions/format-2-total-loss-claim.ron")).unwrap();
     let edited = text.replacen("df_residual: 541.0,", "df_residual: 1e-320,", 1);
     assert_ne!(edited, text);
     let session = parse_session(&edited, "edited.ron").unwrap();

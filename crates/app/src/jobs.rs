@@ -74,8 +74,8 @@ pub enum JobResult {
     Loaded {
         /// Which market.
         source: MarketSource,
-        /// The market and its report, or the reason it failed.
-        outcome: Result<(Arc<Market>, ImportReport), Arc<ImportError>>,
+        /// The market and its report, or the reason it failed (boxed: the report is large).
+        outcome: Result<(Arc<Market>, Box<ImportReport>), Arc<ImportError>>,
     },
     /// A fit finished (or failed), with the segment's price gaps at the requested level.
     Fitted {
@@ -189,7 +189,9 @@ fn run(job: Job) -> JobResult {
             };
             JobResult::Loaded {
                 source,
-                outcome: outcome.map(|(m, r)| (Arc::new(m), r)).map_err(Arc::new),
+                outcome: outcome
+                    .map(|(m, r)| (Arc::new(m), Box::new(r)))
+                    .map_err(Arc::new),
             }
         }
         Job::Study {

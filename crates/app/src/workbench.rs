@@ -256,7 +256,7 @@ impl Workbench {
                     Ok((market, report)) => {
                         self.runtime.market = Some(market);
                         self.runtime.market_source = Some(source);
-                        self.runtime.import_report = Some(report);
+                        self.runtime.import_report = Some(*report);
                         self.runtime.market_generation += 1;
                         self.runtime.import_failure = None;
                         self.runtime.before_open = None;

@@ -348,3 +348,32 @@ fn a_profiles_file_of_the_users_own_is_offered_for_claims_and_remembered() {
     let again = Workbench::with_document(AppraisalDocument::demo(SMALL_DEMO), prefs, || {});
     assert!(again.profiles().get("county").is_some());
 }
+
+#[test]
+fn a_reopened_session_shows_the_warnings_it_was_saved_with() {
+    // A subject outside the market, saved; the market file then removed: the saved evidence
+    // is shown with its saved warnings beside the value.
+    let dir = scratch("warned");
+    let market = file_market(&dir);
+    let mut document = file_document(market.clone());
+    document.subject.model_year = 1995;
+    let mut wb = workbench_on(document);
+    let warnings = wb.runtime().appraisal.as_ref().unwrap().warnings.clone();
+    assert!(model::warnings::has(
+        &warnings,
+        model::warnings::WarningCode::SubjectYearOutsideMarket
+    ));
+    let path = dir.join("case.ron");
+    wb.save_session(&path).unwrap();
+    std::fs::remove_file(&market).unwrap();
+    let saved = model::session::read_session(&path).unwrap();
+    assert!(model::warnings::has(
+        &saved.appraisal.warnings,
+        model::warnings::WarningCode::SubjectYearOutsideMarket
+    ));
+    let mut other = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
+    other.open_session(&path).unwrap();
+    let harness = harness_on(other);
+    harness.get_by_label_contains(app::panes::WARNINGS_LABEL);
+    harness.get_by_label_contains("The subject's model year 1995 is older than every listing");
+}

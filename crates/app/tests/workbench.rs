@@ -244,7 +244,7 @@ fn the_market_study_reports_backtest_accuracy_and_ranks_the_models() {
     );
     let ranked: Vec<&str> = study.ranking.iter().map(|r| r.segment.as_str()).collect();
     assert_eq!(ranked.len(), 3, "{ranked:?}");
-    harness.get_by_label_contains("How well this market supports a value");
+    harness.get_by_label_contains("Accuracy: on this market");
     harness.get_by_label("Depreciation").click();
     harness.run_steps(3);
     harness.get_by_label_contains("Models in the file by fitted annual decline");
@@ -437,4 +437,31 @@ fn a_market_too_large_to_draw_point_by_point_is_drawn_as_a_density_grid() {
         "{} listings in view: too many to tell apart",
         model::format::thousands(fit.cleaning.rows.len() as f64)
     ));
+}
+
+#[test]
+fn a_subject_outside_the_market_shows_its_warning_beside_the_value() {
+    let mut harness = harness();
+    // The demo subject is inside the market: no warning box.
+    assert!(
+        harness
+            .query_by_label_contains(app::panes::WARNINGS_LABEL)
+            .is_none()
+    );
+    let mut subject = harness.state().document().subject.clone();
+    subject.model_year = 1990;
+    harness.state_mut().apply(Command::SetSubject(subject));
+    harness.state_mut().wait_for_jobs();
+    harness.run_steps(3);
+    let a = harness.state().runtime().appraisal.clone().unwrap();
+    assert!(model::warnings::has(
+        &a.warnings,
+        model::warnings::WarningCode::SubjectYearOutsideMarket
+    ));
+    harness.get_by_label_contains(app::panes::WARNINGS_LABEL);
+    harness.get_by_label_contains("The subject's model year 1990 is older than every listing");
+    // The value pane also says when the value is as of, and how accurate the market is.
+    harness.get_by_label_contains("Appraisal date");
+    // The subject stays as set: the year field does not pull it back into the market.
+    assert_eq!(harness.state().document().subject.model_year, 1990);
 }

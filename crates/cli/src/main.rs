@@ -299,7 +299,8 @@ fn appraise_command(args: &AppraiseArgs) -> Result<()> {
     let fit = load::fit(&loaded, &args.market, segment)?;
     let mut request = appraisal_request(args, subject.clone())?;
     let purpose = session::purpose(args, &mut request)?;
-    let appraisal = appraise(&loaded.market, &fit, &request)?;
+    let mut appraisal = appraise(&loaded.market, &fit, &request)?;
+    let market_accuracy = quick_backtest(&loaded.market, &fit, &mut appraisal);
     let worked = model::session::work_out(&purpose, &appraisal, &request)?;
     if let Some(out) = &args.save_session {
         session::save(
@@ -327,7 +328,11 @@ fn appraise_command(args: &AppraiseArgs) -> Result<()> {
             )
         })
         .transpose()?;
+    if let Some(f) = &forecast {
+        appraisal.warnings.extend(f.warnings.iter().cloned());
+    }
     let doc = AppraisalDocument {
+        market_accuracy,
         import: ImportSummary::from_report(&loaded.report),
         fit: FitSummary::new(&loaded.market, &fit),
         indicated_value: appraisal.reconciliation.indicated_value,
@@ -351,6 +356,33 @@ fn appraise_command(args: &AppraiseArgs) -> Result<()> {
         cautions: model::cautions::CAUTIONS.to_vec(),
     };
     print(args.market.json, &doc, || render::appraisal(&doc))
+}
+
+/// On a market of the model small enough to test quickly, backtests it, adds the warning when
+/// its typical error exceeds the band, and returns the result in words.
+fn quick_backtest(
+    market: &model::market::Market,
+    fit: &model::appraisal::MarketFit,
+    appraisal: &mut model::appraisal::Appraisal,
+) -> Option<String> {
+    if fit.cleaning.rows.len() > model::guards::QUICK_BACKTEST_LISTINGS {
+        return None;
+    }
+    let Ok(b) = backtest(
+        market,
+        fit,
+        &ComparableRules::default(),
+        &BacktestSettings::default(),
+    ) else {
+        return Some(
+            "the market is too small to test its own accuracy (a fold could not be fitted)".into(),
+        );
+    };
+    let r = &appraisal.reconciliation;
+    if let Some(w) = model::guards::backtest_warning(&b, &r.value_band, r.indicated_value) {
+        appraisal.warnings.push(w);
+    }
+    Some(model::guards::accuracy_in_words(&b))
 }
 
 fn depreciation(args: &MarketArgs, max_age: u32) -> Result<()> {

@@ -133,6 +133,8 @@ pub struct AppraisalDocument {
     pub appraisal: Appraisal,
     pub indicated_value: f64,
     pub value_band: model::ols::Interval,
+    /// The market's own backtest in words (markets of up to 2,000 listings of the model).
+    pub market_accuracy: Option<String>,
     /// The trade-in offer or claim settlement, when one was asked for.
     pub worksheet: Option<model::session::WorksheetOutcome>,
     /// Days' supply of the segment, with a trade-in when the file has sale dates.

@@ -184,6 +184,9 @@ pub fn appraisal(doc: &AppraisalDocument) -> String {
                 "model alone: no comparables passed the filters",
         }
     );
+    if let Some(words) = &doc.market_accuracy {
+        let _ = writeln!(o, "Accuracy: {words}");
+    }
     let _ = writeln!(
         o,
         "Model's own estimate: median {}, mean {}; {level:.0} % prediction interval {} to {}; {level:.0} % confidence interval for the market median {} to {}",

@@ -311,3 +311,85 @@ fn default_run_appraises_the_demo() {
     assert!(text.contains("Value band (80 %)"));
     assert!(text.contains("Caution: This is an estimate"));
 }
+
+#[test]
+fn every_document_carries_its_warnings_and_the_small_export_is_read_as_one_model() {
+    // The 16-listing export as pulled (no dates, "ORVANE", " kestrel  "), without --make or
+    // --model: one model, linear age chosen, and the warnings in JSON with stable codes.
+    let small = repo("tests/data/markets/small-export-16.csv");
+    let codes = |v: &serde_json::Value| -> Vec<String> {
+        v["warnings"]
+            .as_array()
+            .expect("a warnings list")
+            .iter()
+            .map(|w| w["code"].as_str().unwrap().to_owned())
+            .collect()
+    };
+    for command in ["fit", "depreciation", "gaps", "backtest"] {
+        let v = json(&comptrail(&[command, &small, "--json"]));
+        let c = codes(&v);
+        assert!(c.contains(&"few_listings".to_owned()), "{command}: {c:?}");
+        assert!(
+            c.contains(&"no_listing_dates".to_owned()),
+            "{command}: {c:?}"
+        );
+        assert!(v["warnings"][0]["message"].as_str().unwrap().len() > 40);
+        assert_eq!(v["fit"]["age_form"], "linear", "{command}");
+        assert!(
+            v["fit"]["age_form_reason"]
+                .as_str()
+                .unwrap()
+                .starts_with("linear age:"),
+            "{command}"
+        );
+    }
+    let v = json(&comptrail(&[
+        "fit",
+        &small,
+        "--json",
+        "--age-form",
+        "quadratic",
+    ]));
+    assert!(codes(&v).contains(&"age_curve_not_falling".to_owned()));
+    let merged = v["import"]["merged_spellings"].as_array().unwrap();
+    assert_eq!(merged.len(), 2, "{merged:?}");
+    // A subject typed in any case; an empty list when nothing is wrong.
+    let v = json(&comptrail(&[
+        "appraise",
+        &small,
+        "--subject",
+        "year=2022,make=orvane,model=KESTREL,variant=touring,miles=38000",
+        "--json",
+    ]));
+    assert!(codes(&v).contains(&"few_listings".to_owned()));
+    assert!(
+        v["market_accuracy"]
+            .as_str()
+            .unwrap()
+            .starts_with("on this market")
+    );
+    let v = json(&comptrail(&[
+        "appraise",
+        &asset(),
+        "--subject",
+        SUBJECT,
+        "--as-of",
+        "2026-11-30",
+        "--json",
+    ]));
+    assert_eq!(v["warnings"], serde_json::json!([]));
+    // Printed before the value, in words.
+    let out = succeeded(&[
+        "appraise",
+        &asset(),
+        "--subject",
+        "year=1990,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used",
+    ]);
+    let text = String::from_utf8_lossy(&out.stdout);
+    let warning = text.find("WARNING: The subject's model year 1990").unwrap();
+    assert!(warning < text.find("Indicated value").unwrap());
+    assert!(
+        !text.contains("subject_year_outside_market"),
+        "codes stay in JSON"
+    );
+}

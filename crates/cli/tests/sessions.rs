@@ -50,6 +50,10 @@ fn a_saved_trade_in_reopens_to_the_same_numbers_and_prints_a_report() {
     let doc: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     assert_eq!(doc["reproduces"], true);
     assert_eq!(doc["market_file_status"]["status"], "unchanged");
+    assert!(
+        doc["warnings"].is_array(),
+        "the saved warnings, an empty list when none"
+    );
     let offer = doc["recomputed"]["bottom_line"][1].as_f64().unwrap();
     assert!(
         offer_line.contains(&model::format::cents(offer)),
@@ -132,10 +136,7 @@ fn a_moved_market_file_is_reported_and_the_evidence_still_reproduces() {
     ]);
     let shown = text(&out);
     assert!(shown.contains("CHANGED"), "{shown}");
-    assert!(
-        shown.contains(model::session::REPRODUCTION_RULE),
-        "{shown}"
-    );
+    assert!(shown.contains(model::session::REPRODUCTION_RULE), "{shown}");
     assert!(
         shown.contains("appraised again on the current market file"),
         "{shown}"

@@ -129,6 +129,23 @@ impl Subject {
         }
     }
 
+    /// Whether `other` describes the same vehicle: the same numbers, and names that match by
+    /// [`crate::vocabulary::name_key`] (one may be typed "QUELLMARK", the other spelled as the
+    /// market spells it).
+    #[must_use]
+    pub fn same_vehicle(&self, other: &Subject) -> bool {
+        use crate::vocabulary::name_key;
+        let key = |v: &Option<String>| v.as_deref().map(name_key);
+        self.model_year == other.model_year
+            && self.miles.to_bits() == other.miles.to_bits()
+            && self.condition == other.condition
+            && name_key(&self.make) == name_key(&other.make)
+            && name_key(&self.model) == name_key(&other.model)
+            && key(&self.variant) == key(&other.variant)
+            && self.vin == other.vin
+            && self.options == other.options
+    }
+
     /// One-line description, e.g. "2021 Quellmark Tessel Plus, 48,000 mi, used".
     #[must_use]
     pub fn describe(&self) -> String {

@@ -68,6 +68,8 @@ pub enum Block {
     List(Vec<String>),
     /// A boxed warning (the cautions).
     Cautions(Vec<String>),
+    /// What the market cannot support, boxed beside the value on the first page.
+    Warnings(Vec<String>),
 }
 
 /// A whole report.

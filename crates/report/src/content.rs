@@ -30,6 +30,16 @@ impl Report {
         let subject = &session.request.subject;
         let mut blocks = Vec::new();
         headline(session, &mut blocks);
+        if !session.appraisal.warnings.is_empty() {
+            blocks.push(Block::Warnings(
+                session
+                    .appraisal
+                    .warnings
+                    .iter()
+                    .map(|w| w.message.clone())
+                    .collect(),
+            ));
+        }
         blocks.push(Block::Heading("The vehicle appraised".into()));
         blocks.push(Block::Facts(subject_facts(session)));
         blocks.push(Block::Heading("The market".into()));

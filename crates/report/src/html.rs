@@ -33,6 +33,7 @@ h1{font-size:1.5rem;margin-bottom:.2rem}h2{font-size:1.1rem;margin-top:1.6rem;bo
 th,td{border-bottom:1px solid #e1e4e8;padding:.25rem .4rem;vertical-align:top}th{text-align:left;background:#f4f5f7}
 .r{text-align:right;white-space:nowrap}dl{display:grid;grid-template-columns:14rem 1fr;gap:.2rem 1rem}dt{color:#555}dd{margin:0}
 .cautions{border:2px solid #c08b1a;border-radius:6px;padding:.5rem 1rem;background:#fdf8ec}
+.warnings{border:2px solid #b3261e;border-radius:6px;padding:.5rem 1rem;margin:.5rem 0;background:#fdf0ef}
 footer{margin-top:2rem;font-size:.75rem;color:#666}svg{max-width:100%;height:auto}";
 
 /// Writes the report as HTML.
@@ -111,6 +112,15 @@ fn block_html(out: &mut String, block: &Block) {
                 let _ = write!(out, "<li>{}</li>", esc(i));
             }
             out.push_str("</ul>\n");
+        }
+        Block::Warnings(items) => {
+            out.push_str(
+                "<div class=\"warnings\"><b>Warnings: what the market cannot support</b><ul>",
+            );
+            for i in items {
+                let _ = write!(out, "<li>{}</li>", esc(i));
+            }
+            out.push_str("</ul></div>\n");
         }
         Block::Cautions(items) => {
             out.push_str("<div class=\"cautions\"><ul>");

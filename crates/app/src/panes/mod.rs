@@ -21,6 +21,34 @@ use crate::command::Command;
 use crate::document::AppraisalDocument;
 use crate::selection::Selection;
 
+/// Accessible label of the list of warnings beside the value.
+pub const WARNINGS_LABEL: &str = "Warnings";
+
+/// The warnings, each on its own wrapped line in the theme's warning colour, visible without
+/// hovering (the code, for reference, on hover).
+pub fn warnings_ui(ui: &mut Ui, warnings: &[model::warnings::Warning]) {
+    if warnings.is_empty() {
+        return;
+    }
+    let colour = ui.visuals().warn_fg_color;
+    egui::Frame::group(ui.style())
+        .stroke(egui::Stroke::new(1.0, colour))
+        .show(ui, |ui| {
+            ui.label(
+                egui::RichText::new(format!("{WARNINGS_LABEL} ({})", warnings.len()))
+                    .color(colour)
+                    .strong(),
+            );
+            for w in warnings {
+                ui.add(
+                    egui::Label::new(egui::RichText::new(format!("• {}", w.message)).color(colour))
+                        .wrap(),
+                )
+                .on_hover_text(w.code.as_str());
+            }
+        });
+}
+
 /// Adds a drag field for an amount in whole cents (dollars on screen, at most two decimals),
 /// between `0` and `max_dollars`; the amount changes only to a whole number of cents.
 pub fn cents_drag(

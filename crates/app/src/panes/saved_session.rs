@@ -40,6 +40,7 @@ pub fn ui(ui: &mut Ui, session: &Session, reproduction: &Reproduction) {
             .size(20.0)
             .strong(),
         );
+        super::warnings_ui(ui, &session.appraisal.warnings);
         ui.separator();
         ui.strong("Comparables as saved, adjusted again from the saved rates");
         egui::Grid::new("saved_comparables")

@@ -18,9 +18,14 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
         .show(ui, |ui| {
             ui.label("Model year");
             let mut year = subject.model_year;
-            let oldest = cx.fit.model.as_of_year() - 30;
+            // Any model year a subject can have (as the command line reads it); a subject
+            // outside the market is warned about, never silently moved into it.
             if ui
-                .add(egui::DragValue::new(&mut year).range(oldest..=cx.fit.model.as_of_year() + 1))
+                .add(
+                    egui::DragValue::new(&mut year)
+                        .range(1900..=cx.fit.model.as_of_year() + 1)
+                        .clamp_existing_to_range(false),
+                )
                 .on_hover_text("Subject model year")
                 .changed()
             {

@@ -249,7 +249,7 @@ impl Workbench {
             .appraised_for
             .as_ref()
             .is_some_and(|(d, _)| d == &self.document)
-            || appraisal.subject != self.document.subject
+            || !appraisal.subject.same_vehicle(&self.document.subject)
         {
             return Err(
                 "The appraisal is being brought up to date; save again in a moment.".into(),
@@ -264,6 +264,14 @@ impl Workbench {
             ),
             MarketSource::Demo { .. } => None,
         };
+        // The market's own backtest, when it has finished, is part of the evidence.
+        let mut appraisal = appraisal.clone();
+        if let Some(Ok(b)) = self.runtime.study.as_ref().map(|s| &s.backtest) {
+            let r = &appraisal.reconciliation;
+            if let Some(w) = model::guards::backtest_warning(b, &r.value_band, r.indicated_value) {
+                appraisal.warnings.push(w);
+            }
+        }
         let at = now();
         Session::capture(
             &Capture {
@@ -273,7 +281,7 @@ impl Workbench {
                 settings: &self.document.fit,
                 overrides: &self.document.overrides,
                 request: &self.document.request(),
-                appraisal,
+                appraisal: &appraisal,
                 purpose: &self.document.purpose,
                 keep_segment,
             },

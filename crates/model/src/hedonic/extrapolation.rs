@@ -8,9 +8,10 @@
 //! fitted linear rate when it falls with miles, and flat when it does not. Every prediction
 //! (the estimate, its intervals, the grid's age and mileage lines, the depreciation tables and
 //! forecasts) goes through [`HedonicModel::prediction_row`] or [`HedonicModel::age_effect`], so
-//! the rule holds everywhere. The continued row is still a linear combination of the
-//! coefficients, so its leverage, and with it the prediction interval, widens with the
-//! distance from the data.
+//! the rule holds everywhere. The interval beyond the data is computed from the row continued
+//! at the edge's own fitted rate, whatever its sign (a linear combination of the coefficients,
+//! so its leverage grows with the distance): the value is held from rising, but the uncertainty
+//! of the rate it might have had still widens the band.
 
 use super::{AgeForm, Attributes, HedonicModel, dot};
 use crate::condition::Condition;
@@ -38,6 +39,28 @@ impl HedonicModel {
         self.age_columns(a.age_years, &mut age_columns);
         let width = self.design.age_width();
         x[1..=width].copy_from_slice(&age_columns[1..=width]);
+        x
+    }
+
+    /// The design row whose leverage sets a prediction's interval for `a`: as
+    /// [`Self::prediction_row`], but continued beyond the data at the edge's fitted rate even
+    /// where the value is held flat, so the interval widens with the distance.
+    #[must_use]
+    pub fn spread_row(&self, a: &Attributes) -> Vec<f64> {
+        let mut x = self.prediction_row(a);
+        let (edge, outside) = self.age_edge(a.age_years);
+        if outside && !a.age_years.is_nan() {
+            let g = self.age_gradient(edge, a.age_years > edge);
+            if dot(&g, &self.coefficients) >= 0.0 {
+                for (xi, gi) in x.iter_mut().zip(&g) {
+                    *xi += (a.age_years - edge) * gi;
+                }
+            }
+        }
+        // A rising mileage rate is held flat beyond the data; its uncertainty still counts.
+        if self.miles_slope() > 0.0 && a.miles.is_finite() {
+            x[self.design.miles_column()] = a.miles / super::MILES_UNIT;
+        }
         x
     }
 
@@ -103,7 +126,7 @@ impl HedonicModel {
             return (lo, true);
         }
         let edge = age.clamp(lo, hi);
-        (edge, edge != age)
+        (edge, age < lo || age > hi)
     }
 
     /// Fills the age columns of `out` (and only those) for `age`, continued beyond the data.

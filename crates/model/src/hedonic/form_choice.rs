@@ -147,7 +147,9 @@ fn judge(market: &Market, rows: &[usize], as_of: NaiveDate, form: AgeForm) -> Ag
         Err(FitError::TooFewRows { rows, terms, .. }) => AgeFormCandidate {
             form,
             bic: None,
-            set_aside: Some(format!("cannot be fitted ({terms} terms for {rows} listings)")),
+            set_aside: Some(format!(
+                "cannot be fitted ({terms} terms for {rows} listings)"
+            )),
         },
         Err(FitError::Collinear { term }) => AgeFormCandidate {
             form,

@@ -640,18 +640,18 @@ impl HedonicModel {
         }
     }
 
-    /// `x'(X'X)^-1 x` for `attributes`: the leverage a listing with them would have.
+    /// `x'(X'X)^-1 x` for `attributes`: the leverage a listing with them would have (beyond
+    /// the data, of the row continued at the edge's rate; see [`Self::spread_row`]).
     #[must_use]
     pub fn leverage(&self, a: &Attributes) -> f64 {
-        self.factor.leverage_of(&self.prediction_row(a))
+        self.factor.leverage_of(&self.spread_row(a))
     }
 
     /// Market value in currency with both intervals at `level` (e.g. 0.8).
     #[must_use]
     pub fn estimate(&self, a: &Attributes, level: f64) -> ValueEstimate {
-        let x = self.prediction_row(a);
-        let log_fitted = dot(&x, &self.coefficients);
-        let h = self.factor.leverage_of(&x);
+        let log_fitted = dot(&self.prediction_row(a), &self.coefficients);
+        let h = self.leverage(a);
         let log_se_fit = self.coefficient_sd * h.sqrt();
         let log_se_prediction = (self.residual_sd.powi(2) + self.coefficient_sd.powi(2) * h).sqrt();
         let t = stats::t_two_sided(level, self.df_residual() as f64);

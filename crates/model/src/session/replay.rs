@@ -67,7 +67,8 @@ pub struct Reproduction {
 }
 
 /// What "reproduces" means, in words for the banner, the command line and the report.
-pub const REPRODUCTION_RULE: &str = "every worksheet amount to the cent, every value within half a cent of the saved one";
+pub const REPRODUCTION_RULE: &str =
+    "every worksheet amount to the cent, every value within half a cent of the saved one";
 
 impl Reproduction {
     /// Whether every number came out as saved.
@@ -80,9 +81,9 @@ impl Reproduction {
     #[must_use]
     pub fn summary(&self) -> String {
         match self.differences.first() {
-            None => format!(
-                "recomputed from the saved evidence, it reproduces ({REPRODUCTION_RULE})"
-            ),
+            None => {
+                format!("recomputed from the saved evidence, it reproduces ({REPRODUCTION_RULE})")
+            }
             Some(first) => format!(
                 "recomputed from the saved evidence, it does not reproduce: {} number{} differ{} ({REPRODUCTION_RULE} is required), first {}: saved {}, now {}",
                 self.differences.len(),

@@ -115,7 +115,12 @@ impl Layout {
                 }
                 self.y -= 4.0;
             }
-            Block::Cautions(items) => self.cautions(items),
+            Block::Cautions(items) => self.boxed(None, items, palette::CAUTION),
+            Block::Warnings(items) => self.boxed(
+                Some("Warnings: what the market cannot support"),
+                items,
+                palette::WARNING,
+            ),
         }
     }
 
@@ -231,20 +236,27 @@ impl Layout {
         self.y -= 6.0;
     }
 
-    fn cautions(&mut self, items: &[String]) {
+    /// A list in a box drawn in `colour`, under an optional bold title.
+    fn boxed(&mut self, title: Option<&str>, items: &[String], colour: [u8; 3]) {
         let lines: Vec<Vec<String>> = items
             .iter()
             .map(|i| wrap(i, 9.0, false, TEXT_W - 30.0))
             .collect();
-        let height = lines.iter().map(Vec::len).sum::<usize>() as f32 * 11.7 + 14.0;
+        let title_h = if title.is_some() { 13.0 } else { 0.0 };
+        let height = lines.iter().map(Vec::len).sum::<usize>() as f32 * 11.7 + 14.0 + title_h;
         self.room(height + 6.0);
         let top = self.y - 2.0;
-        self.colour(palette::CAUTION);
+        self.colour(colour);
         self.page.set_line_width(1.5);
         self.page.rect(MARGIN, top - height, TEXT_W, height);
         self.page.stroke();
         self.colour(palette::INK);
         let mut y = top - 4.0;
+        if let Some(t) = title {
+            y -= 11.7;
+            self.text_at(MARGIN + 8.0, y, t, 9.0, true);
+            y -= 1.3;
+        }
         for item in &lines {
             for (i, line) in item.iter().enumerate() {
                 y -= 11.7;
