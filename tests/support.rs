@@ -132,7 +132,7 @@ pub fn scratch_dir(name: &str) -> PathBuf {
     dir
 }
 
-/// A demo appraisal of the 2022 Tessel Plus, 41,000 mi, used, as the workbench opens with,
+/// A demo appraisal of the 2022 Tessel Ambrel, 41,000 mi, used, as the workbench opens with,
 /// captured as a session for `purpose` (market: 2,000 demo listings, seed 1).
 ///
 /// # Panics
@@ -150,7 +150,7 @@ pub fn demo_session(
     };
     let fit = fit_demo(&market, "Quellmark", "Tessel", settings);
     let subject = model::subject::Subject::parse(
-        "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used",
+        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
     )
     .expect("subject");
     let mut request = model::appraisal::AppraisalRequest::new(subject);

@@ -1,4 +1,4 @@
-//! Appraisal behaviour on the demo market: comparables, adjustments, reconciliation, overrides.
+//! Appraisal behavior on the demo market: comparables, adjustments, reconciliation, overrides.
 
 use acceptance::{demo_market, fit_demo};
 use model::adjustment::{AdjustmentKind, UserAdjustment};
@@ -10,7 +10,7 @@ use model::gaps::{GapFlag, price_gaps};
 use model::subject::Subject;
 
 fn subject() -> Subject {
-    Subject::parse("year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used")
+    Subject::parse("year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used")
         .unwrap()
 }
 
@@ -173,7 +173,7 @@ fn the_market_says_plainly_what_it_cannot_price() {
     s.variant = Some("Grand".into());
     let err = appraise(&market, &fit, &AppraisalRequest::new(s)).unwrap_err();
     assert!(matches!(err, AppraisalError::UnknownVariant { .. }));
-    assert!(err.to_string().contains("Core"), "{err}");
+    assert!(err.to_string().contains("Veskel"), "{err}");
     let err = model::appraisal::find_segment(&market, "Quellmark", "Glider").unwrap_err();
     assert!(err.to_string().contains("Quellmark Tessel"), "{err}");
 }

@@ -186,32 +186,32 @@ fn csv_bases() -> &'static [Vec<u8>] {
         vec![
             model::demo::demo_csv_bytes(40, 7),
             b"Year;Brand;Model Name;Trim;Price (USD);Odometer (km);Listed;Sold;Sale price;VIN\n\
-2021;Quellmark;Tessel;Plus;\"31,500\";64000;2026-10-01;;;QUT4PL22X7M015562\n\
-2020;QUELLMARK;tessel ;Core;$27,900;81,200;01/10/2026;2026-11-02;27000;\n\
-2022;Quellmark;Tessel;Summit;39990;22000;2026-11-20;;;\n\
+2021;Quellmark;Tessel;Ambrel;\"31,500\";64000;2026-10-01;;;QUT4PL22X7M015562\n\
+2020;QUELLMARK;tessel ;Veskel;$27,900;81,200;01/10/2026;2026-11-02;27000;\n\
+2022;Quellmark;Tessel;Tolvane;39990;22000;2026-11-20;;;\n\
 2019;Quellmark;Tessel;;24,250;;2026-09-12;;;\n\
-2021;Quellmark;Tessel;Plus;n/a;51000;2026-10-15;;;\n\
-2023;Quellmark;Tessel;Plus;36,000;15000;2026-11-28;;;\n\
-2018;Quellmark;Tessel;Core;21 400;122000;2026-11-01;;;\n\
-2020;Quellmark;Tessel;Plus;28,750;90,500;2026-10-20;;;\n\
-2022;Quellmark;Tessel;Core;33100;30000;2026-11-11;;;\n\
-2019;Quellmark;Tessel;Summit;29,990;99000;2026-10-02;;;\n\
-2021;Quellmark;Tessel;Summit;36,500;60000;2026-11-15;;;\n\
-2022;Quellmark;Tessel;Plus;34,250;41000;2026-11-25;;;\n\
-2020;Quellmark;Tessel;Core;25,100;75000;2026-09-30;;;\n\
-2023;Quellmark;Tessel;Summit;44,900;12000;2026-11-29;;;\n"
+2021;Quellmark;Tessel;Ambrel;n/a;51000;2026-10-15;;;\n\
+2023;Quellmark;Tessel;Ambrel;36,000;15000;2026-11-28;;;\n\
+2018;Quellmark;Tessel;Veskel;21 400;122000;2026-11-01;;;\n\
+2020;Quellmark;Tessel;Ambrel;28,750;90,500;2026-10-20;;;\n\
+2022;Quellmark;Tessel;Veskel;33100;30000;2026-11-11;;;\n\
+2019;Quellmark;Tessel;Tolvane;29,990;99000;2026-10-02;;;\n\
+2021;Quellmark;Tessel;Tolvane;36,500;60000;2026-11-15;;;\n\
+2022;Quellmark;Tessel;Ambrel;34,250;41000;2026-11-25;;;\n\
+2020;Quellmark;Tessel;Veskel;25,100;75000;2026-09-30;;;\n\
+2023;Quellmark;Tessel;Tolvane;44,900;12000;2026-11-29;;;\n"
                 .to_vec(),
             b"model_year,make,model,variant,asking_price,miles,condition\n\
-2018,Orvane,Kestrel,Touring,18500,91000,used\n\
-2019,Orvane,Kestrel,Touring,20900,76000,used\n\
-2020,Orvane,Kestrel,Touring,23400,58000,certified\n\
-2021,Orvane,Kestrel,Base,22100,41000,used\n\
-2022,Orvane,Kestrel,Base,25900,23000,used\n\
-2023,Orvane,Kestrel,Touring,31200,9000,new\n\
-2020,Orvane,Kestrel,Base,19800,66000,used\n\
-2019,Orvane,Kestrel,Base,17900,88000,used\n\
-2021,Orvane,Kestrel,Touring,26400,47000,used\n\
-2022,Orvane,Kestrel,Touring,29100,30500,used\n"
+2018,Orvane,Kestrel,Halvet,18500,91000,used\n\
+2019,Orvane,Kestrel,Halvet,20900,76000,used\n\
+2020,Orvane,Kestrel,Halvet,23400,58000,certified\n\
+2021,Orvane,Kestrel,Cressin,22100,41000,used\n\
+2022,Orvane,Kestrel,Cressin,25900,23000,used\n\
+2023,Orvane,Kestrel,Halvet,31200,9000,new\n\
+2020,Orvane,Kestrel,Cressin,19800,66000,used\n\
+2019,Orvane,Kestrel,Cressin,17900,88000,used\n\
+2021,Orvane,Kestrel,Halvet,26400,47000,used\n\
+2022,Orvane,Kestrel,Halvet,29100,30500,used\n"
                 .to_vec(),
         ]
     })

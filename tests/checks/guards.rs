@@ -1,6 +1,6 @@
 //! Guarded values: every warning code raised where the market cannot support the number, no
 //! curve shape beyond the data, and the age form chosen by the data. The markets are the
-//! invented demo and invented small exports in `tests/data/markets/` (behaviour checks, not
+//! invented demo and invented small exports in `tests/data/markets/` (behavior checks, not
 //! published values).
 
 use std::sync::OnceLock;
@@ -66,7 +66,7 @@ fn a_subject_older_than_the_market_is_warned_and_never_worth_more_than_the_oldes
         market,
         fit,
         &AppraisalRequest::new(subject(
-            "year=1990,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used",
+            "year=1990,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
         )),
     )
     .unwrap();
@@ -81,7 +81,7 @@ fn a_subject_older_than_the_market_is_warned_and_never_worth_more_than_the_oldes
         market,
         fit,
         &AppraisalRequest::new(subject(&format!(
-            "year={oldest_year},make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used"
+            "year={oldest_year},make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used"
         ))),
     )
     .unwrap();
@@ -107,7 +107,7 @@ fn a_subject_beyond_the_markets_mileage_is_warned() {
         market,
         fit,
         &AppraisalRequest::new(subject(
-            "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=900000,condition=used",
+            "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=900000,condition=used",
         )),
     )
     .unwrap();
@@ -172,13 +172,13 @@ fn a_subject_typed_in_any_case_finds_its_market() {
         &market,
         &fit,
         &AppraisalRequest::new(subject(
-            "year=2022,make=  orvane,model=KESTREL,variant=touring,miles=38000",
+            "year=2022,make=  orvane,model=KESTREL,variant=halvet,miles=38000",
         )),
     )
     .unwrap();
     assert_eq!(a.subject.make, "Orvane");
     assert_eq!(a.subject.model, "Kestrel");
-    assert_eq!(a.subject.variant.as_deref(), Some("Touring"));
+    assert_eq!(a.subject.variant.as_deref(), Some("Halvet"));
     assert!(!a.comparables.is_empty());
 }
 
@@ -187,7 +187,7 @@ fn few_comparables_large_adjustments_and_disagreement_are_warned() {
     let (market, fit) = demo();
     // Only one model year, no mileage limit, no older than 90 days, and 30 asked for.
     let mut request = AppraisalRequest::new(subject(
-        "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used",
+        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
     ));
     request.rules.model_year_window = 0;
     request.rules.count = 30;
@@ -200,10 +200,10 @@ fn few_comparables_large_adjustments_and_disagreement_are_warned() {
         .included_rows
         .iter()
         .copied()
-        .find(|&r| market.model_year[r] == 2017 && market.variant_name(r) == "Core")
+        .find(|&r| market.model_year[r] == 2017 && market.variant_name(r) == "Veskel")
         .unwrap();
     let mut request = AppraisalRequest::new(subject(
-        "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used",
+        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
     ));
     request.choices.include.insert(market.line[far]);
     let a = appraise(market, fit, &request).unwrap();
@@ -217,7 +217,7 @@ fn few_comparables_large_adjustments_and_disagreement_are_warned() {
     // An appraiser's line adding 40 % to every comparable puts the comparables far from the
     // model: the two disagree by more than the band.
     let mut request = AppraisalRequest::new(subject(
-        "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used",
+        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
     ));
     request.user_adjustments.push(UserAdjustment {
         line: None,
@@ -236,7 +236,7 @@ fn few_comparables_large_adjustments_and_disagreement_are_warned() {
         market,
         fit,
         &AppraisalRequest::new(subject(
-            "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used",
+            "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
         )),
     )
     .unwrap();
@@ -246,13 +246,13 @@ fn few_comparables_large_adjustments_and_disagreement_are_warned() {
 #[test]
 fn a_forecast_past_the_oldest_listing_is_warned() {
     let (market, fit) = demo();
-    let s = subject("year=2016,make=Quellmark,model=Tessel,variant=Plus,miles=98000");
+    let s = subject("year=2016,make=Quellmark,model=Tessel,variant=Ambrel,miles=98000");
     let f = model::forecast::forecast(market, fit, &s, 60.0, None, 0.8).unwrap();
     assert!(has(&f.warnings, WarningCode::ForecastBeyondMarket));
     let near = model::forecast::forecast(
         market,
         fit,
-        &subject("year=2023,make=Quellmark,model=Tessel,variant=Plus,miles=30000"),
+        &subject("year=2023,make=Quellmark,model=Tessel,variant=Ambrel,miles=30000"),
         6.0,
         None,
         0.8,

@@ -18,7 +18,7 @@ fn import(text: &str) -> Result<(model::market::Market, model::import::ImportRep
 fn maps_common_header_spellings_and_reports_the_map() {
     let (market, report) = import(
         "Year,Manufacturer,Model,Trim,Price,Odometer,Stock Type,Dealer,Colour\n\
-         2021,Quellmark,Tessel,Plus,\"$31,400\",\"40,431\",Used,Seller 1,grey\n",
+         2021,Quellmark,Tessel,Ambrel,\"$31,400\",\"40,431\",Used,Seller 1,grey\n",
     )
     .unwrap();
     assert_eq!(market.len(), 1);
@@ -100,14 +100,14 @@ fn optional_values_that_do_not_parse_are_dropped_and_reported() {
 }
 
 #[test]
-fn kilometres_are_converted_and_said() {
+fn kilometers_are_converted_and_said() {
     let text = "model_year,make,model,asking_price,km\n2021,Quellmark,Tessel,30000,160934.4\n";
     let (market, report) = import(text).unwrap();
     assert!((market.miles[0] - 100_000.0).abs() < 1e-6);
-    assert_eq!(report.odometer_unit, "kilometres");
+    assert_eq!(report.odometer_unit, "kilometers");
     // An ambiguous "mileage" column follows the option.
     let opts = ImportOptions {
-        odometer_unit: OdometerUnit::Kilometres,
+        odometer_unit: OdometerUnit::Kilometers,
         ..options()
     };
     let (market, _) = import_csv_bytes(
@@ -153,7 +153,7 @@ fn file_level_errors_are_clear() {
     assert!(matches!(import("  \n\n"), Err(ImportError::Empty { .. })));
     let err = import("make,model,asking_price\nQ,T,1\n").unwrap_err();
     assert!(err.to_string().contains("model_year"), "{err}");
-    assert!(err.to_string().contains("miles (or kilometres)"), "{err}");
+    assert!(err.to_string().contains("miles (or kilometers)"), "{err}");
     let err = import("model_year,year,make,model,asking_price,miles\n").unwrap_err();
     assert!(matches!(err, ImportError::DuplicateColumn { .. }), "{err}");
     let err = import("model_year,make,model,asking_price,miles\n").unwrap_err();

@@ -1,4 +1,4 @@
-//! comptrail's checks against the outside world and its end-to-end behaviour, in one binary.
+//! comptrail's checks against the outside world and its end-to-end behavior, in one binary.
 
 // Tests may unwrap (a failure is the report) and compare floats exactly where the value is
 // exact by construction (parsed integers, prices written to the cent).

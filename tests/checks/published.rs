@@ -1,4 +1,4 @@
-//! Known answers from outside the project, each labelled with exactly where its number comes
+//! Known answers from outside the project, each labeled with exactly where its number comes
 //! from: printed in a source (which table, how many digits), computed from a published data
 //! set with a named library, constructed by a definition, or common practice.
 

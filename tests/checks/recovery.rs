@@ -30,8 +30,8 @@ fn quadratic_fit_recovers_the_generating_parameters() {
         ("age_years", tessel.age),
         ("age_years_squared", tessel.age_squared),
         ("miles_10k", truth.miles_10k),
-        ("variant=Plus", tessel.variants[1].1),
-        ("variant=Summit", tessel.variants[2].1),
+        ("variant=Ambrel", tessel.variants[1].1),
+        ("variant=Tolvane", tessel.variants[2].1),
         ("condition=certified", truth.certified),
         ("condition=new", truth.new),
     ] {
@@ -120,10 +120,10 @@ fn demo_market_depreciates_like_the_trade_says() {
     // Later years lose less in currency than earlier ones.
     assert!(at(7).loss < at(2).loss);
     // Higher variants lose more in currency, so the premium shrinks with age.
-    let summit = table
+    let top = table
         .premiums
         .iter()
-        .find(|p| p.variant == "Summit")
+        .find(|p| p.variant == "Tolvane")
         .unwrap();
-    assert!(summit.by_age[6].premium < summit.by_age[0].premium);
+    assert!(top.by_age[6].premium < top.by_age[0].premium);
 }

@@ -327,26 +327,26 @@ mod properties {
 
 #[test]
 fn a_hand_included_comparable_the_fit_cannot_price_is_refused_and_the_session_reopens() {
-    // Every Summit listing is dropped from the fit by hand, then one is included as a
-    // comparable for a Plus subject: the fit has no Summit rate. It used to be adjusted
+    // Every Tolvane listing is dropped from the fit by hand, then one is included as a
+    // comparable for a Ambrel subject: the fit has no Tolvane rate. It used to be adjusted
     // silently as the base variant, and the saved session could not be reopened (the saved
-    // rates had no Summit). Now it is refused with its reason, kept as evidence, and the
+    // rates had no Tolvane). Now it is refused with its reason, kept as evidence, and the
     // session reproduces.
     let market = acceptance::demo_market(2_000, 1);
     let segment = market.find_segment("Quellmark", "Tessel").unwrap();
-    let summit_lines: Vec<u64> = market
+    let tolvane_lines: Vec<u64> = market
         .rows_of(segment)
         .into_iter()
-        .filter(|&r| market.variant_name(r) == "Summit")
+        .filter(|&r| market.variant_name(r) == "Tolvane")
         .map(|r| market.line[r])
         .collect();
-    assert!(summit_lines.len() > 10);
+    assert!(tolvane_lines.len() > 10);
     let mut overrides = model::clean::Overrides::new();
-    for &line in &summit_lines {
+    for &line in &tolvane_lines {
         overrides.insert(
             line,
             model::clean::Override::Exclude {
-                note: "checking the Plus market alone".into(),
+                note: "checking the Ambrel market alone".into(),
             },
         );
     }
@@ -356,16 +356,16 @@ fn a_hand_included_comparable_the_fit_cannot_price_is_refused_and_the_session_re
     };
     let fit = model::appraisal::fit_market(&market, segment, &settings, &overrides).unwrap();
     let subject = model::subject::Subject::parse(
-        "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used",
+        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
     )
     .unwrap();
     let mut request = model::appraisal::AppraisalRequest::new(subject);
-    request.choices.include.insert(summit_lines[0]);
+    request.choices.include.insert(tolvane_lines[0]);
     let appraisal = model::appraisal::appraise(&market, &fit, &request).unwrap();
     assert_eq!(appraisal.refused.len(), 1);
-    assert_eq!(appraisal.refused[0].listing.line, summit_lines[0]);
+    assert_eq!(appraisal.refused[0].listing.line, tolvane_lines[0]);
     assert!(
-        appraisal.refused[0].reason.contains("'Summit'"),
+        appraisal.refused[0].reason.contains("'Tolvane'"),
         "{}",
         appraisal.refused[0].reason
     );
@@ -373,7 +373,7 @@ fn a_hand_included_comparable_the_fit_cannot_price_is_refused_and_the_session_re
         appraisal
             .comparables
             .iter()
-            .all(|c| c.listing.line != summit_lines[0])
+            .all(|c| c.listing.line != tolvane_lines[0])
     );
     let at = chrono::DateTime::parse_from_rfc3339("2026-12-01T10:00:00Z")
         .unwrap()

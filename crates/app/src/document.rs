@@ -72,7 +72,7 @@ pub fn demo_subject() -> Subject {
         model_year: 2022,
         make: "Quellmark".into(),
         model: "Tessel".into(),
-        variant: Some("Plus".into()),
+        variant: Some("Ambrel".into()),
         miles: 41_000.0,
         condition: model::condition::Condition::Used,
         options: None,

@@ -84,8 +84,8 @@ pub enum JobResult {
     },
     /// A market study finished.
     Studied(Box<MarketStudy>),
-    /// The job was cancelled.
-    Cancelled,
+    /// The job was canceled.
+    Canceled,
 }
 
 /// A worker thread and its channels.
@@ -107,12 +107,12 @@ impl Worker {
             .spawn(move || {
                 for (job, cancel) in job_rx {
                     let result = if cancel.load(Ordering::Relaxed) {
-                        JobResult::Cancelled
+                        JobResult::Canceled
                     } else {
                         run(job)
                     };
                     let result = if cancel.load(Ordering::Relaxed) {
-                        JobResult::Cancelled
+                        JobResult::Canceled
                     } else {
                         result
                     };

@@ -1,42 +1,65 @@
-//! Colours and marker shapes, our own: variant by colour, condition class by shape.
+//! The workbench's side of the shared visual language (`report::visual`): the same colors and
+//! shapes as the printed report, as egui colors and plot markers.
 
-use eframe::egui::Color32;
+use eframe::egui::{Color32, Ui};
 use egui_plot::MarkerShape;
 use model::condition::Condition;
+use report::visual::{self, Rgb, Shape};
 
-/// Variant colours in order of the fitted design (base first): teal, plum, ochre, slate,
-/// moss, brick. Chosen to stay distinct for common colour-vision deficiencies and on both
-/// themes.
-pub const VARIANT_COLOURS: [Color32; 6] = [
-    Color32::from_rgb(0x1f, 0x8a, 0x80),
-    Color32::from_rgb(0x8e, 0x44, 0x8a),
-    Color32::from_rgb(0xc0, 0x8b, 0x1a),
-    Color32::from_rgb(0x4d, 0x5d, 0x73),
-    Color32::from_rgb(0x6b, 0x8e, 0x23),
-    Color32::from_rgb(0xa6, 0x3d, 0x32),
-];
+fn color(rgb: Rgb) -> Color32 {
+    Color32::from_rgb(rgb[0], rgb[1], rgb[2])
+}
 
-/// The subject's colour: a strong magenta-red, used for nothing else.
-pub const SUBJECT: Color32 = Color32::from_rgb(0xd6, 0x1f, 0x5b);
+/// The subject's color, used for nothing else.
+pub const SUBJECT: Color32 = Color32::from_rgb(
+    visual::SUBJECT[0],
+    visual::SUBJECT[1],
+    visual::SUBJECT[2],
+);
 
-/// Colour of the `index`-th variant.
+/// Color of the `index`-th variant in color order (see `report::visual::variant_order`).
 #[must_use]
-pub fn variant_colour(index: usize) -> Color32 {
-    VARIANT_COLOURS[index % VARIANT_COLOURS.len()]
+pub fn variant_color(index: usize) -> Color32 {
+    color(visual::variant_color(index))
+}
+
+/// The neutral ink of the current theme: the model's line and band, comparables' rings, the
+/// selection, marks of judgment.
+#[must_use]
+pub fn ink(ui: &Ui) -> Color32 {
+    ink_for(ui.visuals().dark_mode)
+}
+
+/// The neutral ink for a dark or a light theme.
+#[must_use]
+pub fn ink_for(dark: bool) -> Color32 {
+    color(if dark {
+        visual::INK_ON_DARK
+    } else {
+        visual::INK_ON_LIGHT
+    })
+}
+
+/// The plot marker of a shape of the shared language.
+#[must_use]
+pub fn marker(shape: Shape) -> MarkerShape {
+    match shape {
+        Shape::Circle | Shape::Ring => MarkerShape::Circle,
+        Shape::Square => MarkerShape::Square,
+        Shape::Diamond => MarkerShape::Diamond,
+        Shape::Cross => MarkerShape::Cross,
+        Shape::TriangleDown => MarkerShape::Down,
+    }
 }
 
 /// Marker shape of a condition class: used circles, certified squares, new diamonds.
 #[must_use]
 pub fn condition_shape(condition: Condition) -> MarkerShape {
-    match condition {
-        Condition::Used => MarkerShape::Circle,
-        Condition::Certified => MarkerShape::Square,
-        Condition::New => MarkerShape::Diamond,
-    }
+    marker(visual::condition_shape(condition))
 }
 
-/// The same colour, faded (excluded listings).
+/// The same color, faded (excluded listings).
 #[must_use]
-pub fn faded(colour: Color32) -> Color32 {
-    colour.gamma_multiply(0.25)
+pub fn faded(color: Color32) -> Color32 {
+    color.gamma_multiply(0.25)
 }

@@ -48,7 +48,7 @@ pub struct Runtime {
     /// Market requested and not yet loaded.
     pub loading: Option<MarketSource>,
     /// The document as it was before a market was opened, to restore if the import fails or is
-    /// cancelled.
+    /// canceled.
     pub before_open: Option<crate::document::AppraisalDocument>,
     /// Last import failure, shown until dismissed.
     pub import_failure: Option<ImportFailure>,
@@ -62,7 +62,7 @@ pub struct Runtime {
     pub gaps: Option<Arc<crate::jobs::FlaggedGaps>>,
     /// The backtest and model ranking of the current fit, once computed.
     pub study: Option<Box<crate::jobs::MarketStudy>>,
-    /// A fit the user cancelled; not requested again until its inputs change.
+    /// A fit the user canceled; not requested again until its inputs change.
     pub fit_cancelled: Option<FitKey>,
     /// Why the last fit failed.
     pub fit_error: Option<AppraisalError>,

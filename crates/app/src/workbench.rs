@@ -301,9 +301,9 @@ impl Workbench {
                     self.runtime.study = Some(study);
                 }
             }
-            JobResult::Cancelled => {
-                // A cancelled import leaves the loaded market in place, as a failed one does; a
-                // cancelled fit is not asked for again until its inputs change.
+            JobResult::Canceled => {
+                // A canceled import leaves the loaded market in place, as a failed one does; a
+                // canceled fit is not asked for again until its inputs change.
                 if self.runtime.loading.take().is_some() {
                     self.restore_before_open();
                 }
@@ -314,7 +314,7 @@ impl Workbench {
         }
     }
 
-    /// After a failed or cancelled import: the document goes back to the market that is loaded,
+    /// After a failed or canceled import: the document goes back to the market that is loaded,
     /// with the hand choices, overrides and date that opening the new one had cleared.
     fn restore_before_open(&mut self) {
         if let Some(before) = self.runtime.before_open.take() {

@@ -16,10 +16,10 @@ use eframe::egui;
 use egui_kittest::{Harness, SnapshotOptions};
 use model::session::Purpose;
 
-/// How far one pixel's colour may move (YIQ distance, kittest's measure) before it counts as
+/// How far one pixel's color may move (YIQ distance, kittest's measure) before it counts as
 /// changed, and how many changed pixels a snapshot tolerates. The CPU renderer is
 /// deterministic, so these only absorb floating-point differences between machines; changing
-/// one digit of a figure changes about 70 pixels, a moved widget or a colour hundreds.
+/// one digit of a figure changes about 70 pixels, a moved widget or a color hundreds.
 const PIXEL_THRESHOLD: f32 = 0.6;
 const MAX_CHANGED_PIXELS: usize = 8;
 

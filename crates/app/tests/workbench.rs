@@ -48,12 +48,12 @@ fn picking_a_listing_as_subject_updates_the_comparables_and_value() {
     let before = wb.runtime().appraisal.clone().unwrap();
     let market = wb.runtime().market.clone().unwrap();
     let fit = wb.runtime().fit.clone().unwrap();
-    // A 2019 Summit: a different year and variant from the demo subject.
+    // A 2019 Tolvane: a different year and variant from the demo subject.
     let row = fit
         .included_rows
         .iter()
         .copied()
-        .find(|&r| market.model_year[r] == 2019 && market.variant_name(r) == "Summit")
+        .find(|&r| market.model_year[r] == 2019 && market.variant_name(r) == "Tolvane")
         .unwrap();
     wb.apply(Command::SetSubject(model::subject::Subject::from_listing(
         &market.listing(row),

@@ -138,7 +138,7 @@ pub enum AgeFormArg {
 pub enum OdometerArg {
     /// Miles.
     Miles,
-    /// Kilometres (converted to miles).
+    /// Kilometers (converted to miles).
     Km,
 }
 
@@ -202,7 +202,7 @@ pub struct AppraiseArgs {
     /// Market options.
     #[command(flatten)]
     pub market: MarketArgs,
-    /// The subject, e.g. "year=2021,make=Quellmark,model=Tessel,variant=Plus,miles=48000,condition=used".
+    /// The subject, e.g. "year=2021,make=Quellmark,model=Tessel,variant=Ambrel,miles=48000,condition=used".
     #[arg(long)]
     pub subject: Option<String>,
     /// Level of the intervals and the value band (strictly between 0 and 1).

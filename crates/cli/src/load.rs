@@ -22,7 +22,7 @@ pub fn load_market(args: &MarketArgs) -> Result<Loaded> {
         delimiter: args.delimiter.map(|c| c as u8),
         odometer_unit: match args.odometer {
             OdometerArg::Miles => OdometerUnit::Miles,
-            OdometerArg::Km => OdometerUnit::Kilometres,
+            OdometerArg::Km => OdometerUnit::Kilometers,
         },
         ..ImportOptions::default()
     };

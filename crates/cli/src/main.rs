@@ -31,7 +31,7 @@ use crate::output::{
 
 /// The subject appraised when none is given on the demo market.
 const DEMO_SUBJECT: &str =
-    "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used";
+    "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used";
 
 fn main() -> ExitCode {
     let cli = match Cli::try_parse() {

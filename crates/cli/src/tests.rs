@@ -87,7 +87,7 @@ const VALUES: [&str; 34] = [
     "options:600:tow package",
     "condition:-1e7:worn",
     "other:0.001:x",
-    "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used",
+    "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
     "year=99999,make=,model=,miles=-5",
 ];
 

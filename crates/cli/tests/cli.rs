@@ -23,7 +23,7 @@ fn json(out: &Output) -> serde_json::Value {
 }
 
 const SUBJECT: &str =
-    "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used";
+    "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used";
 
 #[test]
 fn appraise_json_has_the_documented_keys() {
@@ -358,7 +358,7 @@ fn every_document_carries_its_warnings_and_the_small_export_is_read_as_one_model
         "appraise",
         &small,
         "--subject",
-        "year=2022,make=orvane,model=KESTREL,variant=touring,miles=38000",
+        "year=2022,make=orvane,model=KESTREL,variant=halvet,miles=38000",
         "--json",
     ]));
     assert!(codes(&v).contains(&"few_listings".to_owned()));
@@ -383,7 +383,7 @@ fn every_document_carries_its_warnings_and_the_small_export_is_read_as_one_model
         "appraise",
         &asset(),
         "--subject",
-        "year=1990,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used",
+        "year=1990,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
     ]);
     let text = String::from_utf8_lossy(&out.stdout);
     let warning = text.find("WARNING: The subject's model year 1990").unwrap();

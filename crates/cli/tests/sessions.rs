@@ -29,7 +29,7 @@ fn a_saved_trade_in_reopens_to_the_same_numbers_and_prints_a_report() {
         "appraise",
         &repo("assets/demo-market.csv"),
         "--subject",
-        "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used",
+        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
         "--as-of",
         "2026-11-30",
         "--trade-in",
@@ -116,7 +116,7 @@ fn a_moved_market_file_is_reported_and_the_evidence_still_reproduces() {
         "appraise",
         market.to_str().unwrap(),
         "--subject",
-        "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used",
+        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
         "--as-of",
         "2026-11-30",
         "--save-session",
@@ -125,7 +125,7 @@ fn a_moved_market_file_is_reported_and_the_evidence_still_reproduces() {
     // Changed: one more listing appended.
     let mut bytes = std::fs::read(&market).unwrap();
     bytes.extend_from_slice(
-        b"2022,Quellmark,Tessel,Plus,29990,40000,used,2026-11-28,,,,,,,clean,\n",
+        b"2022,Quellmark,Tessel,Ambrel,29990,40000,used,2026-11-28,,,,,,,clean,\n",
     );
     std::fs::write(&market, bytes).unwrap();
     let out = succeeded(&[
@@ -240,7 +240,7 @@ fn a_claim_in_json_has_the_documented_keys() {
         "appraise",
         &repo("assets/demo-market.csv"),
         "--subject",
-        "year=2021,make=Quellmark,model=Brindle,variant=Trek,miles=52300,condition=used",
+        "year=2021,make=Quellmark,model=Brindle,variant=Durnow,miles=52300,condition=used",
         "--as-of",
         "2026-11-30",
         "--claim",

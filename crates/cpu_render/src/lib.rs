@@ -1,7 +1,7 @@
 //! A CPU renderer for egui frames, for image snapshots on machines without a GPU.
 //!
 //! egui hands a renderer triangle meshes (positions, texture coordinates, premultiplied vertex
-//! colours) and texture updates; this draws them into an RGBA image with premultiplied alpha
+//! colors) and texture updates; this draws them into an RGBA image with premultiplied alpha
 //! blending, nearest-texel sampling and egui's own clip rectangles. It is not a faithful copy of
 //! a GPU rasterizer (no multisampling, blending in gamma space as egui's own renderers do), so
 //! snapshots taken with it are compared only with snapshots taken with it.
@@ -44,7 +44,7 @@ impl CpuRenderer {
     }
 }
 
-fn colour(c: Color32) -> [f32; 4] {
+fn color(c: Color32) -> [f32; 4] {
     [
         f32::from(c.r()) / 255.0,
         f32::from(c.g()) / 255.0,
@@ -78,7 +78,7 @@ impl TestRenderer for CpuRenderer {
             (screen.width() * ppp).round() as usize,
             (screen.height() * ppp).round() as usize,
         );
-        let background = colour(ctx.global_style().visuals.panel_fill);
+        let background = color(ctx.global_style().visuals.panel_fill);
         let mut canvas = vec![background; width * height];
         let primitives = ctx.tessellate(output.shapes.clone(), ppp);
         for p in &primitives {
@@ -176,7 +176,7 @@ impl CpuRenderer {
             .fold(f32::NEG_INFINITY, f32::max)
             .min(clip[3])
             .ceil() as i64;
-        let colours = [colour(v[0].color), colour(v[1].color), colour(v[2].color)];
+        let colors = [color(v[0].color), color(v[1].color), color(v[2].color)];
         for y in y0.max(0)..y1 {
             for x in x0.max(0)..x1 {
                 let (px, py) = (x as f32 + 0.5, y as f32 + 0.5);
@@ -196,7 +196,7 @@ impl CpuRenderer {
                 let t = self.sample(texture, uv);
                 let mut src = [0.0_f32; 4];
                 for (k, s) in src.iter_mut().enumerate() {
-                    *s = (w0 * colours[0][k] + w1 * colours[1][k] + w2 * colours[2][k]) * t[k];
+                    *s = (w0 * colors[0][k] + w1 * colors[1][k] + w2 * colors[2][k]) * t[k];
                 }
                 let dst = &mut canvas[y as usize * width + x as usize];
                 for k in 0..4 {

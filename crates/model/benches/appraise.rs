@@ -41,7 +41,7 @@ fn settings() -> FitSettings {
 
 fn subject(miles: f64) -> Subject {
     Subject::parse(&format!(
-        "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles={miles},condition=used"
+        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles={miles},condition=used"
     ))
     .unwrap()
 }

@@ -27,7 +27,7 @@ fn main() {
     let make = args.get(1).map_or("Quellmark", String::as_str);
     let model_name = args.get(2).map_or("Tessel", String::as_str);
     let subject = args.get(3).map_or(
-        "year=2022,make=Quellmark,model=Tessel,variant=Plus,miles=41000,condition=used",
+        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
         String::as_str,
     );
 

@@ -18,7 +18,7 @@ impl Condition {
     /// All classes, in display order.
     pub const ALL: [Condition; 3] = [Condition::New, Condition::Used, Condition::Certified];
 
-    /// Reads the common spellings found in listing feeds; `None` when unrecognised.
+    /// Reads the common spellings found in listing feeds; `None` when unrecognized.
     #[must_use]
     pub fn parse(text: &str) -> Option<Self> {
         let t = text.trim();

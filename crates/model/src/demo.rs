@@ -65,7 +65,7 @@ pub fn demo_truth() -> DemoTruth {
                 model: "Tessel",
                 share: 0.5,
                 base_price: 46_000.0,
-                variants: [("Core", 0.0), ("Plus", 0.12), ("Summit", 0.28)],
+                variants: [("Veskel", 0.0), ("Ambrel", 0.12), ("Tolvane", 0.28)],
                 age: -0.14,
                 age_squared: 0.006,
             },
@@ -74,7 +74,7 @@ pub fn demo_truth() -> DemoTruth {
                 model: "Brindle",
                 share: 0.3,
                 base_price: 39_000.0,
-                variants: [("Core", 0.0), ("Trek", 0.09), ("Apex", 0.22)],
+                variants: [("Veskel", 0.0), ("Durnow", 0.09), ("Saltry", 0.22)],
                 age: -0.13,
                 age_squared: 0.005,
             },
@@ -83,7 +83,7 @@ pub fn demo_truth() -> DemoTruth {
                 model: "Kestrel",
                 share: 0.2,
                 base_price: 24_500.0,
-                variants: [("Standard", 0.0), ("Touring", 0.10), ("Signature", 0.19)],
+                variants: [("Cressin", 0.0), ("Halvet", 0.10), ("Norrith", 0.19)],
                 age: -0.12,
                 age_squared: 0.004,
             },
@@ -100,15 +100,15 @@ pub fn demo_truth() -> DemoTruth {
 pub const DEMO_HEADER: &str = "model_year,make,model,variant,asking_price,miles,condition,listed_on,sold_on,sale_price,vin,seller,location,distance_mi,title,options";
 
 const PLACES: [&str; 10] = [
-    "Ashford Vale",
+    "Ashwen Vale",
     "Marrow Bend",
     "Kettle Cross",
     "Linden Reach",
     "Osterby",
-    "Pellham Ford",
+    "Pellham Weir",
     "Quarry Hill",
     "Renwick Flats",
-    "Sable Point",
+    "Sallow Point",
     "Tamsin Wells",
 ];
 const OPTIONS: [&str; 5] = [

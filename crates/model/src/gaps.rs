@@ -25,7 +25,7 @@ pub struct PriceGap {
     pub row: usize,
     /// File line.
     pub line: u64,
-    /// "2021 Plus, 48,000 mi, used".
+    /// "2021 Ambrel, 48,000 mi, used".
     pub description: String,
     /// Asking price.
     pub asking_price: f64,

@@ -49,7 +49,7 @@ pub struct Market {
     pub variant: Vec<NameId>,
     /// Asking price in the file's currency.
     pub asking_price: Vec<f64>,
-    /// Odometer in miles (kilometres are converted on import).
+    /// Odometer in miles (kilometers are converted on import).
     pub miles: Vec<f64>,
     /// Condition class.
     pub condition: Vec<Condition>,
@@ -67,7 +67,7 @@ pub struct Market {
     pub location: Vec<NameId>,
     /// Latitude and longitude in degrees.
     pub coordinates: Vec<Option<(f32, f32)>>,
-    /// Distance from the appraiser's market centre in miles, when the feed gives it.
+    /// Distance from the appraiser's market center in miles, when the feed gives it.
     pub distance_miles: Vec<Option<f32>>,
     /// Title brand, when stated.
     pub title: Vec<Option<TitleStatus>>,
@@ -133,7 +133,7 @@ impl Listing {
         )
     }
 
-    /// One line for tooltips and tables: "line 812: 2021 Tessel Plus, 41,000 mi, used, $30,400".
+    /// One line for tooltips and tables: "line 812: 2021 Tessel Ambrel, 41,000 mi, used, $30,400".
     #[must_use]
     pub fn describe(&self) -> String {
         format!(

@@ -200,7 +200,7 @@ pub struct OlsPrediction {
 
 impl OlsFit {
     /// Builds the fit from a finished QR factor; `ys` supplies the responses for the total sum of
-    /// squares (centred when an intercept is present, uncentred otherwise).
+    /// squares (centered when an intercept is present, uncentred otherwise).
     pub fn from_factor(
         factor: QrFactor,
         intercept: bool,
@@ -286,7 +286,7 @@ impl OlsFit {
     }
 
     /// Schwarz's Bayesian information criterion for the Gaussian linear model (Schwarz 1978):
-    /// `−2 ln L + p ln n`, with the maximised log-likelihood `ln L = −(n/2)(ln(2π·RSS/n) + 1)`
+    /// `−2 ln L + p ln n`, with the maximized log-likelihood `ln L = −(n/2)(ln(2π·RSS/n) + 1)`
     /// and `p` the number of coefficients (the error variance is not counted, as in the
     /// general-purpose libraries this is checked against). Lower is better.
     #[must_use]
@@ -359,9 +359,9 @@ impl OlsFit {
     }
 }
 
-fn total_sum_of_squares(ys: impl Iterator<Item = f64>, centred: bool) -> f64 {
+fn total_sum_of_squares(ys: impl Iterator<Item = f64>, centered: bool) -> f64 {
     let ys: Vec<f64> = ys.collect();
-    if centred {
+    if centered {
         let mean = ys.iter().sum::<f64>() / ys.len() as f64;
         ys.iter().map(|y| (y - mean).powi(2)).sum()
     } else {

@@ -165,10 +165,10 @@ mod tests {
 
     #[test]
     fn a_variant_is_found_by_its_exact_label_before_its_spelling() {
-        // Regression: look-ups ignored case, so with "Plus" and "PLUS" both stored, "Plus"
+        // Regression: look-ups ignored case, so with "Ambrel" and "PLUS" both stored, "Ambrel"
         // found "PLUS" first (BTreeMap order) and replayed with the wrong effect.
-        let r = rates(&[("Plus", 0.1), ("PLUS", 0.3), ("Core", 0.0)]);
-        assert_eq!(r.variant("Plus"), Ok(0.1));
+        let r = rates(&[("Ambrel", 0.1), ("PLUS", 0.3), ("Veskel", 0.0)]);
+        assert_eq!(r.variant("Ambrel"), Ok(0.1));
         assert_eq!(r.variant("PLUS"), Ok(0.3));
         // Another spelling of two stored labels is not guessed between.
         assert!(r.variant("plus").is_err());

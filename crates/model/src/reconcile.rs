@@ -6,7 +6,7 @@
 //! Indicated value V = Σ w_j · adjusted_j.
 //!
 //! Band, in ln price: the comparables' spread σ_c = weighted SD of ln(adjusted_j) inflated by
-//! sqrt(1 + 1/n_eff) with n_eff = 1/Σw² (a new sale drawn from the same spread, around a centre
+//! sqrt(1 + 1/n_eff) with n_eff = 1/Σw² (a new sale drawn from the same spread, around a center
 //! estimated from n_eff comparables); the model's σ_m = its prediction standard error for the
 //! subject. Each gives a half-width in ln price, t·σ, with t at that source's degrees of
 //! freedom (n_eff − 1 for the comparables, n − p for the model). The band takes the source
@@ -196,7 +196,7 @@ mod tests {
     }
 
     /// Two comparables of equal weight whose spread gives σ_c = `sigma_c`: ln prices ±a about
-    /// the centre give a weighted SD of a·√2 and σ_c = a·√2·√(1 + 1/2) = a·√3.
+    /// the center give a weighted SD of a·√2 and σ_c = a·√2·√(1 + 1/2) = a·√3.
     fn pair(sigma_c: f64) -> [ReconcileInput; 2] {
         let a = sigma_c / 3_f64.sqrt();
         [a, -a].map(|d| ReconcileInput {

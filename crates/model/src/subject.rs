@@ -33,7 +33,7 @@ pub struct Subject {
 pub enum SubjectError {
     /// A required key is absent.
     #[error(
-        "subject: '{0}' is missing (write e.g. \"year=2021,make=Quellmark,model=Tessel,variant=Plus,miles=48000,condition=used\")"
+        "subject: '{0}' is missing (write e.g. \"year=2021,make=Quellmark,model=Tessel,variant=Ambrel,miles=48000,condition=used\")"
     )]
     Missing(&'static str),
     /// A value is unreadable.
@@ -57,7 +57,7 @@ pub enum SubjectError {
 }
 
 impl Subject {
-    /// Reads `"year=2021,make=Quellmark,model=Tessel,variant=Plus,miles=48000,condition=used"`.
+    /// Reads `"year=2021,make=Quellmark,model=Tessel,variant=Ambrel,miles=48000,condition=used"`.
     /// Condition defaults to used; variant, options and VIN are optional.
     pub fn parse(spec: &str) -> Result<Self, SubjectError> {
         let (mut year, mut make, mut model, mut variant, mut miles) =
@@ -146,7 +146,7 @@ impl Subject {
             && self.options == other.options
     }
 
-    /// One-line description, e.g. "2021 Quellmark Tessel Plus, 48,000 mi, used".
+    /// One-line description, e.g. "2021 Quellmark Tessel Ambrel, 48,000 mi, used".
     #[must_use]
     pub fn describe(&self) -> String {
         format!(

@@ -98,7 +98,7 @@ mod tests {
     #[test]
     fn names_match_without_case_or_extra_spaces() {
         assert_eq!(name_key("  QUELLMARK "), "quellmark");
-        assert_eq!(name_key("Tessel\t  Plus"), "tessel plus");
+        assert_eq!(name_key("Tessel\t  Ambrel"), "tessel plus");
         assert_eq!(name_key("ÉCLAT"), "éclat");
         assert_eq!(name_key(""), "");
     }

@@ -195,8 +195,7 @@ fn market_facts(session: &Session) -> Vec<(String, String)> {
         (
             "Fit".into(),
             format!(
-                "log-price hedonic regression, {:?} age form{}; R² {:.3}, residual SD {:.3} in ln price",
-                f.settings.age_form,
+                "log-price hedonic regression{}; R² {:.3}, residual SD {:.3} in ln price",
                 if f.settings.robust {
                     ", Huber robust"
                 } else {
@@ -204,6 +203,13 @@ fn market_facts(session: &Session) -> Vec<(String, String)> {
                 },
                 f.r_squared,
                 f.residual_sd
+            ),
+        ),
+        (
+            "Age form".into(),
+            f.age_form_choice.as_ref().map_or_else(
+                || format!("{} (as set)", f.settings.age_form),
+                |c| c.reason.clone(),
             ),
         ),
         (

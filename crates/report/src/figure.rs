@@ -3,18 +3,7 @@
 
 use model::session::Session;
 
-use crate::palette;
-
-/// How a set of points is drawn.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Marker {
-    /// Small faint dot (market listings).
-    Dot,
-    /// Filled circle with a number beside it (comparables).
-    Numbered,
-    /// Diamond (the subject).
-    Diamond,
-}
+use crate::visual::{self, Rgb, Shape};
 
 /// One layer of a chart.
 #[derive(Debug, Clone, PartialEq)]
@@ -23,17 +12,20 @@ pub enum Mark {
     Points {
         /// (x, y).
         points: Vec<(f64, f64)>,
-        /// Marker.
-        marker: Marker,
-        /// Colour.
-        rgb: [u8; 3],
+        /// How each point is marked.
+        shape: Shape,
+        /// Color.
+        rgb: Rgb,
+        /// Whether each point carries its number (1, 2, …) beside it, as in the comparables
+        /// table.
+        numbered: bool,
     },
     /// A polyline.
     Line {
         /// (x, y).
         points: Vec<(f64, f64)>,
-        /// Colour.
-        rgb: [u8; 3],
+        /// Color.
+        rgb: Rgb,
         /// Dashed.
         dashed: bool,
     },
@@ -45,9 +37,20 @@ pub enum Mark {
         low: f64,
         /// High end.
         high: f64,
-        /// Colour.
-        rgb: [u8; 3],
+        /// Color.
+        rgb: Rgb,
     },
+}
+
+/// One entry of a chart's key: its mark (a shape, or a line when `None`), color and meaning.
+#[derive(Debug, Clone, PartialEq)]
+pub struct KeyEntry {
+    /// The shape, or `None` for a line.
+    pub shape: Option<Shape>,
+    /// Color.
+    pub rgb: Rgb,
+    /// What it means.
+    pub text: String,
 }
 
 /// A chart.
@@ -63,8 +66,8 @@ pub struct Figure {
     pub x_is_year: bool,
     /// Layers, back to front.
     pub marks: Vec<Mark>,
-    /// Legend: (colour, text).
-    pub legend: Vec<([u8; 3], String)>,
+    /// The key to the marks.
+    pub legend: Vec<KeyEntry>,
 }
 
 impl Figure {
@@ -136,39 +139,110 @@ pub fn x_ticks(f: &Figure, x: (f64, f64)) -> Vec<f64> {
     }
 }
 
-fn market_points(session: &Session, x: impl Fn(&model::market::Listing) -> f64) -> Vec<Mark> {
-    session
-        .segment_listings
-        .as_ref()
-        .map(|listings| {
-            // Thin very large saved segments: a printed chart cannot show more dots.
-            let step = (listings.len() / 4_000).max(1);
-            vec![Mark::Points {
-                points: listings
-                    .iter()
-                    .step_by(step)
-                    .map(|l| (x(l), l.asking_price))
-                    .collect(),
-                marker: Marker::Dot,
-                rgb: palette::MARKET,
-            }]
-        })
-        .unwrap_or_default()
+/// The variants of the saved fit in color order (see [`visual::variant_order`]).
+fn variant_colors(session: &Session) -> Vec<(String, Rgb)> {
+    let effects = &session.fit.rates.variant_effects;
+    visual::variant_order(effects.iter().map(|(k, v)| (k.as_str(), *v)))
+        .into_iter()
+        .enumerate()
+        .map(|(i, name)| (name.to_owned(), visual::variant_color(i)))
+        .collect()
 }
 
-fn legend(session: &Session) -> Vec<([u8; 3], String)> {
+fn color_of(colors: &[(String, Rgb)], variant: Option<&str>) -> Rgb {
+    let label = variant.unwrap_or(model::rates::NO_VARIANT);
+    colors
+        .iter()
+        .find(|(name, _)| name == label)
+        .map_or(visual::INK_ON_LIGHT, |(_, c)| *c)
+}
+
+/// The saved segment's listings, by variant color and condition shape (thinned past 4,000:
+/// a printed chart cannot show more).
+fn market_points(session: &Session, x: impl Fn(&model::market::Listing) -> f64) -> Vec<Mark> {
+    let Some(listings) = session.segment_listings.as_ref() else {
+        return Vec::new();
+    };
+    let colors = variant_colors(session);
+    let step = (listings.len() / 4_000).max(1);
+    let mut series: Vec<((Rgb, Shape), Vec<(f64, f64)>)> = Vec::new();
+    for l in listings.iter().step_by(step) {
+        let key = (
+            color_of(&colors, l.variant.as_deref()),
+            visual::condition_shape(l.condition),
+        );
+        let point = (x(l), l.asking_price);
+        match series.iter_mut().find(|(k, _)| *k == key) {
+            Some((_, points)) => points.push(point),
+            None => series.push((key, vec![point])),
+        }
+    }
+    series
+        .into_iter()
+        .map(|((rgb, shape), points)| Mark::Points {
+            points,
+            shape,
+            rgb,
+            numbered: false,
+        })
+        .collect()
+}
+
+/// The comparables as rings, numbered as in the table.
+fn comparable_rings(points: Vec<(f64, f64)>) -> Mark {
+    Mark::Points {
+        points,
+        shape: Shape::Ring,
+        rgb: visual::INK_ON_LIGHT,
+        numbered: true,
+    }
+}
+
+/// The subject's cross at its indicated value, and its value band.
+fn subject_marks(x: f64, value: f64, band: &model::ols::Interval) -> [Mark; 2] {
+    [
+        Mark::Range {
+            x,
+            low: band.lower,
+            high: band.upper,
+            rgb: visual::SUBJECT,
+        },
+        Mark::Points {
+            points: vec![(x, value)],
+            shape: Shape::Cross,
+            rgb: visual::SUBJECT,
+            numbered: false,
+        },
+    ]
+}
+
+/// The key: the variants present, the shapes, the comparables and the subject.
+fn legend(session: &Session) -> Vec<KeyEntry> {
     let mut legend = Vec::new();
     if session.segment_listings.is_some() {
-        legend.push((palette::MARKET, "market listings".to_owned()));
+        for (name, rgb) in variant_colors(session) {
+            legend.push(KeyEntry {
+                shape: Some(Shape::Circle),
+                rgb,
+                text: name,
+            });
+        }
+        legend.push(KeyEntry {
+            shape: Some(Shape::Square),
+            rgb: visual::INK_ON_LIGHT,
+            text: "shape: circle used, square certified pre-owned, diamond new".into(),
+        });
     }
-    legend.push((
-        palette::COMPARABLE,
-        "comparables (asking price, numbered as in the table)".to_owned(),
-    ));
-    legend.push((
-        palette::SUBJECT,
-        "subject: indicated value and value band".to_owned(),
-    ));
+    legend.push(KeyEntry {
+        shape: Some(Shape::Ring),
+        rgb: visual::INK_ON_LIGHT,
+        text: "comparables (asking price, numbered as in the table)".into(),
+    });
+    legend.push(KeyEntry {
+        shape: Some(Shape::Cross),
+        rgb: visual::SUBJECT,
+        text: "subject: indicated value and value band".into(),
+    });
     legend
 }
 
@@ -179,27 +253,14 @@ pub fn price_by_year(session: &Session) -> Figure {
     let a = &session.appraisal;
     let r = &session.result;
     let mut marks = market_points(session, |l| f64::from(l.model_year));
-    marks.push(Mark::Points {
-        points: a
-            .comparables
+    marks.push(comparable_rings(
+        a.comparables
             .iter()
             .map(|c| (f64::from(c.listing.model_year), c.listing.asking_price))
             .collect(),
-        marker: Marker::Numbered,
-        rgb: palette::COMPARABLE,
-    });
+    ));
     let x = f64::from(session.request.subject.model_year);
-    marks.push(Mark::Range {
-        x,
-        low: r.value_band.lower,
-        high: r.value_band.upper,
-        rgb: palette::SUBJECT,
-    });
-    marks.push(Mark::Points {
-        points: vec![(x, r.indicated_value)],
-        marker: Marker::Diamond,
-        rgb: palette::SUBJECT,
-    });
+    marks.extend(subject_marks(x, r.indicated_value, &r.value_band));
     Figure {
         title: "Asking price by model year".into(),
         x_label: "model year".into(),
@@ -240,45 +301,28 @@ pub fn price_by_mileage(session: &Session) -> Figure {
             })
             .collect()
     };
-    marks.push(Mark::Line {
-        points: along(estimate.prediction_interval.lower),
-        rgb: palette::FIT,
-        dashed: true,
-    });
-    marks.push(Mark::Line {
-        points: along(estimate.prediction_interval.upper),
-        rgb: palette::FIT,
-        dashed: true,
-    });
-    marks.push(Mark::Line {
-        points: along(estimate.median),
-        rgb: palette::FIT,
-        dashed: false,
-    });
-    marks.push(Mark::Points {
-        points: comparables,
-        marker: Marker::Numbered,
-        rgb: palette::COMPARABLE,
-    });
-    marks.push(Mark::Range {
-        x: subject_miles,
-        low: r.value_band.lower,
-        high: r.value_band.upper,
-        rgb: palette::SUBJECT,
-    });
-    marks.push(Mark::Points {
-        points: vec![(subject_miles, r.indicated_value)],
-        marker: Marker::Diamond,
-        rgb: palette::SUBJECT,
-    });
+    for (scale, dashed) in [
+        (estimate.prediction_interval.lower, true),
+        (estimate.prediction_interval.upper, true),
+        (estimate.median, false),
+    ] {
+        marks.push(Mark::Line {
+            points: along(scale),
+            rgb: visual::INK_ON_LIGHT,
+            dashed,
+        });
+    }
+    marks.push(comparable_rings(comparables));
+    marks.extend(subject_marks(subject_miles, r.indicated_value, &r.value_band));
     let mut legend = legend(session);
-    legend.push((
-        palette::FIT,
-        format!(
+    legend.push(KeyEntry {
+        shape: None,
+        rgb: visual::INK_ON_LIGHT,
+        text: format!(
             "model: the subject's median value by mileage, dashed its {:.0} % prediction interval",
             100.0 * estimate.prediction_interval.level
         ),
-    ));
+    });
     Figure {
         title: "Asking price by mileage".into(),
         x_label: "miles".into(),

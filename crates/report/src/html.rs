@@ -4,7 +4,8 @@
 use std::fmt::Write;
 
 use crate::blocks::{Align, Block, Report};
-use crate::figure::{Figure, Mark, Marker, ticks, x_ticks};
+use crate::visual::Shape;
+use crate::figure::{Figure, Mark, ticks, x_ticks};
 use crate::palette;
 
 fn esc(text: &str) -> String {
@@ -224,12 +225,22 @@ fn svg(out: &mut String, f: &Figure) {
     let legend: Vec<String> = f
         .legend
         .iter()
-        .map(|(c, t)| {
-            format!(
-                "<span style=\"display:inline-block;width:.7em;height:.7em;background:{}\"></span> {}",
-                rgb(*c),
-                esc(t)
-            )
+        .map(|k| {
+            let mut mark = String::from(
+                "<svg width=\"14\" height=\"12\" viewBox=\"0 0 14 12\" style=\"vertical-align:middle\">",
+            );
+            match k.shape {
+                Some(shape) => shape_svg(&mut mark, shape, 7.0, 6.0, 4.0, &rgb(k.rgb)),
+                None => {
+                    let _ = write!(
+                        mark,
+                        "<line x1=\"0\" y1=\"6\" x2=\"14\" y2=\"6\" stroke=\"{}\" stroke-width=\"2\"/>",
+                        rgb(k.rgb)
+                    );
+                }
+            }
+            mark.push_str("</svg>");
+            format!("{mark} {}", esc(&k.text))
         })
         .collect();
     let _ = writeln!(
@@ -239,42 +250,101 @@ fn svg(out: &mut String, f: &Figure) {
     );
 }
 
+/// Draws one `shape` centered at (x, y), `size` its half-width in pixels.
+pub(crate) fn shape_svg(out: &mut String, shape: Shape, x: f64, y: f64, size: f64, color: &str) {
+    let r = size;
+    match shape {
+        Shape::Circle => {
+            let _ = write!(
+                out,
+                "<circle cx=\"{x:.1}\" cy=\"{y:.1}\" r=\"{r:.1}\" fill=\"{color}\"/>"
+            );
+        }
+        Shape::Square => {
+            let _ = write!(
+                out,
+                "<rect x=\"{:.1}\" y=\"{:.1}\" width=\"{:.1}\" height=\"{:.1}\" fill=\"{color}\"/>",
+                x - r,
+                y - r,
+                2.0 * r,
+                2.0 * r
+            );
+        }
+        Shape::Diamond => {
+            let d = r * 1.3;
+            let _ = write!(
+                out,
+                "<path d=\"M{x:.1} {:.1} L{:.1} {y:.1} L{x:.1} {:.1} L{:.1} {y:.1} Z\" fill=\"{color}\"/>",
+                y - d,
+                x + d,
+                y + d,
+                x - d
+            );
+        }
+        Shape::Cross => {
+            let _ = write!(
+                out,
+                "<path d=\"M{:.1} {:.1} L{:.1} {:.1} M{:.1} {:.1} L{:.1} {:.1}\" stroke=\"{color}\" stroke-width=\"3\" stroke-linecap=\"round\"/>",
+                x - r,
+                y - r,
+                x + r,
+                y + r,
+                x - r,
+                y + r,
+                x + r,
+                y - r
+            );
+        }
+        Shape::Ring => {
+            let _ = write!(
+                out,
+                "<circle cx=\"{x:.1}\" cy=\"{y:.1}\" r=\"{r:.1}\" fill=\"none\" stroke=\"{color}\" stroke-width=\"1.5\"/>"
+            );
+        }
+        Shape::TriangleDown => {
+            let _ = write!(
+                out,
+                "<path d=\"M{:.1} {:.1} L{:.1} {:.1} L{x:.1} {:.1} Z\" fill=\"{color}\"/>",
+                x - r,
+                y - r,
+                x + r,
+                y - r,
+                y + r
+            );
+        }
+    }
+}
+
+/// The size a shape is drawn at in a chart: listings small, the subject and comparables large.
+pub(crate) fn chart_size(shape: Shape) -> f64 {
+    match shape {
+        Shape::Circle | Shape::Square | Shape::Diamond => 1.8,
+        Shape::Cross => 6.5,
+        Shape::Ring => 5.5,
+        Shape::TriangleDown => 4.0,
+    }
+}
+
 fn mark_svg(out: &mut String, frame: &Frame, m: &Mark) {
     match m {
         Mark::Points {
             points,
-            marker,
+            shape,
             rgb: c,
+            numbered,
         } => {
-            let colour = rgb(*c);
+            let color = rgb(*c);
             for (i, &(x, y)) in points.iter().enumerate() {
                 let (x, y) = (frame.px(x), frame.py(y));
-                match marker {
-                    Marker::Dot => {
-                        let _ = write!(
-                            out,
-                            "<circle cx=\"{x:.1}\" cy=\"{y:.1}\" r=\"1.6\" fill=\"{colour}\"/>"
-                        );
-                    }
-                    Marker::Numbered => {
-                        let _ = write!(
-                            out,
-                            "<circle cx=\"{x:.1}\" cy=\"{y:.1}\" r=\"4\" fill=\"{colour}\"/><text x=\"{:.1}\" y=\"{:.1}\" fill=\"{colour}\" font-size=\"10\">{}</text>",
-                            x + 5.0,
-                            y - 4.0,
-                            i + 1
-                        );
-                    }
-                    Marker::Diamond => {
-                        let _ = write!(
-                            out,
-                            "<path d=\"M{x:.1} {:.1} L{:.1} {y:.1} L{x:.1} {:.1} L{:.1} {y:.1} Z\" fill=\"{colour}\" stroke=\"white\"/>",
-                            y - 7.0,
-                            x + 7.0,
-                            y + 7.0,
-                            x - 7.0
-                        );
-                    }
+                shape_svg(out, *shape, x, y, chart_size(*shape), &color);
+                if *numbered {
+                    let _ = write!(
+                        out,
+                        "<text x=\"{:.1}\" y=\"{:.1}\" fill=\"{color}\" font-size=\"10\">{}</text>",
+                        x + 7.0,
+                        y - 5.0,
+                        i + 1
+                    );
                 }
             }
         }
@@ -307,10 +377,10 @@ fn mark_svg(out: &mut String, frame: &Frame, m: &Mark) {
         } => {
             let x = frame.px(*x);
             let (y0, y1) = (frame.py(*low), frame.py(*high));
-            let colour = rgb(*c);
+            let color = rgb(*c);
             let _ = write!(
                 out,
-                "<line x1=\"{x:.1}\" y1=\"{y0:.1}\" x2=\"{x:.1}\" y2=\"{y1:.1}\" stroke=\"{colour}\" stroke-width=\"3\"/><line x1=\"{:.1}\" y1=\"{y0:.1}\" x2=\"{:.1}\" y2=\"{y0:.1}\" stroke=\"{colour}\" stroke-width=\"2\"/><line x1=\"{:.1}\" y1=\"{y1:.1}\" x2=\"{:.1}\" y2=\"{y1:.1}\" stroke=\"{colour}\" stroke-width=\"2\"/>",
+                "<line x1=\"{x:.1}\" y1=\"{y0:.1}\" x2=\"{x:.1}\" y2=\"{y1:.1}\" stroke=\"{color}\" stroke-width=\"3\"/><line x1=\"{:.1}\" y1=\"{y0:.1}\" x2=\"{:.1}\" y2=\"{y0:.1}\" stroke=\"{color}\" stroke-width=\"2\"/><line x1=\"{:.1}\" y1=\"{y1:.1}\" x2=\"{:.1}\" y2=\"{y1:.1}\" stroke=\"{color}\" stroke-width=\"2\"/>",
                 x - 6.0,
                 x + 6.0,
                 x - 6.0,

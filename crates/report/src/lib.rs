@@ -11,6 +11,7 @@ pub mod figure;
 pub mod html;
 mod palette;
 pub mod pdf;
+pub mod visual;
 
 pub use blocks::{Block, Report};
 pub use content::Identity;

@@ -9,7 +9,7 @@ pub struct Plotted {
     pub row: usize,
     /// Plot coordinates.
     pub at: [f64; 2],
-    /// The chart's series (colour, shape) it belongs to.
+    /// The chart's series (color, shape) it belongs to.
     pub series: u32,
 }
 
@@ -48,7 +48,7 @@ impl Bounds {
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Cell {
     /// Centre in plot coordinates.
-    pub centre: [f64; 2],
+    pub center: [f64; 2],
     /// Listings in the cell.
     pub count: u32,
     /// The most common series in the cell.
@@ -120,7 +120,7 @@ pub fn view_of(all: &[Plotted], bounds: &Bounds, max_points: usize) -> View {
                 .max_by_key(|(_, c)| **c)
                 .map_or(0, |(s, _)| s as u32);
             cells.push(Cell {
-                centre: [
+                center: [
                     bounds.min[0] + (cx as f64 + 0.5) * size[0],
                     bounds.min[1] + (cy as f64 + 0.5) * size[1],
                 ],
@@ -291,7 +291,7 @@ mod tests {
     }
 
     #[test]
-    fn a_cell_takes_the_colour_of_its_most_common_series_and_darkens_with_count() {
+    fn a_cell_takes_the_color_of_its_most_common_series_and_darkens_with_count() {
         let mut all = vec![
             Plotted {
                 row: 0,

@@ -7,7 +7,6 @@ use model::depreciation::depreciation_table;
 use model::format::{money, signed_money, thousands};
 
 use super::PaneContext;
-use crate::palette::variant_colour;
 
 /// Oldest age in the table.
 const MAX_AGE: u32 = 10;
@@ -29,7 +28,7 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
             .x_axis_label("age (model years)")
             .y_axis_label("value at typical miles")
             .show(&mut columns[0], |plot| {
-                for (i, curve) in table.curves.iter().enumerate() {
+                for curve in &table.curves {
                     let points: Vec<[f64; 2]> = curve
                         .rows
                         .iter()
@@ -37,7 +36,7 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
                         .collect();
                     plot.line(
                         Line::new(curve.variant.clone(), points)
-                            .color(variant_colour(i))
+                            .color(cx.variant_color_named(&curve.variant))
                             .width(2.0),
                     );
                 }

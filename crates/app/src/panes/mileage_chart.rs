@@ -1,8 +1,8 @@
 //! Value by mileage: listings of the subject's model-year window as bubbles (size by model
-//! year, colour by variant), the subject's fitted value across mileage with its prediction
+//! year, color by variant), the subject's fitted value across mileage with its prediction
 //! band, and listings priced below their own band marked for a look.
 
-use eframe::egui::{Color32, Ui};
+use eframe::egui::Ui;
 use egui_plot::{Legend, Line, MarkerShape, PlotPoints, PlotUi, Points};
 use model::hedonic::{Attributes, age_years};
 
@@ -11,10 +11,11 @@ use super::{
     PaneContext, after_chart, cached, cached_in, current_view, draw_cells, fit_id,
     follow_selection, inputs_key, listing_plot, nearest,
 };
-use crate::palette::{SUBJECT, faded, variant_colour};
+use crate::palette::{SUBJECT, condition_shape, faded, ink_for, marker, variant_color};
+use report::visual::Shape;
 
-/// A series of the chart: (variant index, model year, included in the fit).
-type Series = (usize, i32, bool);
+/// A series of the chart: (variant index, model year, condition, included in the fit).
+type Series = (usize, i32, model::condition::Condition, bool);
 
 /// The listings of the subject's model-year window, placed; gathered once per fit and window.
 pub struct MileageChartData {
@@ -50,6 +51,7 @@ pub fn gather(cx: &PaneContext<'_>) -> MileageChartData {
             (
                 cx.variant_index(row),
                 market.model_year[row],
+                market.condition[row],
                 fit.cleaning.is_included(row),
             )
         },
@@ -187,12 +189,12 @@ fn draw(
     let oldest = subject.model_year - cx.document.rules.model_year_window;
     let (groups, drawn) = exact_groups(&data.all, view);
     draw_cells(plot, view, |s| {
-        let (variant, _, _) = data.series[s as usize];
-        (cx.variant_label(variant), variant_colour(variant))
+        let (variant, _, _, _) = data.series[s as usize];
+        (cx.variant_label(variant), variant_color(variant))
     });
     for (series, points) in groups {
-        let (variant, year, included) = data.series[series as usize];
-        let colour = variant_colour(variant);
+        let (variant, year, condition, included) = data.series[series as usize];
+        let color = variant_color(variant);
         // Newer model years draw larger bubbles.
         let radius = 1.5 + 1.5 * (year - oldest).max(0) as f32;
         plot.points(
@@ -205,41 +207,39 @@ fn draw(
                 PlotPoints::from(points),
             )
             .radius(radius)
+            .shape(condition_shape(condition))
             .color(if included {
-                colour.gamma_multiply(0.7)
+                color.gamma_multiply(0.7)
             } else {
-                faded(colour)
+                faded(color)
             }),
         );
     }
     let level = 100.0 * cx.document.level;
+    let ink = ink_for(plot.ctx().global_style().visuals.dark_mode);
     plot.line(
-        Line::new("subject: fitted value", curve.median.clone())
-            .color(SUBJECT)
+        Line::new("model: the subject's fitted value", curve.median.clone())
+            .color(ink)
             .width(2.0),
     );
-    plot.line(
-        Line::new(
-            format!("subject: {level:.0} % prediction band"),
-            curve.lower.clone(),
-        )
-        .color(SUBJECT.gamma_multiply(0.5)),
-    );
-    plot.line(
-        Line::new(
-            format!("subject: {level:.0} % prediction band"),
-            curve.upper.clone(),
-        )
-        .color(SUBJECT.gamma_multiply(0.5)),
-    );
+    for edge in [&curve.lower, &curve.upper] {
+        plot.line(
+            Line::new(
+                format!("model: {level:.0} % prediction band"),
+                edge.clone(),
+            )
+            .color(ink.gamma_multiply(0.6))
+            .style(egui_plot::LineStyle::dashed_loose()),
+        );
+    }
     plot.points(
         Points::new(
             "below its own band: a deal or a problem? look first",
             below.to_vec(),
         )
-        .shape(MarkerShape::Down)
+        .shape(marker(Shape::TriangleDown))
         .radius(5.0)
-        .color(Color32::from_rgb(0x60, 0x60, 0x60)),
+        .color(ink),
     );
     if let Some(a) = cx.appraisal {
         let comps: Vec<[f64; 2]> = a
@@ -249,16 +249,17 @@ fn draw(
             .collect();
         plot.points(
             Points::new("comparables", comps)
+                .shape(marker(Shape::Ring))
                 .filled(false)
                 .radius(8.0)
-                .color(SUBJECT),
+                .color(ink),
         );
         plot.points(
             Points::new(
                 "subject",
                 vec![[subject.miles, a.reconciliation.indicated_value]],
             )
-            .shape(MarkerShape::Asterisk)
+            .shape(marker(Shape::Cross))
             .radius(9.0)
             .color(SUBJECT),
         );
@@ -269,9 +270,10 @@ fn draw(
                 "selected",
                 vec![[cx.market.miles[row], cx.market.asking_price[row]]],
             )
+            .shape(MarkerShape::Square)
             .filled(false)
             .radius(10.0)
-            .color(Color32::from_rgb(0x20, 0x20, 0x20)),
+            .color(ink),
         );
     }
     drawn

@@ -24,24 +24,24 @@ use crate::selection::Selection;
 /// Accessible label of the list of warnings beside the value.
 pub const WARNINGS_LABEL: &str = "Warnings";
 
-/// The warnings, each on its own wrapped line in the theme's warning colour, visible without
+/// The warnings, each on its own wrapped line in the theme's warning color, visible without
 /// hovering (the code, for reference, on hover).
 pub fn warnings_ui(ui: &mut Ui, warnings: &[model::warnings::Warning]) {
     if warnings.is_empty() {
         return;
     }
-    let colour = ui.visuals().warn_fg_color;
+    let color = ui.visuals().warn_fg_color;
     egui::Frame::group(ui.style())
-        .stroke(egui::Stroke::new(1.0, colour))
+        .stroke(egui::Stroke::new(1.0, color))
         .show(ui, |ui| {
             ui.label(
                 egui::RichText::new(format!("{WARNINGS_LABEL} ({})", warnings.len()))
-                    .color(colour)
+                    .color(color)
                     .strong(),
             );
             for w in warnings {
                 ui.add(
-                    egui::Label::new(egui::RichText::new(format!("• {}", w.message)).color(colour))
+                    egui::Label::new(egui::RichText::new(format!("• {}", w.message)).color(color))
                         .wrap(),
                 )
                 .on_hover_text(w.code.as_str());
@@ -96,27 +96,56 @@ pub struct PaneContext<'a> {
 }
 
 impl PaneContext<'_> {
-    /// Index of a variant in the fitted design (its colour index).
+    /// Index of a variant in the fitted design (its color index).
     #[must_use]
     pub fn variant_index(&self, row: usize) -> usize {
         let v = self.market.variant[row];
-        self.fit
-            .model
-            .design()
-            .variants
+        self.color_order()
             .iter()
             .position(|x| *x == v)
             .unwrap_or(0)
     }
 
-    /// Name of the `index`-th variant of the fitted design.
+    /// The fitted variants in color order: by fitted effect, then name
+    /// (`report::visual::variant_order`), as the report colors them from the saved rates.
+    #[must_use]
+    pub fn color_order(&self) -> Vec<model::vocabulary::NameId> {
+        let model = &self.fit.model;
+        let mut v: Vec<(model::vocabulary::NameId, f64, String)> = model
+            .design()
+            .variants
+            .iter()
+            .map(|&id| (id, model.variant_effect(id), self.name_of(id)))
+            .collect();
+        v.sort_by(|a, b| a.1.total_cmp(&b.1).then_with(|| a.2.cmp(&b.2)));
+        v.into_iter().map(|(id, _, _)| id).collect()
+    }
+
+    fn name_of(&self, id: model::vocabulary::NameId) -> String {
+        if id == model::vocabulary::NO_NAME {
+            "(no variant)".to_owned()
+        } else {
+            self.market.names.name(id).to_owned()
+        }
+    }
+
+    /// Name of the `index`-th variant in color order.
     #[must_use]
     pub fn variant_label(&self, index: usize) -> String {
-        match self.fit.model.design().variants.get(index) {
-            Some(&v) if v != model::vocabulary::NO_NAME => self.market.names.name(v).to_owned(),
-            Some(_) => "(no variant)".to_owned(),
-            None => String::new(),
-        }
+        self.color_order()
+            .get(index)
+            .map_or_else(String::new, |&v| self.name_of(v))
+    }
+
+    /// The color of the variant named `name` (the base color when unknown).
+    #[must_use]
+    pub fn variant_color_named(&self, name: &str) -> egui::Color32 {
+        let index = self
+            .color_order()
+            .iter()
+            .position(|&v| self.name_of(v) == name)
+            .unwrap_or(0);
+        crate::palette::variant_color(index)
     }
 
     /// Whether `row` is one of the subject's comparables.
@@ -212,12 +241,12 @@ pub fn view_bounds(plot: &egui_plot::PlotUi<'_>) -> density::Bounds {
     }
 }
 
-/// Draws the density grid: one square per non-empty cell, coloured by its most common series
-/// (`colour_of`) and darker where there are more listings.
+/// Draws the density grid: one square per non-empty cell, colored by its most common series
+/// (`color_of`) and darker where there are more listings.
 pub fn draw_cells(
     plot: &mut egui_plot::PlotUi<'_>,
     view: &density::View,
-    colour_of: impl Fn(u32) -> (String, egui::Color32),
+    color_of: impl Fn(u32) -> (String, egui::Color32),
 ) {
     let density::View::Binned {
         cells,
@@ -231,10 +260,10 @@ pub fn draw_cells(
     let Some(first) = cells.first() else {
         return;
     };
-    let a = plot.screen_from_plot(egui_plot::PlotPoint::new(first.centre[0], first.centre[1]));
+    let a = plot.screen_from_plot(egui_plot::PlotPoint::new(first.center[0], first.center[1]));
     let b = plot.screen_from_plot(egui_plot::PlotPoint::new(
-        first.centre[0] + cell_size[0],
-        first.centre[1] + cell_size[1],
+        first.center[0] + cell_size[0],
+        first.center[1] + cell_size[1],
     ));
     // Squares a little larger than a cell, so the grid reads as a filled area.
     let radius = 0.55 * (b.x - a.x).abs().max((b.y - a.y).abs()).max(1.0);
@@ -244,27 +273,27 @@ pub fn draw_cells(
         groups
             .entry((c.series, density::shade(c.count, *max_count)))
             .or_default()
-            .push(c.centre);
+            .push(c.center);
     }
     let keys: Vec<u32> = groups.keys().map(|(s, _)| *s).collect();
-    // The legend takes a name's colour from its first series (the charts' legends pick the first
-    // colour): start each name with its full colour and no points.
+    // The legend takes a name's color from its first series (the charts' legends pick the first
+    // color): start each name with its full color and no points.
     let mut named = std::collections::BTreeSet::new();
     for series in &keys {
-        let (name, colour) = colour_of(*series);
+        let (name, color) = color_of(*series);
         if named.insert(name.clone()) {
-            plot.points(egui_plot::Points::new(name, Vec::<[f64; 2]>::new()).color(colour));
+            plot.points(egui_plot::Points::new(name, Vec::<[f64; 2]>::new()).color(color));
         }
     }
 
     for ((series, shade), centres) in groups {
-        let (name, colour) = colour_of(series);
+        let (name, color) = color_of(series);
         let strength = shade as f32 / density::SHADES as f32;
         plot.points(
             egui_plot::Points::new(name, centres)
                 .shape(egui_plot::MarkerShape::Square)
                 .radius(radius)
-                .color(colour.gamma_multiply(0.12 + 0.88 * strength)),
+                .color(color.gamma_multiply(0.12 + 0.88 * strength)),
         );
     }
 }
@@ -280,14 +309,14 @@ pub fn view_note(view: &density::View, total: usize) -> Option<String> {
         )),
         density::View::Exact(_) => None,
         density::View::Binned { in_view, .. } => Some(format!(
-            "{} listings in view: too many to tell apart, so the chart shows where they are (darker squares hold more; colour: the most common variant). Zoom in to see each listing; comparables and the subject are always drawn.",
+            "{} listings in view: too many to tell apart, so the chart shows where they are (darker squares hold more; color: the most common variant). Zoom in to see each listing; comparables and the subject are always drawn.",
             model::format::thousands(*in_view as f64)
         )),
     }
 }
 
 /// Brings a listing selected elsewhere into a chart's view: when the selection changes and the
-/// listing at `at` lies outside the current bounds, the view moves to centre it (same zoom).
+/// listing at `at` lies outside the current bounds, the view moves to center it (same zoom).
 pub fn follow_selection(
     plot: &mut egui_plot::PlotUi<'_>,
     id: egui::Id,
@@ -314,7 +343,7 @@ pub fn follow_selection(
     }
 }
 
-/// A chart of listings: its legend keeps the variants' own colours, it fills the space left
+/// A chart of listings: its legend keeps the variants' own colors, it fills the space left
 /// above its note, and its automatic view always holds the whole `extent`.
 #[must_use]
 pub fn listing_plot<'a>(

@@ -1,10 +1,11 @@
-//! Price by model year: every listing a point (variant by colour, condition by shape), each
+//! Price by model year: every listing a point (variant by color, condition by shape), each
 //! year's mean, the fitted curve at typical mileage, excluded listings faded with their reason.
 
 use std::collections::BTreeMap;
 
 use eframe::egui::{Color32, Ui};
 use egui_plot::{Legend, Line, MarkerShape, PlotPoints, PlotUi, Points};
+use report::visual::Shape;
 use model::condition::Condition;
 use model::hedonic::Attributes;
 
@@ -13,7 +14,7 @@ use super::{
     PaneContext, after_chart, cached, current_view, draw_cells, fit_id, follow_selection,
     inputs_key, jitter, listing_plot, nearest,
 };
-use crate::palette::{SUBJECT, condition_shape, faded, variant_colour};
+use crate::palette::{SUBJECT, condition_shape, faded, marker, variant_color};
 
 /// A series of the chart: (variant index, condition, included in the fit).
 type Series = (usize, Condition, bool);
@@ -142,6 +143,11 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     );
 }
 
+/// The neutral ink of the plot's theme.
+fn ink_of(plot: &PlotUi<'_>) -> Color32 {
+    crate::palette::ink_for(plot.ctx().global_style().visuals.dark_mode)
+}
+
 /// Draws the chart; returns the listings drawn one by one (for picking).
 fn draw(
     plot: &mut PlotUi<'_>,
@@ -152,7 +158,7 @@ fn draw(
     let (groups, drawn) = exact_groups(&data.all, view);
     draw_cells(plot, view, |s| {
         let (variant, _, _) = data.series[s as usize];
-        (cx.variant_label(variant), variant_colour(variant))
+        (cx.variant_label(variant), variant_color(variant))
     });
     for (series, points) in groups {
         let (variant, condition, included) = data.series[series as usize];
@@ -163,20 +169,21 @@ fn draw(
         } else {
             "excluded (hover for why)".to_owned()
         };
-        let colour = variant_colour(variant);
+        let color = variant_color(variant);
         plot.points(
             Points::new(name, PlotPoints::from(points))
-                .color(if included { colour } else { faded(colour) })
+                .color(if included { color } else { faded(color) })
                 .shape(condition_shape(condition))
                 .filled(included)
                 .radius(2.0),
         );
     }
+    let ink = ink_of(plot);
     for (&year, &mean) in &data.means {
         let y = f64::from(year);
         plot.line(
             Line::new("model-year mean", vec![[y - 0.4, mean], [y + 0.4, mean]])
-                .color(Color32::GRAY)
+                .color(ink.gamma_multiply(0.55))
                 .width(2.5),
         );
     }
@@ -187,7 +194,7 @@ fn draw(
             format!("fitted: {variant}, used, typical miles"),
             data.curve.clone(),
         )
-        .color(SUBJECT.gamma_multiply(0.6))
+        .color(ink)
         .width(1.5),
     );
     if let Some(a) = cx.appraisal {
@@ -203,20 +210,21 @@ fn draw(
             .collect();
         plot.points(
             Points::new("comparables", comparables)
+                .shape(marker(Shape::Ring))
                 .filled(false)
                 .radius(6.0)
-                .color(SUBJECT),
+                .color(ink),
         );
         let x = f64::from(subject.model_year);
         let band = a.reconciliation.value_band;
         plot.line(
-            Line::new("value band", vec![[x, band.lower], [x, band.upper]])
+            Line::new("subject", vec![[x, band.lower], [x, band.upper]])
                 .color(SUBJECT)
                 .width(3.0),
         );
         plot.points(
             Points::new("subject", vec![[x, a.reconciliation.indicated_value]])
-                .shape(MarkerShape::Asterisk)
+                .shape(marker(Shape::Cross))
                 .radius(9.0)
                 .color(SUBJECT),
         );
@@ -228,9 +236,10 @@ fn draw(
         ];
         plot.points(
             Points::new("selected", vec![p])
+                .shape(MarkerShape::Square)
                 .filled(false)
                 .radius(9.0)
-                .color(Color32::from_rgb(0x20, 0x20, 0x20)),
+                .color(ink),
         );
     }
     drawn

@@ -433,7 +433,7 @@ impl Workbench {
         };
         match picked {
             Some(path) => self.use_prompted(which, &path),
-            // No desktop portal (or cancelled): let the user type the path.
+            // No desktop portal (or canceled): let the user type the path.
             None => self.case.prompt = Some((which, suggested.display().to_string())),
         }
     }

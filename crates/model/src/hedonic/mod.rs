@@ -157,7 +157,7 @@ impl ParamGuard for HedonicParams {
 /// One estimated term.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Term {
-    /// Term name, e.g. `age_years`, `miles_10k`, `variant=Plus`.
+    /// Term name, e.g. `age_years`, `miles_10k`, `variant=Ambrel`.
     pub name: String,
     /// Coefficient on ln(price).
     pub estimate: f64,

@@ -1,4 +1,4 @@
-//! Reading a file's records in batches: polars tokenises a batch of records (every column as
+//! Reading a file's records in batches: polars tokenizes a batch of records (every column as
 //! text), the batch is read into market rows and its text frame dropped before the next. The
 //! text of a whole large file is never held twice (once as bytes, once as a frame), which keeps
 //! the peak memory near the file's size plus the market's columns.
@@ -19,7 +19,7 @@ use crate::market::Market;
 pub(super) const BATCH_RECORDS: usize = 1 << 15;
 
 /// Below this many records one core reads the whole file in one batch (polars still spreads its
-/// tokenising over the cores).
+/// tokenizing over the cores).
 const ONE_CORE_BELOW: usize = 50_000;
 
 /// The tokenizer's settings for one file.
@@ -94,7 +94,7 @@ pub(super) fn read_batches(
             .collect();
         market.reserve(mine.iter().map(|b| b.records).sum());
         for b in mine {
-            let df = tokenise(b.text, tokenizer, cores > 1)?;
+            let df = tokenize(b.text, tokenizer, cores > 1)?;
             let line_of = |row: usize| {
                 let record = b.first_record + row;
                 starts
@@ -151,9 +151,9 @@ fn join_parts(
     Ok((market, issues))
 }
 
-/// Tokenises records (no header) into a frame of `header_fields` text columns. When several
+/// Tokenizes records (no header) into a frame of `header_fields` text columns. When several
 /// cores each read their own batches, polars is asked for one thread's worth of chunks.
-fn tokenise(text: &[u8], tokenizer: &Tokenizer, shared: bool) -> Result<DataFrame, String> {
+fn tokenize(text: &[u8], tokenizer: &Tokenizer, shared: bool) -> Result<DataFrame, String> {
     let schema: Schema = (1..=tokenizer.header_fields)
         .map(|i| (PlSmallStr::from(format!("field_{i}")), DataType::String))
         .collect();

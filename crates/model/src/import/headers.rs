@@ -14,10 +14,10 @@ pub enum Field {
     Model,
     /// Asking price (required).
     AskingPrice,
-    /// Odometer in miles (required, or [`Field::Kilometres`]).
+    /// Odometer in miles (required, or [`Field::Kilometers`]).
     Miles,
-    /// Odometer in kilometres (converted to miles).
-    Kilometres,
+    /// Odometer in kilometers (converted to miles).
+    Kilometers,
     /// Variant (trim).
     Variant,
     /// Condition class.
@@ -40,7 +40,7 @@ pub enum Field {
     Longitude,
     /// Distance in miles.
     DistanceMiles,
-    /// Distance in kilometres.
+    /// Distance in kilometers.
     DistanceKilometres,
     /// Title status.
     Title,
@@ -55,7 +55,7 @@ impl Field {
         self.spellings()[0]
     }
 
-    /// Accepted header spellings after normalisation (lower case, separators as `_`).
+    /// Accepted header spellings after normalization (lower case, separators as `_`).
     #[must_use]
     pub fn spellings(self) -> &'static [&'static str] {
         match self {
@@ -86,9 +86,10 @@ impl Field {
                 "mileage_mi",
                 "mi",
             ],
-            Field::Kilometres => &[
-                "kilometres",
+            Field::Kilometers => &[
                 "kilometers",
+                // Headers are read as written, in either spelling.
+                "kilometres",
                 "km",
                 "odometer_km",
                 "mileage_km",
@@ -138,7 +139,12 @@ impl Field {
             Field::Latitude => &["latitude", "lat"],
             Field::Longitude => &["longitude", "lon", "lng", "long"],
             Field::DistanceMiles => &["distance_mi", "distance", "distance_miles", "miles_away"],
-            Field::DistanceKilometres => &["distance_km", "distance_kilometres", "km_away"],
+            Field::DistanceKilometres => &[
+                "distance_km",
+                "distance_kilometers",
+                "distance_kilometres",
+                "km_away",
+            ],
             Field::Title => &["title", "title_status", "title_brand", "brand_status"],
             Field::Options => &["options", "features", "equipment", "packages"],
         }
@@ -151,7 +157,7 @@ impl Field {
         Field::Model,
         Field::AskingPrice,
         Field::Miles,
-        Field::Kilometres,
+        Field::Kilometers,
         Field::Variant,
         Field::Condition,
         Field::ListedOn,
@@ -172,7 +178,7 @@ impl Field {
 /// Lower-cases a header and folds spaces, dashes, dots and brackets into single underscores,
 /// so "Asking Price ($)" and "asking-price" both read as `asking_price`.
 #[must_use]
-pub fn normalise_header(header: &str) -> String {
+pub fn normalize_header(header: &str) -> String {
     let trimmed = header.trim_start_matches('\u{feff}').trim().to_lowercase();
     let mut out = String::with_capacity(trimmed.len());
     for c in trimmed.chars() {
@@ -185,11 +191,11 @@ pub fn normalise_header(header: &str) -> String {
     out.trim_matches('_').to_owned()
 }
 
-/// Finds the field a normalised header names, if any. "price_usd" and similar unit suffixes
+/// Finds the field a normalized header names, if any. "price_usd" and similar unit suffixes
 /// are listed spellings, not guessed.
 #[must_use]
-pub fn field_for(normalised: &str) -> Option<Field> {
+pub fn field_for(normalized: &str) -> Option<Field> {
     Field::ALL
         .into_iter()
-        .find(|f| f.spellings().contains(&normalised))
+        .find(|f| f.spellings().contains(&normalized))
 }

@@ -1,7 +1,7 @@
 //! Importing a market CSV: map its columns, read every row, report every row that could not be
 //! used (line and reason) and every optional value that was dropped. Nothing is dropped silently.
 //!
-//! polars does the tokenising (quote-aware) with every column read as text, in batches of
+//! polars does the tokenizing (quote-aware) with every column read as text, in batches of
 //! records spread over the cores; values are then parsed here so that each failure can name its
 //! line, column and value.
 
@@ -20,11 +20,11 @@ use chrono::{Datelike, NaiveDate};
 use crate::market::{Market, MarketSource, content_hash};
 
 use batches::{Plan, Tokenizer, read_batches};
-pub use headers::{Field, field_for, normalise_header};
+pub use headers::{Field, field_for, normalize_header};
 pub use report::{DroppedValue, ImportReport, RejectReason, RejectedRow};
 pub use values::{parse_date, parse_number, parse_year};
 
-/// Kilometres per statute mile.
+/// Kilometers per statute mile.
 pub const KM_PER_MILE: f64 = 1.609_344;
 /// Highest odometer reading accepted, in miles.
 pub const MAX_MILES: f64 = 1_000_000.0;
@@ -37,8 +37,8 @@ pub enum OdometerUnit {
     /// Statute miles.
     #[default]
     Miles,
-    /// Kilometres.
-    Kilometres,
+    /// Kilometers.
+    Kilometers,
 }
 
 /// Settings for an import.
@@ -269,7 +269,7 @@ fn import_planned(
         rows_read: issues.rows_read,
         odometer_unit: match mapping.odometer {
             OdometerUnit::Miles => "miles".into(),
-            OdometerUnit::Kilometres => "kilometres".into(),
+            OdometerUnit::Kilometers => "kilometers".into(),
         },
         column_map: mapping
             .columns
@@ -451,9 +451,9 @@ fn missing_fields(mapping: &HeaderMapping) -> Vec<&'static str> {
         .map(Field::canonical)
         .collect();
     if !mapping.columns.contains_key(&Field::Miles)
-        && !mapping.columns.contains_key(&Field::Kilometres)
+        && !mapping.columns.contains_key(&Field::Kilometers)
     {
-        missing.push("miles (or kilometres)");
+        missing.push("miles (or kilometers)");
     }
     missing
 }
@@ -468,8 +468,8 @@ fn try_map_header(
     let mut ignored = Vec::new();
     let mut odometer = OdometerUnit::Miles;
     for (index, raw) in split_header(header, delimiter).into_iter().enumerate() {
-        let normalised = normalise_header(&raw);
-        let Some(mut field) = field_for(&normalised) else {
+        let normalized = normalize_header(&raw);
+        let Some(mut field) = field_for(&normalized) else {
             if !raw.trim().is_empty() {
                 ignored.push(raw);
             }
@@ -477,13 +477,13 @@ fn try_map_header(
         };
         // "mileage" and "odometer" do not say their unit; the option decides.
         if field == Field::Miles
-            && matches!(normalised.as_str(), "mileage" | "odometer")
-            && options.odometer_unit == OdometerUnit::Kilometres
+            && matches!(normalized.as_str(), "mileage" | "odometer")
+            && options.odometer_unit == OdometerUnit::Kilometers
         {
-            field = Field::Kilometres;
+            field = Field::Kilometers;
         }
-        if field == Field::Kilometres {
-            odometer = OdometerUnit::Kilometres;
+        if field == Field::Kilometers {
+            odometer = OdometerUnit::Kilometers;
         }
         if let Some((_, first)) = columns.get(&field) {
             return Err(ImportError::DuplicateColumn {
@@ -495,9 +495,9 @@ fn try_map_header(
         }
         columns.insert(field, (index, raw));
     }
-    if columns.contains_key(&Field::Miles) && columns.contains_key(&Field::Kilometres) {
-        // Both given: miles wins, kilometres is ignored and said so.
-        if let Some((_, h)) = columns.remove(&Field::Kilometres) {
+    if columns.contains_key(&Field::Miles) && columns.contains_key(&Field::Kilometers) {
+        // Both given: miles wins, kilometers is ignored and said so.
+        if let Some((_, h)) = columns.remove(&Field::Kilometers) {
             ignored.push(h);
         }
         odometer = OdometerUnit::Miles;

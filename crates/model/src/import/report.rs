@@ -114,11 +114,11 @@ pub struct ImportReport {
     pub rejected_by_reason: BTreeMap<String, usize>,
     /// Optional values dropped (row kept).
     pub dropped_values: Vec<DroppedValue>,
-    /// How each recognised column was mapped: file header to field.
+    /// How each recognized column was mapped: file header to field.
     pub column_map: BTreeMap<String, String>,
     /// Headers that matched no field and were ignored.
     pub ignored_columns: Vec<String>,
-    /// Odometer unit of the file ("miles" or "kilometres").
+    /// Odometer unit of the file ("miles" or "kilometers").
     pub odometer_unit: String,
     /// Rows without a condition class, treated as used (≥ 1,000 mi) or new (< 1,000 mi).
     pub condition_inferred: usize,

@@ -1,4 +1,4 @@
-//! Turning one batch of tokenised text (a polars frame with every column as text) into market
+//! Turning one batch of tokenized text (a polars frame with every column as text) into market
 //! rows. The required values are read row by row, so that a rejected row gets the first reason
 //! in the column order; the optional values are then read one column at a time for the rows
 //! kept, which keeps each pass over memory short and simple.
@@ -65,7 +65,7 @@ impl<'a> Columns<'a> {
         };
         let odometer_field = match mapping.odometer {
             OdometerUnit::Miles => Field::Miles,
-            OdometerUnit::Kilometres => Field::Kilometres,
+            OdometerUnit::Kilometers => Field::Kilometers,
         };
         let mut optional = [None; OPTIONAL_FIELDS.len()];
         for (slot, field) in optional.iter_mut().zip(OPTIONAL_FIELDS.iter().copied()) {
@@ -165,7 +165,7 @@ fn read_required(
     market: &mut Market,
     issues: &mut RowIssues,
 ) -> Vec<bool> {
-    let km = columns.odometer_field == Field::Kilometres;
+    let km = columns.odometer_field == Field::Kilometers;
     let mut kept = Vec::with_capacity(columns.year.len());
     let mut cache = (LastName::default(), LastName::default());
     let rows = cells(columns.year)
@@ -426,7 +426,7 @@ impl OptionalReader<'_, '_> {
         value
     }
 
-    /// Distance in miles, else in kilometres (read only where miles gave none).
+    /// Distance in miles, else in kilometers (read only where miles gave none).
     fn read_distances(&mut self, market: &mut Market) {
         let mut distance = self.numbers(market, Field::DistanceMiles);
         if let Some(ca) = self.columns.get(Field::DistanceKilometres) {

@@ -6,8 +6,9 @@ mod metrics;
 use pdf_writer::{Content, Filter, Finish, Name, Pdf, Rect, Ref, Str, TextStr};
 
 use crate::blocks::{Align, Block, Column, Report};
-use crate::figure::{Figure, Mark, Marker, ticks, x_ticks};
-use crate::html::{Frame, tick_label};
+use crate::figure::{Figure, Mark, ticks, x_ticks};
+use crate::html::{Frame, chart_size, tick_label};
+use crate::visual::Shape;
 use crate::palette;
 pub use metrics::{width, win_ansi, wrap};
 
@@ -57,7 +58,7 @@ impl Layout {
         }
     }
 
-    fn colour(&mut self, c: [u8; 3]) {
+    fn color(&mut self, c: [u8; 3]) {
         let (r, g, b) = rgb(c);
         self.page.set_fill_rgb(r, g, b);
         self.page.set_stroke_rgb(r, g, b);
@@ -82,7 +83,7 @@ impl Layout {
     }
 
     fn rule(&mut self, y: f32, c: [u8; 3]) {
-        self.colour(c);
+        self.color(c);
         self.page.set_line_width(0.5);
         self.page.move_to(MARGIN, y);
         self.page.line_to(PAGE_W - MARGIN, y);
@@ -94,13 +95,13 @@ impl Layout {
             Block::Heading(text) => {
                 self.room(40.0);
                 self.y -= 10.0;
-                self.colour(palette::INK);
+                self.color(palette::INK);
                 self.flow(text, 12.5, true, 0.0);
                 self.rule(self.y - 3.0, palette::GRID);
                 self.y -= 6.0;
             }
             Block::Paragraph(text) => {
-                self.colour(palette::INK);
+                self.color(palette::INK);
                 self.flow(text, 9.0, false, 0.0);
                 self.y -= 4.0;
             }
@@ -109,7 +110,7 @@ impl Layout {
             Block::Table { columns, rows } => self.table(columns, rows),
             Block::Chart(figure) => self.chart(figure),
             Block::List(items) => {
-                self.colour(palette::INK);
+                self.color(palette::INK);
                 for item in items {
                     self.bullet(item);
                 }
@@ -144,11 +145,11 @@ impl Layout {
         let top = self.y - 6.0;
         for (i, (label, value)) in items.iter().enumerate() {
             let x = MARGIN + i as f32 * (w + gap);
-            self.colour(palette::GRID);
+            self.color(palette::GRID);
             self.page.set_line_width(1.0);
             self.page.rect(x, top - height, w, height);
             self.page.stroke();
-            self.colour(palette::INK);
+            self.color(palette::INK);
             self.text_at(x + 7.0, top - 14.0, label, 8.0, false);
             let size = if width(value, 15.0, true) > w - 14.0 {
                 10.0
@@ -168,9 +169,9 @@ impl Layout {
                 self.room(11.7);
                 self.y -= 11.7;
                 if i == 0 {
-                    self.colour([0x60, 0x60, 0x68]);
+                    self.color([0x60, 0x60, 0x68]);
                     self.text_at(MARGIN, self.y, k, 9.0, false);
-                    self.colour(palette::INK);
+                    self.color(palette::INK);
                 }
                 self.text_at(MARGIN + label_w, self.y, line, 9.0, false);
             }
@@ -197,7 +198,7 @@ impl Layout {
             let lines = cells.iter().map(Vec::len).max().unwrap_or(1) as f32;
             let top = layout.y;
             if bold {
-                layout.colour([0xf0, 0xf1, 0xf4]);
+                layout.color([0xf0, 0xf1, 0xf4]);
                 layout.page.rect(
                     MARGIN,
                     top - lines * leading - 3.0,
@@ -206,7 +207,7 @@ impl Layout {
                 );
                 layout.page.fill_nonzero();
             }
-            layout.colour(palette::INK);
+            layout.color(palette::INK);
             let mut x = MARGIN;
             for ((cell, w), column) in cells.iter().zip(&widths).zip(columns) {
                 for (i, line) in cell.iter().enumerate() {
@@ -236,8 +237,8 @@ impl Layout {
         self.y -= 6.0;
     }
 
-    /// A list in a box drawn in `colour`, under an optional bold title.
-    fn boxed(&mut self, title: Option<&str>, items: &[String], colour: [u8; 3]) {
+    /// A list in a box drawn in `color`, under an optional bold title.
+    fn boxed(&mut self, title: Option<&str>, items: &[String], color: [u8; 3]) {
         let lines: Vec<Vec<String>> = items
             .iter()
             .map(|i| wrap(i, 9.0, false, TEXT_W - 30.0))
@@ -246,11 +247,11 @@ impl Layout {
         let height = lines.iter().map(Vec::len).sum::<usize>() as f32 * 11.7 + 14.0 + title_h;
         self.room(height + 6.0);
         let top = self.y - 2.0;
-        self.colour(colour);
+        self.color(color);
         self.page.set_line_width(1.5);
         self.page.rect(MARGIN, top - height, TEXT_W, height);
         self.page.stroke();
-        self.colour(palette::INK);
+        self.color(palette::INK);
         let mut y = top - 4.0;
         if let Some(t) = title {
             y -= 11.7;
@@ -273,14 +274,14 @@ impl Layout {
         let legend: Vec<Vec<String>> = f
             .legend
             .iter()
-            .map(|(_, t)| wrap(t, 7.5, false, TEXT_W - 16.0))
+            .map(|k| wrap(&k.text, 7.5, false, TEXT_W - 16.0))
             .collect();
         let legend_h = legend.iter().map(Vec::len).sum::<usize>() as f32 * 9.6;
         let plot_h = 190.0;
         let total = plot_h + 60.0 + legend_h;
         self.room(total);
         let top = self.y - 6.0;
-        self.colour(palette::INK);
+        self.color(palette::INK);
         self.text_at(MARGIN, top - 11.0, &f.title, 10.0, true);
         let (xr, yr) = f.bounds();
         // The SVG frame maps y downwards; here y grows upwards, so map through it and flip.
@@ -298,11 +299,11 @@ impl Layout {
         let x_ticks = x_ticks(f, xr);
         self.page.set_line_width(0.5);
         for t in &x_ticks {
-            self.colour(palette::GRID);
+            self.color(palette::GRID);
             self.page.move_to(px(*t), plot_bottom);
             self.page.line_to(px(*t), plot_bottom + plot_h);
             self.page.stroke();
-            self.colour(palette::INK);
+            self.color(palette::INK);
             let label = tick_label(*t, f.x_is_year);
             self.text_at(
                 px(*t) - width(&label, 7.5, false) / 2.0,
@@ -313,11 +314,11 @@ impl Layout {
             );
         }
         for t in ticks(yr.0, yr.1, 5) {
-            self.colour(palette::GRID);
+            self.color(palette::GRID);
             self.page.move_to(frame.left as f32, py(t));
             self.page.line_to((frame.left + frame.width) as f32, py(t));
             self.page.stroke();
-            self.colour(palette::INK);
+            self.color(palette::INK);
             let label = format!("${}", tick_label(t, false));
             self.text_at(
                 frame.left as f32 - 4.0 - width(&label, 7.5, false),
@@ -339,14 +340,21 @@ impl Layout {
         }
         self.page.set_dash_pattern([], 0.0);
         let mut y = plot_bottom - 30.0;
-        for ((c, _), lines) in f.legend.iter().zip(&legend) {
+        for (k, lines) in f.legend.iter().zip(&legend) {
             for (i, line) in lines.iter().enumerate() {
                 y -= 9.6;
                 if i == 0 {
-                    self.colour(*c);
-                    self.page.rect(MARGIN, y, 7.0, 7.0);
-                    self.page.fill_nonzero();
-                    self.colour(palette::INK);
+                    self.color(k.rgb);
+                    match k.shape {
+                        Some(shape) => self.shape(shape, MARGIN + 4.0, y + 3.0, 3.2),
+                        None => {
+                            self.page.set_line_width(1.5);
+                            self.page.move_to(MARGIN, y + 3.0);
+                            self.page.line_to(MARGIN + 9.0, y + 3.0);
+                            self.page.stroke();
+                        }
+                    }
+                    self.color(palette::INK);
                 }
                 self.text_at(MARGIN + 12.0, y, line, 7.5, false);
             }
@@ -354,41 +362,76 @@ impl Layout {
         self.y = y - 8.0;
     }
 
-    fn circle(&mut self, x: f32, y: f32, r: f32) {
-        // Four Bézier arcs; k is the usual control-point distance for a quarter circle.
+    /// A circle path of radius `r` at (x, y) (four Bézier arcs; k is the usual control-point
+    /// distance for a quarter circle); the caller fills or strokes it.
+    fn circle_path(&mut self, x: f32, y: f32, r: f32) {
         let k = 0.552_284_8 * r;
         self.page.move_to(x + r, y);
         self.page.cubic_to(x + r, y + k, x + k, y + r, x, y + r);
         self.page.cubic_to(x - k, y + r, x - r, y + k, x - r, y);
         self.page.cubic_to(x - r, y - k, x - k, y - r, x, y - r);
         self.page.cubic_to(x + k, y - r, x + r, y - k, x + r, y);
-        self.page.fill_nonzero();
+    }
+
+    /// One `shape` centered at (x, y) with half-width `r`, in the current color.
+    fn shape(&mut self, shape: Shape, x: f32, y: f32, r: f32) {
+        match shape {
+            Shape::Circle => {
+                self.circle_path(x, y, r);
+                self.page.fill_nonzero();
+            }
+            Shape::Square => {
+                self.page.rect(x - r, y - r, 2.0 * r, 2.0 * r);
+                self.page.fill_nonzero();
+            }
+            Shape::Diamond => {
+                let d = r * 1.3;
+                self.page.move_to(x, y + d);
+                self.page.line_to(x + d, y);
+                self.page.line_to(x, y - d);
+                self.page.line_to(x - d, y);
+                self.page.close_path();
+                self.page.fill_nonzero();
+            }
+            Shape::Cross => {
+                self.page.set_line_width(2.0);
+                self.page.move_to(x - r, y - r);
+                self.page.line_to(x + r, y + r);
+                self.page.move_to(x - r, y + r);
+                self.page.line_to(x + r, y - r);
+                self.page.stroke();
+            }
+            Shape::Ring => {
+                self.page.set_line_width(1.0);
+                self.circle_path(x, y, r);
+                self.page.stroke();
+            }
+            Shape::TriangleDown => {
+                self.page.move_to(x - r, y + r);
+                self.page.line_to(x + r, y + r);
+                self.page.line_to(x, y - r);
+                self.page.close_path();
+                self.page.fill_nonzero();
+            }
+        }
     }
 
     fn mark(&mut self, m: &Mark, px: &impl Fn(f64) -> f32, py: &impl Fn(f64) -> f32) {
         match m {
             Mark::Points {
                 points,
-                marker,
+                shape,
                 rgb: c,
+                numbered,
             } => {
-                self.colour(*c);
+                self.color(*c);
+                // PDF points are a little smaller than the HTML's pixels.
+                let r = chart_size(*shape) as f32 * 0.7;
                 for (i, &(x, y)) in points.iter().enumerate() {
                     let (x, y) = (px(x), py(y));
-                    match marker {
-                        Marker::Dot => self.circle(x, y, 1.1),
-                        Marker::Numbered => {
-                            self.circle(x, y, 2.8);
-                            self.text_at(x + 3.5, y + 2.5, &(i + 1).to_string(), 7.0, true);
-                        }
-                        Marker::Diamond => {
-                            self.page.move_to(x, y + 5.5);
-                            self.page.line_to(x + 5.5, y);
-                            self.page.line_to(x, y - 5.5);
-                            self.page.line_to(x - 5.5, y);
-                            self.page.close_path();
-                            self.page.fill_nonzero();
-                        }
+                    self.shape(*shape, x, y, r);
+                    if *numbered {
+                        self.text_at(x + r + 1.5, y + 2.5, &(i + 1).to_string(), 7.0, true);
                     }
                 }
             }
@@ -397,7 +440,7 @@ impl Layout {
                 rgb: c,
                 dashed,
             } => {
-                self.colour(*c);
+                self.color(*c);
                 self.page.set_line_width(1.2);
                 if *dashed {
                     self.page.set_dash_pattern([4.0, 3.0], 0.0);
@@ -420,7 +463,7 @@ impl Layout {
                 high,
                 rgb: c,
             } => {
-                self.colour(*c);
+                self.color(*c);
                 let x = px(*x);
                 let (y0, y1) = (py(*low), py(*high));
                 self.page.set_line_width(2.0);
@@ -440,9 +483,9 @@ impl Layout {
 #[must_use]
 pub fn render(report: &Report) -> Vec<u8> {
     let mut layout = Layout::new();
-    layout.colour(palette::INK);
+    layout.color(palette::INK);
     layout.flow(&report.title, 16.0, true, 0.0);
-    layout.colour([0x55, 0x55, 0x5d]);
+    layout.color([0x55, 0x55, 0x5d]);
     layout.flow(&report.subtitle, 9.5, false, 0.0);
     for block in &report.blocks {
         layout.block(block);
