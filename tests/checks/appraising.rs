@@ -10,8 +10,10 @@ use model::gaps::{GapFlag, price_gaps};
 use model::subject::Subject;
 
 fn subject() -> Subject {
-    Subject::parse("year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used")
-        .unwrap()
+    Subject::parse(
+        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
+    )
+    .unwrap()
 }
 
 #[test]

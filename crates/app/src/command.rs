@@ -52,6 +52,10 @@ pub enum Command {
     SetNotes(String),
     /// Replace the whole document (opening a session or recovering unsaved work).
     ReplaceDocument(Box<AppraisalDocument>),
+    /// Go back to the market that is loaded after opening another failed or was canceled,
+    /// with the hand choices, overrides and date opening it had cleared (taken from this
+    /// document).
+    RevertOpen(Box<AppraisalDocument>),
 }
 
 impl Command {
@@ -118,6 +122,12 @@ pub fn apply(document: &mut AppraisalDocument, command: Command) -> bool {
         Command::SetAppraiser(name) => document.appraiser = name,
         Command::SetNotes(notes) => document.notes = notes,
         Command::ReplaceDocument(replacement) => *document = *replacement,
+        Command::RevertOpen(before) => {
+            document.market = before.market;
+            document.choices = before.choices;
+            document.overrides = before.overrides;
+            document.fit.as_of = before.fit.as_of;
+        }
         Command::OpenMarket(path) => {
             document.market = MarketSource::File(path);
             // Manual choices and overrides name lines of the old file, and a new market is

@@ -29,10 +29,7 @@ impl MarketSource {
     #[must_use]
     pub fn describe(&self) -> String {
         match self {
-            MarketSource::Demo { rows } => format!(
-                "demo market ({} invented listings)",
-                model::format::thousands(*rows as f64)
-            ),
+            MarketSource::Demo { rows } => model::demo::demo_name(*rows),
             MarketSource::File(path) => path.display().to_string(),
         }
     }

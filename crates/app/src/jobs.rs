@@ -11,7 +11,7 @@ use model::clean::Overrides;
 use model::comparables::ComparableRules;
 use model::depreciation::{DeclineRank, rank_segments};
 use model::gaps::{PriceGap, price_gaps};
-use model::import::{ImportError, ImportOptions, ImportReport, import_csv_bytes, import_csv_file};
+use model::import::{ImportError, ImportOptions, ImportReport, import_csv_file};
 use model::market::Market;
 
 use crate::document::MarketSource;
@@ -20,8 +20,8 @@ use crate::document::MarketSource;
 /// each fit, in the background.
 #[derive(Debug, Clone)]
 pub struct MarketStudy {
-    /// The fit it was computed for (pointer identity).
-    pub fit_id: usize,
+    /// The generation of the fit it was computed for (see `Runtime::fit_generation`).
+    pub fit_generation: u64,
     /// K-fold accuracy of the model and the comparables method.
     pub backtest: Result<Backtest, AppraisalError>,
     /// Models in the file ranked by fitted annual decline.
@@ -44,6 +44,8 @@ pub enum Job {
         market: Arc<Market>,
         /// The fit to study.
         fit: Arc<MarketFit>,
+        /// Its generation, returned with the study so a stale one can be told apart.
+        fit_generation: u64,
         /// Fit settings (for the ranking's per-model fits).
         settings: FitSettings,
         /// Comparable rules (for the comparables backtest).
@@ -175,16 +177,9 @@ impl Worker {
 fn run(job: Job) -> JobResult {
     match job {
         Job::Load { source } => {
-            let options = ImportOptions {
-                latest_model_year: ImportOptions::default().latest_model_year.max(2027),
-                ..ImportOptions::default()
-            };
+            let options = ImportOptions::default();
             let outcome = match &source {
-                MarketSource::Demo { rows } => import_csv_bytes(
-                    "demo market",
-                    model::demo::demo_csv_bytes(*rows, 1),
-                    &options,
-                ),
+                MarketSource::Demo { rows } => model::demo::import_demo(*rows, &options),
                 MarketSource::File(path) => import_csv_file(path, &options),
             };
             JobResult::Loaded {
@@ -197,6 +192,7 @@ fn run(job: Job) -> JobResult {
         Job::Study {
             market,
             fit,
+            fit_generation,
             settings,
             rules,
             level,
@@ -206,7 +202,7 @@ fn run(job: Job) -> JobResult {
                 ..BacktestSettings::default()
             };
             JobResult::Studied(Box::new(MarketStudy {
-                fit_id: Arc::as_ptr(&fit) as usize,
+                fit_generation,
                 backtest: backtest(&market, &fit, &rules, &backtest_settings),
                 ranking: rank_segments(&market, &settings, 40),
             }))

@@ -8,7 +8,9 @@
 
 pub mod command;
 pub mod document;
+pub mod error;
 pub mod jobs;
+pub mod notice;
 pub mod palette;
 pub mod panes;
 pub mod preferences;

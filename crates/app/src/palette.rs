@@ -11,11 +11,8 @@ fn color(rgb: Rgb) -> Color32 {
 }
 
 /// The subject's color, used for nothing else.
-pub const SUBJECT: Color32 = Color32::from_rgb(
-    visual::SUBJECT[0],
-    visual::SUBJECT[1],
-    visual::SUBJECT[2],
-);
+pub const SUBJECT: Color32 =
+    Color32::from_rgb(visual::SUBJECT[0], visual::SUBJECT[1], visual::SUBJECT[2]);
 
 /// Color of the `index`-th variant in color order (see `report::visual::variant_order`).
 #[must_use]

@@ -54,6 +54,10 @@ pub struct Runtime {
     pub import_failure: Option<ImportFailure>,
     /// The last good fit.
     pub fit: Option<Arc<MarketFit>>,
+    /// Bumped on every fit received: results computed from a fit (its study, the appraisal,
+    /// the charts' caches) carry the generation they were made for, never an address, so a
+    /// stale one can always be told from a fresh one.
+    pub fit_generation: u64,
     /// What the last good fit was made from.
     pub fit_key: Option<FitKey>,
     /// A fit requested and not yet back.
@@ -63,7 +67,7 @@ pub struct Runtime {
     /// The backtest and model ranking of the current fit, once computed.
     pub study: Option<Box<crate::jobs::MarketStudy>>,
     /// A fit the user canceled; not requested again until its inputs change.
-    pub fit_cancelled: Option<FitKey>,
+    pub fit_canceled: Option<FitKey>,
     /// Why the last fit failed.
     pub fit_error: Option<AppraisalError>,
     /// The appraisal for the current subject.

@@ -5,14 +5,16 @@ use chrono::NaiveDate;
 use model::appraisal::{FitSettings, MarketFit, find_segment, fit_market, segment_list};
 use model::clean::{Override, Overrides};
 use model::hedonic::AgeForm;
-use model::import::{ImportOptions, ImportReport, OdometerUnit, import_csv_bytes, import_csv_file};
+use model::import::{ImportOptions, ImportReport, OdometerUnit, import_csv_file};
 use model::market::{Market, Segment};
 
 use crate::args::{AgeFormArg, MarketArgs, OdometerArg};
 
 /// A loaded market with its import report.
 pub struct Loaded {
+    /// The market.
     pub market: Market,
+    /// What the import did: rows read, rejected (with their lines), names merged.
     pub report: ImportReport,
 }
 
@@ -33,9 +35,7 @@ pub fn load_market(args: &MarketArgs) -> Result<Loaded> {
     let (market, report) = if let Some(path) = &args.file {
         import_csv_file(path, &options)?
     } else {
-        options.latest_model_year = options.latest_model_year.max(2027);
-        let bytes = model::demo::demo_csv_bytes(args.demo_rows as usize, 1);
-        import_csv_bytes("demo market (seed 1)", bytes, &options)?
+        model::demo::import_demo(args.demo_rows as usize, &options)?
     };
     Ok(Loaded { market, report })
 }
@@ -71,6 +71,7 @@ pub fn fit_settings(args: &MarketArgs) -> Result<FitSettings> {
 }
 
 /// The appraiser's overrides from `--keep` and `--drop`.
+#[must_use]
 pub fn overrides(args: &MarketArgs) -> Overrides {
     let mut o = Overrides::new();
     for &line in &args.keep {

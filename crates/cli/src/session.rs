@@ -8,7 +8,6 @@ use anyhow::{Context, Result, anyhow, bail};
 use chrono::{DateTime, Utc};
 use model::appraisal::{AppraisalRequest, appraise, find_segment, fit_market};
 use model::format::{money, signed_money};
-use model::market::content_hash;
 use model::session::{
     Authorship, Capture, Difference, MarketFile, Outcome, Purpose, Session, find_market_file,
     read_session, reproduce, work_out, write_session,
@@ -386,14 +385,7 @@ pub fn report(path: &Path, pdf: Option<&Path>, html: Option<&Path>) -> Result<()
             path.display()
         )
     })?;
-    let identity = report::Identity {
-        session_file: path.file_name().map_or_else(
-            || path.display().to_string(),
-            |n| n.to_string_lossy().into_owned(),
-        ),
-        session_hash: content_hash(&bytes),
-        reproduction: reproduction.summary(),
-    };
+    let identity = report::Identity::of(Some(path), Some(&bytes), reproduction.summary());
     let doc = report::Report::from_session(&session, &identity);
     if let Some(out) = pdf {
         model::session::write_atomically(out, &report::pdf::render(&doc))?;

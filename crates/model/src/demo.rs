@@ -13,6 +13,47 @@ use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
 use rand_distr::{Distribution, Normal};
 
+/// The seed of the demo market the command line and the workbench open.
+pub const DEMO_SEED: u64 = 1;
+
+/// The name a demo market of `rows` is imported under (a session records it as its market).
+#[must_use]
+pub fn demo_name(rows: usize) -> String {
+    format!(
+        "demo market ({} invented listings, seed {DEMO_SEED})",
+        crate::format::thousands(rows as f64)
+    )
+}
+
+/// Imports a demo market of `rows` listings drawn with [`DEMO_SEED`], with `options` (its
+/// latest model year allows the demo's next-year models): the one way the command line and
+/// the workbench open it.
+pub fn import_demo(
+    rows: usize,
+    options: &crate::import::ImportOptions,
+) -> Result<(crate::market::Market, crate::import::ImportReport), crate::import::ImportError> {
+    let options = crate::import::ImportOptions {
+        latest_model_year: options.latest_model_year.max(demo_as_of().year() + 1),
+        ..*options
+    };
+    crate::import::import_csv_bytes(&demo_name(rows), demo_csv_bytes(rows, DEMO_SEED), &options)
+}
+
+/// Whether `source` names a demo market (rather than a file).
+#[must_use]
+pub fn is_demo(source: &crate::market::MarketSource) -> bool {
+    source.file_name.starts_with("demo market")
+}
+
+/// Whether the demo market generated again from its seed is the one `source` describes, byte
+/// for byte.
+#[must_use]
+pub fn still_matches(source: &crate::market::MarketSource) -> bool {
+    is_demo(source)
+        && crate::market::content_hash(&demo_csv_bytes(source.rows_read, DEMO_SEED))
+            == source.content_hash
+}
+
 /// The demo market's appraisal date.
 #[must_use]
 pub fn demo_as_of() -> NaiveDate {

@@ -19,6 +19,31 @@ pub struct Identity {
     pub reproduction: String,
 }
 
+impl Identity {
+    /// The identity of a session saved at `path` whose file holds `bytes` (`None` for a
+    /// session not saved, or changed since: the report then says so), with what reopening it
+    /// found.
+    #[must_use]
+    pub fn of(path: Option<&std::path::Path>, bytes: Option<&[u8]>, reproduction: String) -> Self {
+        Self {
+            session_file: path.map_or_else(
+                || "(not saved)".to_owned(),
+                |p| {
+                    p.file_name().map_or_else(
+                        || p.display().to_string(),
+                        |n| n.to_string_lossy().into_owned(),
+                    )
+                },
+            ),
+            session_hash: bytes.map_or_else(
+                || "(unsaved changes: save the session to give the report its identity)".into(),
+                model::market::content_hash,
+            ),
+            reproduction,
+        }
+    }
+}
+
 fn pct(x: f64) -> String {
     format!("{x:.1} %")
 }

@@ -157,6 +157,9 @@ fn color_of(colors: &[(String, Rgb)], variant: Option<&str>) -> Rgb {
         .map_or(visual::INK_ON_LIGHT, |(_, c)| *c)
 }
 
+/// What one series of listings is drawn with: its variant's color and its condition's shape.
+type SeriesKey = (Rgb, Shape);
+
 /// The saved segment's listings, by variant color and condition shape (thinned past 4,000:
 /// a printed chart cannot show more).
 fn market_points(session: &Session, x: impl Fn(&model::market::Listing) -> f64) -> Vec<Mark> {
@@ -165,7 +168,8 @@ fn market_points(session: &Session, x: impl Fn(&model::market::Listing) -> f64) 
     };
     let colors = variant_colors(session);
     let step = (listings.len() / 4_000).max(1);
-    let mut series: Vec<((Rgb, Shape), Vec<(f64, f64)>)> = Vec::new();
+    // One series per (color, shape), in order of first appearance.
+    let mut series: Vec<(SeriesKey, Vec<(f64, f64)>)> = Vec::new();
     for l in listings.iter().step_by(step) {
         let key = (
             color_of(&colors, l.variant.as_deref()),
@@ -313,7 +317,11 @@ pub fn price_by_mileage(session: &Session) -> Figure {
         });
     }
     marks.push(comparable_rings(comparables));
-    marks.extend(subject_marks(subject_miles, r.indicated_value, &r.value_band));
+    marks.extend(subject_marks(
+        subject_miles,
+        r.indicated_value,
+        &r.value_band,
+    ));
     let mut legend = legend(session);
     legend.push(KeyEntry {
         shape: None,

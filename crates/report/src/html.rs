@@ -4,9 +4,9 @@
 use std::fmt::Write;
 
 use crate::blocks::{Align, Block, Report};
-use crate::visual::Shape;
 use crate::figure::{Figure, Mark, ticks, x_ticks};
 use crate::palette;
+use crate::visual::Shape;
 
 fn esc(text: &str) -> String {
     let mut out = String::with_capacity(text.len());

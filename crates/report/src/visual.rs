@@ -102,8 +102,14 @@ pub const KEY: [(&str, &str); 6] = [
     ("circle, square, diamond", "used, certified pre-owned, new"),
     ("raspberry cross", "the subject, with its value band"),
     ("ring", "a comparable"),
-    ("gray line and band", "the model's fitted value and prediction band"),
-    ("gray triangle", "asking less than its own band: look before trusting it"),
+    (
+        "gray line and band",
+        "the model's fitted value and prediction band",
+    ),
+    (
+        "gray triangle",
+        "asking less than its own band: look before trusting it",
+    ),
 ];
 
 #[cfg(test)]
@@ -164,7 +170,11 @@ mod tests {
                 7.787 * t + 16.0 / 116.0
             }
         };
-        let (fx, fy, fz) = (f(xyz[0] / white[0]), f(xyz[1] / white[1]), f(xyz[2] / white[2]));
+        let (fx, fy, fz) = (
+            f(xyz[0] / white[0]),
+            f(xyz[1] / white[1]),
+            f(xyz[2] / white[2]),
+        );
         [116.0 * fy - 16.0, 500.0 * (fx - fy), 200.0 * (fy - fz)]
     }
 
@@ -189,6 +199,8 @@ mod tests {
         (x.max(y) + 0.05) / (x.min(y) + 0.05)
     }
 
+    // The largest channel is one of the three exactly (no arithmetic between them).
+    #[allow(clippy::float_cmp)]
     fn hue(c: Rgb) -> f64 {
         let [r, g, b] = c.map(|v| f64::from(v) / 255.0);
         let (max, min) = (r.max(g).max(b), r.min(g).min(b));

@@ -64,6 +64,8 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
                 .striped(true)
                 .spacing([12.0, 4.0])
                 .show(ui, |ui| {
+                    // The row's action first, so it is in view however wide the table.
+                    ui.label("");
                     for (label, key) in [
                         ("line", None),
                         ("vehicle", None),
@@ -79,7 +81,6 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
                         ("adjusted", Some(SortBy::AdjustedPrice)),
                         ("similarity", Some(SortBy::Similarity)),
                         ("weight", Some(SortBy::Weight)),
-                        ("", None),
                     ] {
                         match key {
                             Some(k) => {
@@ -123,15 +124,21 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
 /// One comparable's row; returns its first cell (to scroll to).
 fn row_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, c: &AdjustedComparable) -> egui::Response {
     let l = &c.listing;
+    let label = format!("Exclude line {}", l.line);
+    if ui.small_button("Exclude").on_hover_text(label).clicked() {
+        cx.commands.push(Command::ExcludeComparable(l.line));
+    }
     let highlighted = cx.selection.is_highlighted(l.row);
+    // A highlighted row (hovered or selected in any pane) is marked in words too, not only
+    // by weight.
     let line_text = if highlighted {
-        RichText::new(l.line.to_string()).strong().underline()
+        RichText::new(format!("• {}", l.line)).strong().underline()
     } else {
         RichText::new(l.line.to_string())
     };
     let r = ui.label(line_text);
     if r.hovered() {
-        cx.selection.hovered = Some(l.row);
+        cx.selection.hover(l.row);
     }
     let source = l.source();
     let vehicle = format!(
@@ -148,7 +155,7 @@ fn row_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, c: &AdjustedComparable) -> egui
         format!("{source}\nbreaks: {}", breaks.join("; "))
     };
     if ui.label(vehicle).on_hover_text(hover).hovered() {
-        cx.selection.hovered = Some(l.row);
+        cx.selection.hover(l.row);
     }
     ui.label(thousands(l.miles));
     ui.label(money(l.asking_price));
@@ -181,13 +188,5 @@ fn row_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, c: &AdjustedComparable) -> egui
     ui.label(RichText::new(money(c.adjusted_price)).strong());
     ui.label(format!("{:.2}", c.similarity));
     ui.label(format!("{:.1} %", 100.0 * c.weight));
-    let label = format!("Exclude line {}", l.line);
-    if ui
-        .small_button("Exclude")
-        .on_hover_text(label.clone())
-        .clicked()
-    {
-        cx.commands.push(Command::ExcludeComparable(l.line));
-    }
     r
 }

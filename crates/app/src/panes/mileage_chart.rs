@@ -224,12 +224,9 @@ fn draw(
     );
     for edge in [&curve.lower, &curve.upper] {
         plot.line(
-            Line::new(
-                format!("model: {level:.0} % prediction band"),
-                edge.clone(),
-            )
-            .color(ink.gamma_multiply(0.6))
-            .style(egui_plot::LineStyle::dashed_loose()),
+            Line::new(format!("model: {level:.0} % prediction band"), edge.clone())
+                .color(ink.gamma_multiply(0.6))
+                .style(egui_plot::LineStyle::dashed_loose()),
         );
     }
     plot.points(

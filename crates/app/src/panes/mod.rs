@@ -85,6 +85,8 @@ pub struct PaneContext<'a> {
     pub market: &'a Market,
     /// The fitted segment.
     pub fit: &'a MarketFit,
+    /// The fit's generation (see `Runtime::fit_generation`): what caches of it are keyed by.
+    pub fit_generation: u64,
     /// The current appraisal, when the subject could be appraised.
     pub appraisal: Option<&'a Appraisal>,
     /// Backtest and model ranking of the current fit, once computed in the background.
@@ -100,10 +102,7 @@ impl PaneContext<'_> {
     #[must_use]
     pub fn variant_index(&self, row: usize) -> usize {
         let v = self.market.variant[row];
-        self.color_order()
-            .iter()
-            .position(|x| *x == v)
-            .unwrap_or(0)
+        self.color_order().iter().position(|x| *x == v).unwrap_or(0)
     }
 
     /// The fitted variants in color order: by fitted effect, then name
@@ -195,10 +194,11 @@ pub fn inputs_key(parts: &[&dyn std::fmt::Debug]) -> u64 {
     h.finish()
 }
 
-/// Identity of the fit a pane draws (its address: a new fit is a new allocation).
+/// The identity of the current fit for caches: its generation, never its address (a freed
+/// address can be reused by the next fit).
 #[must_use]
-pub fn fit_id(cx: &PaneContext<'_>) -> usize {
-    std::ptr::from_ref(cx.fit) as usize
+pub fn fit_id(cx: &PaneContext<'_>) -> u64 {
+    cx.fit_generation
 }
 
 /// A stable horizontal offset in [-0.3, 0.3] so listings of one model year do not stack.
@@ -402,7 +402,7 @@ pub fn after_chart(
 /// hovered listing's exclusion reason shows as a tooltip.
 fn hover_and_click(cx: &mut PaneContext<'_>, hovered: Option<usize>, response: &egui::Response) {
     let Some(row) = hovered else { return };
-    cx.selection.hovered = Some(row);
+    cx.selection.hover(row);
     let listing = cx.market.listing(row);
     let reason = cx
         .fit
@@ -416,51 +416,5 @@ fn hover_and_click(cx: &mut PaneContext<'_>, hovered: Option<usize>, response: &
         .on_hover_text_at_pointer(format!("{}{reason}", listing.describe()));
     if response.clicked() {
         cx.selection.selected = Some(row);
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use egui_kittest::Harness;
-
-    use super::*;
-
-    fn bounds_after(selected: Option<usize>, at: [f64; 2]) -> egui_plot::PlotBounds {
-        let plot_id = egui::Id::unique("follow_selection_test");
-        let mut harness = Harness::new_ui(move |ui| {
-            egui_plot::Plot::new("follow")
-                .id(plot_id)
-                .default_x_bounds(0.0, 10.0)
-                .default_y_bounds(0.0, 10.0)
-                .show(ui, |plot| {
-                    follow_selection(plot, egui::Id::unique("follow_memory"), selected, Some(at));
-                    plot.points(egui_plot::Points::new("p", vec![[5.0, 5.0]]));
-                });
-        });
-        harness.run_steps(3);
-        *egui_plot::PlotMemory::load(&harness.ctx, plot_id)
-            .unwrap_or_else(|| panic!("the plot stored its memory"))
-            .bounds()
-    }
-
-    #[test]
-    fn a_chart_moves_to_a_selection_outside_its_view_and_keeps_its_zoom() {
-        let moved = bounds_after(Some(7), [50.0, 80.0]);
-        assert!(
-            (moved.min()[0]..=moved.max()[0]).contains(&50.0),
-            "{moved:?}"
-        );
-        assert!(
-            (moved.min()[1]..=moved.max()[1]).contains(&80.0),
-            "{moved:?}"
-        );
-        let width = moved.max()[0] - moved.min()[0];
-        assert!(
-            width < 20.0,
-            "the zoom is kept, not widened to hold both: {moved:?}"
-        );
-        // A selection already in view leaves the view alone.
-        let kept = bounds_after(Some(7), [5.0, 5.0]);
-        assert!(kept.min()[0] <= 0.5 && kept.max()[0] >= 9.5, "{kept:?}");
     }
 }

@@ -5,9 +5,9 @@ use std::collections::BTreeMap;
 
 use eframe::egui::{Color32, Ui};
 use egui_plot::{Legend, Line, MarkerShape, PlotPoints, PlotUi, Points};
-use report::visual::Shape;
 use model::condition::Condition;
 use model::hedonic::Attributes;
+use report::visual::Shape;
 
 use super::density::{Bounds, Plotted, View, exact_groups, extent, place};
 use super::{

@@ -1,12 +1,11 @@
-//! The case file: saving the appraisal as a session, reopening one, the report, the recovery
-//! file for unsaved work and the question on closing with unsaved changes.
+//! The case file's logic: saving the appraisal as a session, reopening one, the report, the
+//! recovery file for unsaved work, and what each of the case windows' actions does. Drawing
+//! lives in `case_windows.rs`, which only returns [`CaseAction`]s.
 
 use std::path::{Path, PathBuf};
 
 use chrono::{DateTime, Utc};
-use eframe::egui::{self, RichText, Ui};
 use model::format::money;
-use model::market::content_hash;
 use model::session::{
     Authorship, Capture, MarketFile, Reproduction, Session, find_market_file, read_session,
     reproduce, write_atomically, write_session,
@@ -14,8 +13,11 @@ use model::session::{
 use serde::{Deserialize, Serialize};
 
 use super::Workbench;
+use super::case_windows::CaseAction;
 use crate::command::Command;
 use crate::document::{AppraisalDocument, MarketSource};
+use crate::error::AppError;
+use crate::notice::Notice;
 
 /// Format version of the recovery file.
 const RECOVERY_FORMAT_VERSION: u32 = 1;
@@ -88,15 +90,13 @@ pub struct CaseFile {
     pub created: Option<DateTime<Utc>>,
     /// The session last reopened.
     pub opened: Option<Opened>,
-    /// The last save, open or report outcome: (is an error, text).
-    pub message: Option<(bool, String)>,
     /// Where unsaved work is written (none in tests unless set).
     pub recovery_path: Option<PathBuf>,
     /// Unsaved work found at start, offered back.
     pub recovery_offer: Option<Recovery>,
     /// The document the recovery file holds.
     pub autosaved: Option<AppraisalDocument>,
-    /// Clock of the last recovery write.
+    /// Clock of the last recovery write (or attempt).
     pub last_autosave: f64,
     /// Seconds between recovery writes ([`AUTOSAVE_SECONDS`] unless changed).
     pub autosave_seconds: Option<f64>,
@@ -116,10 +116,10 @@ fn now() -> DateTime<Utc> {
 #[must_use]
 pub fn market_state(session: &Session, path: &Path) -> MarketState {
     let source = &session.market.source;
-    if session.market.location.absolute.is_none() && source.file_name.starts_with("demo market") {
-        // The demo market is regenerated from its seed: check it still hashes the same.
-        let bytes = model::demo::demo_csv_bytes(source.rows_read, 1);
-        return if content_hash(&bytes) == source.content_hash {
+    if session.market.location.absolute.is_none() && model::demo::is_demo(source) {
+        // The demo market is generated again from its seed: it is unchanged when it still
+        // hashes the same.
+        return if model::demo::still_matches(source) {
             MarketState::Unchanged(MarketSource::Demo {
                 rows: source.rows_read,
             })
@@ -157,13 +157,10 @@ impl Workbench {
                     self.case.recovery_offer = Some(r);
                 }
                 _ => {
-                    self.case.message = Some((
-                        true,
-                        format!(
-                            "An unreadable recovery file was left at {}; it was not used.",
-                            path.display()
-                        ),
-                    ));
+                    self.notice = Some(Notice::failed(format!(
+                        "An unreadable recovery file was left at {}; it was not used.",
+                        path.display()
+                    )));
                 }
             }
         }
@@ -188,13 +185,24 @@ impl Workbench {
     /// Discards the unsaved work found at start.
     pub fn discard_recovery(&mut self) {
         self.case.recovery_offer = None;
-        if let Some(p) = &self.case.recovery_path {
-            let _ = std::fs::remove_file(p);
+        self.remove_recovery_file();
+    }
+
+    /// Removes the recovery file; a failure other than its being gone is reported.
+    fn remove_recovery_file(&mut self) {
+        let Some(path) = self.case.recovery_path.clone() else {
+            return;
+        };
+        match std::fs::remove_file(&path) {
+            Err(source) if source.kind() != std::io::ErrorKind::NotFound => {
+                self.notice = Some(Notice::from(&AppError::Remove { path, source }));
+            }
+            _ => {}
         }
     }
 
     /// Writes the recovery file when there is unsaved work it does not hold yet; removes it
-    /// once the work is saved.
+    /// once the work is saved. A failed write is reported and tried again after the interval.
     pub(super) fn autosave(&mut self) {
         let Some(path) = self.case.recovery_path.clone() else {
             return;
@@ -204,7 +212,7 @@ impl Workbench {
         }
         if !self.has_unsaved_changes() {
             if self.case.autosaved.take().is_some() {
-                let _ = std::fs::remove_file(&path);
+                self.remove_recovery_file();
             }
             return;
         }
@@ -214,35 +222,41 @@ impl Workbench {
         {
             return;
         }
+        self.case.last_autosave = self.clock;
         let recovery = Recovery {
             format_version: RECOVERY_FORMAT_VERSION,
             written: now(),
             session_path: self.case.path.clone(),
             document: self.document.clone(),
         };
-        if let Ok(text) = ron::ser::to_string_pretty(&recovery, ron::ser::PrettyConfig::new()) {
-            if let Some(dir) = path.parent() {
-                let _ = std::fs::create_dir_all(dir);
-            }
-            if write_atomically(&path, text.as_bytes()).is_ok() {
-                self.case.autosaved = Some(self.document.clone());
-                self.case.last_autosave = self.clock;
+        let written = ron::ser::to_string_pretty(&recovery, ron::ser::PrettyConfig::new())
+            .map_err(|e| e.to_string())
+            .and_then(|text| {
+                if let Some(dir) = path.parent() {
+                    std::fs::create_dir_all(dir).map_err(|e| e.to_string())?;
+                }
+                write_atomically(&path, text.as_bytes()).map_err(|e| e.to_string())
+            });
+        match written {
+            Ok(()) => self.case.autosaved = Some(self.document.clone()),
+            Err(why) => {
+                self.notice = Some(Notice::from(&AppError::Recovery { path, why }));
             }
         }
     }
 
     /// The current appraisal as a session (not written anywhere); `keep_segment` keeps every
     /// listing of the model in it.
-    pub fn capture_session(&self, keep_segment: bool) -> Result<Session, String> {
+    pub fn capture_session(&self, keep_segment: bool) -> Result<Session, AppError> {
         let (Some(market), Some(fit), Some(appraisal)) = (
             &self.runtime.market,
             &self.runtime.fit,
             &self.runtime.appraisal,
         ) else {
-            return Err("There is no finished appraisal to save yet.".into());
+            return Err(AppError::NoAppraisal);
         };
         if self.runtime.loading.is_some() || self.runtime.fitting.is_some() {
-            return Err("Wait for the market to finish loading and fitting, then save.".into());
+            return Err(AppError::Busy);
         }
         // The evidence must be the appraisal of this very document, not of an earlier state.
         if !self
@@ -251,9 +265,7 @@ impl Workbench {
             .is_some_and(|(d, _)| d == &self.document)
             || !appraisal.subject.same_vehicle(&self.document.subject)
         {
-            return Err(
-                "The appraisal is being brought up to date; save again in a moment.".into(),
-            );
+            return Err(AppError::Stale);
         }
         let market_path = match &self.document.market {
             MarketSource::File(p) => Some(
@@ -273,7 +285,7 @@ impl Workbench {
             }
         }
         let at = now();
-        Session::capture(
+        Ok(Session::capture(
             &Capture {
                 market,
                 market_path: market_path.as_deref(),
@@ -291,42 +303,34 @@ impl Workbench {
                 saved: at,
                 notes: self.document.notes.clone(),
             },
-        )
-        .map_err(|e| format!("The worksheet cannot be saved: {e}"))
+        )?)
     }
 
     /// Saves the appraisal as a session at `path` (atomically).
-    pub fn save_session(&mut self, path: &Path) -> Result<(), String> {
+    pub fn save_session(&mut self, path: &Path) -> Result<(), AppError> {
         let session = self.capture_session(self.preferences.keep_segment)?;
-        write_session(path, &session).map_err(|e| e.to_string())?;
+        write_session(path, &session)?;
         self.case.path = Some(path.to_owned());
         self.case.saved = Some(self.document.clone());
         self.case.created = Some(session.authorship.created);
-        self.case.message = Some((
-            false,
-            format!(
-                "Saved {} ({} indicated).",
-                path.display(),
-                money(session.result.indicated_value)
-            ),
-        ));
-        if let Some(p) = &self.case.recovery_path {
-            let _ = std::fs::remove_file(p);
-        }
+        self.notice = Some(Notice::done(format!(
+            "Saved {} ({} indicated).",
+            path.display(),
+            money(session.result.indicated_value)
+        )));
+        self.remove_recovery_file();
         self.case.autosaved = None;
         self.preferences.remember_session(path.to_owned());
         Ok(())
     }
 
     /// Opens a saved session: recomputes it from its evidence, and when its market file is
-    /// unchanged, reopens it live on that file.
-    pub fn open_session(&mut self, path: &Path) -> Result<(), String> {
-        let session = read_session(path).map_err(|e| e.to_string())?;
-        let reproduction = reproduce(&session).map_err(|e| {
-            format!(
-                "{}: the saved evidence cannot be recomputed: {e}",
-                path.display()
-            )
+    /// unchanged, reopens it live on that file (as one undoable change of the document).
+    pub fn open_session(&mut self, path: &Path) -> Result<(), AppError> {
+        let session = read_session(path)?;
+        let reproduction = reproduce(&session).map_err(|source| AppError::Replay {
+            path: path.to_owned(),
+            source,
         })?;
         let market = market_state(&session, path);
         let live = matches!(market, MarketState::Unchanged(_));
@@ -337,7 +341,7 @@ impl Workbench {
         }
         self.case.path = Some(path.to_owned());
         self.case.created = Some(session.authorship.created);
-        self.case.message = None;
+        self.notice = None;
         self.preferences.remember_session(path.to_owned());
         self.case.opened = Some(Opened {
             path: path.to_owned(),
@@ -361,7 +365,7 @@ impl Workbench {
     }
 
     /// Writes the report for the current appraisal as `base`.pdf and `base`.html.
-    pub fn write_report(&mut self, base: &Path) -> Result<(PathBuf, PathBuf), String> {
+    pub fn write_report(&mut self, base: &Path) -> Result<(PathBuf, PathBuf), AppError> {
         // The report's charts show the whole model's market, whether or not sessions keep it.
         let session = self.capture_session(true)?;
         let saved_bytes = self
@@ -370,32 +374,21 @@ impl Workbench {
             .as_ref()
             .filter(|_| !self.has_unsaved_changes())
             .and_then(|p| std::fs::read(p).ok());
-        let identity = report::Identity {
-            session_file: self
-                .case
-                .path
-                .as_ref()
-                .and_then(|p| p.file_name())
-                .map_or_else(
-                    || "(not saved)".into(),
-                    |n| n.to_string_lossy().into_owned(),
-                ),
-            session_hash: saved_bytes.map_or_else(
-                || "(unsaved changes: save the session to give the report its identity)".into(),
-                |b| content_hash(&b),
-            ),
-            reproduction: "computed live in the workbench from the market file".into(),
-        };
+        let identity = report::Identity::of(
+            self.case.path.as_deref(),
+            saved_bytes.as_deref(),
+            "computed live in the workbench from the market file".into(),
+        );
         let doc = report::Report::from_session(&session, &identity);
         let pdf = base.with_extension("pdf");
         let html = base.with_extension("html");
-        write_atomically(&pdf, &report::pdf::render(&doc)).map_err(|e| e.to_string())?;
-        write_atomically(&html, report::html::render(&doc).as_bytes())
-            .map_err(|e| e.to_string())?;
-        self.case.message = Some((
-            false,
-            format!("Wrote {} and {}.", pdf.display(), html.display()),
-        ));
+        write_atomically(&pdf, &report::pdf::render(&doc))?;
+        write_atomically(&html, report::html::render(&doc).as_bytes())?;
+        self.notice = Some(Notice::done(format!(
+            "Wrote {} and {}.",
+            pdf.display(),
+            html.display()
+        )));
         Ok((pdf, html))
     }
 
@@ -450,7 +443,7 @@ impl Workbench {
             FilePrompt::Profiles => self.load_profiles(path),
         };
         if let Err(e) = outcome {
-            self.case.message = Some((true, e));
+            self.notice = Some(Notice::from(&e));
         }
         if which == FilePrompt::SaveSession
             && self.case.confirm_close
@@ -460,193 +453,23 @@ impl Workbench {
         }
     }
 
-    /// The typed-path window, the recovery offer, the close question and the reopened
-    /// session's banner.
-    pub(super) fn case_windows(&mut self, ui: &Ui) {
-        self.prompt_window(ui);
-        self.recovery_window(ui);
-        self.close_window(ui);
-    }
-
-    fn prompt_window(&mut self, ui: &Ui) {
-        let Some((which, mut text)) = self.case.prompt.take() else {
-            return;
-        };
-        let (title, action) = match which {
-            FilePrompt::SaveSession => ("Save the session", "Save"),
-            FilePrompt::OpenSession => ("Open a session", "Open"),
-            FilePrompt::Report => ("Write the report (PDF and HTML)", "Write"),
-            FilePrompt::LocateMarket => ("Where is the market file now?", "Re-run"),
-            FilePrompt::Profiles => ("Open a jurisdiction profiles file", "Open"),
-        };
-        let mut keep = true;
-        let mut go = false;
-        egui::Window::new(title)
-            .collapsible(false)
-            .show(ui.ctx(), |ui| {
-                ui.label("Path:");
-                let edit = ui.add(egui::TextEdit::singleline(&mut text).desired_width(420.0));
-                go = edit.lost_focus() && ui.input(|i| i.key_pressed(egui::Key::Enter));
-                ui.horizontal(|ui| {
-                    go |= ui.button(action).clicked();
-                    if ui.button("Cancel").clicked() {
-                        keep = false;
-                    }
-                });
-            });
-        if go && !text.trim().is_empty() {
-            self.use_prompted(which, Path::new(text.trim()));
-        } else if keep {
-            self.case.prompt = Some((which, text));
-        }
-    }
-
-    fn recovery_window(&mut self, ui: &Ui) {
-        let Some(offer) = &self.case.recovery_offer else {
-            return;
-        };
-        let text = format!(
-            "comptrail closed with unsaved work on {} ({}), last written {}.",
-            offer.document.subject.describe(),
-            offer
-                .session_path
-                .as_ref()
-                .map_or_else(|| "never saved".into(), |p| p.display().to_string()),
-            offer.written.format("%Y-%m-%d %H:%M UTC")
-        );
-        let (mut recover, mut discard) = (false, false);
-        egui::Window::new("Recover unsaved work?")
-            .collapsible(false)
-            .anchor(egui::Align2::CENTER_CENTER, egui::Vec2::ZERO)
-            .show(ui.ctx(), |ui| {
-                ui.label(text);
-                ui.horizontal(|ui| {
-                    recover = ui.button("Recover").clicked();
-                    discard = ui.button("Discard").clicked();
-                });
-            });
-        if recover {
-            self.recover();
-        } else if discard {
-            self.discard_recovery();
-        }
-    }
-
-    fn close_window(&mut self, ui: &Ui) {
-        if ui.input(|i| i.viewport().close_requested())
-            && self.has_unsaved_changes()
-            && !self.case.allow_close
-        {
-            ui.ctx()
-                .send_viewport_cmd(egui::ViewportCommand::CancelClose);
-            self.case.confirm_close = true;
-        }
-        if self.case.allow_close && self.case.confirm_close {
-            self.case.confirm_close = false;
-            ui.ctx().send_viewport_cmd(egui::ViewportCommand::Close);
-            return;
-        }
-        if !self.case.confirm_close {
-            return;
-        }
-        let (mut save, mut discard, mut cancel) = (false, false, false);
-        egui::Window::new("Unsaved changes")
-            .collapsible(false)
-            .anchor(egui::Align2::CENTER_CENTER, egui::Vec2::ZERO)
-            .show(ui.ctx(), |ui| {
-                ui.label("This appraisal has changes that are not saved in a session file.");
-                ui.horizontal(|ui| {
-                    save = ui.button("Save…").clicked();
-                    discard = ui.button("Close without saving").clicked();
-                    cancel = ui.button("Cancel").clicked();
-                });
-            });
-        if save {
-            match self.case.path.clone() {
-                Some(p) => {
-                    self.use_prompted(FilePrompt::SaveSession, &p);
-                }
-                None => self.prompt(FilePrompt::SaveSession),
-            }
-        } else if discard {
-            if let Some(p) = &self.case.recovery_path {
-                let _ = std::fs::remove_file(p);
-            }
-            self.case.allow_close = true;
-        } else if cancel {
-            self.case.confirm_close = false;
-        }
-    }
-
-    /// The banner of a reopened session: whether it reproduces, and its market file's state.
-    pub(super) fn opened_banner_ui(&mut self, ui: &mut Ui) {
-        if let Some((error, text)) = &self.case.message {
-            if *error {
-                ui.colored_label(ui.visuals().error_fg_color, text);
-            } else {
-                ui.label(text);
-            }
-        }
-        let Some(opened) = &self.case.opened else {
-            return;
-        };
-        let r = &opened.reproduction;
-        let stored = opened.session.result.indicated_value;
-        let name = opened.path.display().to_string();
-        if r.reproduces() {
-            ui.label(
-                RichText::new(format!(
-                    "{name}: the saved evidence reproduces {} ({}).",
-                    money(stored),
-                    model::session::REPRODUCTION_RULE
-                ))
-                .strong(),
-            );
-        } else {
-            ui.colored_label(
-                ui.visuals().error_fg_color,
-                format!(
-                    "{name}: the saved evidence does not reproduce the saved value: {} saved, {} recomputed ({} numbers differ).",
-                    money(stored),
-                    money(r.outcome.indicated_value),
-                    r.differences.len()
-                ),
-            );
-        }
-        let mut action = None;
-        ui.horizontal_wrapped(|ui| match &opened.market {
-            MarketState::Unchanged(_) => {
-                ui.label("Its market file is unchanged; the appraisal is live on it.");
-            }
-            MarketState::Changed(path) => {
-                ui.colored_label(
-                    ui.visuals().warn_fg_color,
-                    format!(
-                        "Its market file {} has changed since the session was saved.",
-                        path.display()
-                    ),
-                );
-                if !opened.live && ui.button("Re-run on the current file").clicked() {
-                    action = Some(Some(MarketSource::File(path.clone())));
-                }
-            }
-            MarketState::Missing => {
-                ui.colored_label(
-                    ui.visuals().warn_fg_color,
-                    format!(
-                        "Its market file {} is not where it was; the saved evidence is shown.",
-                        opened.session.market.source.file_name
-                    ),
-                );
-                if !opened.live && ui.button("Locate the market file…").clicked() {
-                    action = Some(None);
-                }
-            }
-        });
+    /// Does what a case window or the banner asked for.
+    pub(super) fn act(&mut self, action: CaseAction) {
         match action {
-            Some(Some(source)) => self.rerun_opened_on(source),
-            Some(None) => self.prompt(FilePrompt::LocateMarket),
-            None => {}
+            CaseAction::UsePath(which, path) => self.use_prompted(which, &path),
+            CaseAction::Recover => self.recover(),
+            CaseAction::DiscardRecovery => self.discard_recovery(),
+            CaseAction::SaveBeforeClose => match self.case.path.clone() {
+                Some(p) => self.use_prompted(FilePrompt::SaveSession, &p),
+                None => self.prompt(FilePrompt::SaveSession),
+            },
+            CaseAction::CloseWithoutSaving => {
+                self.remove_recovery_file();
+                self.case.allow_close = true;
+            }
+            CaseAction::KeepOpen => self.case.confirm_close = false,
+            CaseAction::Rerun(source) => self.rerun_opened_on(source),
+            CaseAction::LocateMarket => self.prompt(FilePrompt::LocateMarket),
         }
     }
 }

@@ -21,7 +21,9 @@ pub use outcome::{
     Outcome, Purpose, SENSITIVITY_DAYS, WorksheetOutcome, itemized_deductions, trade_in_inputs,
     work_out,
 };
-pub use replay::{Difference, REPRODUCTION_RULE, Reproduction, reproduce, reproduces_to_the_cent};
+pub use replay::{
+    Difference, REPRODUCTION_RULE, ReplayError, Reproduction, reproduce, reproduces_to_the_cent,
+};
 
 use chrono::{DateTime, Utc};
 use serde::{Deserialize, Serialize};

@@ -8,8 +8,8 @@ use pdf_writer::{Content, Filter, Finish, Name, Pdf, Rect, Ref, Str, TextStr};
 use crate::blocks::{Align, Block, Column, Report};
 use crate::figure::{Figure, Mark, ticks, x_ticks};
 use crate::html::{Frame, chart_size, tick_label};
-use crate::visual::Shape;
 use crate::palette;
+use crate::visual::Shape;
 pub use metrics::{width, win_ansi, wrap};
 
 const PAGE_W: f32 = 612.0;
@@ -345,14 +345,13 @@ impl Layout {
                 y -= 9.6;
                 if i == 0 {
                     self.color(k.rgb);
-                    match k.shape {
-                        Some(shape) => self.shape(shape, MARGIN + 4.0, y + 3.0, 3.2),
-                        None => {
-                            self.page.set_line_width(1.5);
-                            self.page.move_to(MARGIN, y + 3.0);
-                            self.page.line_to(MARGIN + 9.0, y + 3.0);
-                            self.page.stroke();
-                        }
+                    if let Some(shape) = k.shape {
+                        self.shape(shape, MARGIN + 4.0, y + 3.0, 3.2);
+                    } else {
+                        self.page.set_line_width(1.5);
+                        self.page.move_to(MARGIN, y + 3.0);
+                        self.page.line_to(MARGIN + 9.0, y + 3.0);
+                        self.page.stroke();
                     }
                     self.color(palette::INK);
                 }

@@ -1,14 +1,9 @@
 //! Session files from the command line: save, re-run, report, and a save killed midway.
 
-// Tests may unwrap (a failure is the report) and compare amounts written to the cent exactly.
-#![allow(clippy::unwrap_used, clippy::expect_used, clippy::float_cmp)]
-
-mod common;
-
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
-use common::{comptrail, repo, succeeded};
+use crate::common::{comptrail, repo, succeeded};
 
 fn scratch(name: &str) -> PathBuf {
     let dir = std::env::temp_dir().join(format!("comptrail-cli-{name}-{}", std::process::id()));

@@ -7,7 +7,7 @@ use std::sync::OnceLock;
 use clap::Parser;
 use proptest::prelude::*;
 
-use crate::args::{Cli, Command};
+use cli::args::{Cli, Command};
 
 /// Every option the commands take, with and without values.
 const OPTIONS: [&str; 40] = [
@@ -185,23 +185,23 @@ fn market() -> &'static model::market::Market {
 
 /// What a parsed `appraise` runs: its fit settings, overrides, subject, request and forecast,
 /// on the small market (no file is read).
-fn run_appraise(args: &crate::args::AppraiseArgs) {
+fn run_appraise(args: &cli::args::AppraiseArgs) {
     let market = market();
-    let Ok(settings) = crate::load::fit_settings(&args.market) else {
+    let Ok(settings) = cli::load::fit_settings(&args.market) else {
         return;
     };
     let subject = args.subject.as_deref().map_or_else(
-        || model::subject::Subject::parse(crate::DEMO_SUBJECT),
+        || model::subject::Subject::parse(cli::DEMO_SUBJECT),
         model::subject::Subject::parse,
     );
     let Ok(subject) = subject else { return };
-    let Ok(request) = crate::appraisal_request(args, subject.clone()) else {
+    let Ok(request) = cli::appraisal_request(args, subject.clone()) else {
         return;
     };
     let Some(segment) = market.find_segment(&subject.make, &subject.model) else {
         return;
     };
-    let overrides = crate::load::overrides(&args.market);
+    let overrides = cli::load::overrides(&args.market);
     let Ok(fit) = model::appraisal::fit_market(market, segment, &settings, &overrides) else {
         return;
     };
@@ -239,7 +239,7 @@ proptest! {
             }
             Err(e) => {
                 // The one-line form of every error is printable.
-                let line = crate::one_line(&e);
+                let line = cli::one_line(&e);
                 prop_assert!(!line.contains('\n'), "{}", line);
             }
         }

@@ -2,36 +2,18 @@
 //! sessions and reopened to the same numbers; a session whose market file is gone or changed;
 //! unsaved work recovered after a crash; closing with unsaved changes asks first.
 
-// Tests unwrap (a failure is the report) and compare money to the cent exactly.
-#![allow(clippy::unwrap_used, clippy::expect_used, clippy::float_cmp)]
-
 use std::path::PathBuf;
 
 use app::Workbench;
 use app::command::Command;
 use app::document::{AppraisalDocument, MarketSource, default_claim_inputs, default_trade_in};
-use app::preferences::Preferences;
 use app::workbench::{CentralView, MarketState};
 use eframe::egui;
-use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
 use model::format::cents;
 use model::session::{Purpose, WorksheetOutcome, work_out};
 
-const SMALL_DEMO: usize = 4_000;
-
-fn scratch(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("comptrail-app-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    dir
-}
-
-fn workbench_on(document: AppraisalDocument) -> Workbench {
-    let mut wb = Workbench::with_document(document, Preferences::default(), || {});
-    wb.wait_for_jobs();
-    wb
-}
+use crate::support::{SMALL_DEMO, harness_on, scratch, workbench_on};
 
 fn bottom_line(wb: &Workbench) -> model::money::Cents {
     let doc = wb.document();
@@ -42,14 +24,6 @@ fn bottom_line(wb: &Workbench) -> model::money::Cents {
     )
     .unwrap();
     outcome.bottom_line().unwrap().1
-}
-
-fn harness_on(wb: Workbench) -> Harness<'static, Workbench> {
-    let mut harness = Harness::builder()
-        .with_size(egui::Vec2::new(1500.0, 950.0))
-        .build_ui_state(|ui, wb: &mut Workbench| wb.ui(ui), wb);
-    harness.run_steps(3);
-    harness
 }
 
 #[test]
@@ -296,8 +270,8 @@ fn a_damaged_session_leaves_the_workbench_as_it_was_and_says_where() {
     let mut wb = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
     let before = wb.document().clone();
     let e = wb.open_session(&path).unwrap_err();
-    assert!(e.contains("line 3"), "{e}");
-    assert!(e.contains("appraiser"), "{e}");
+    assert!(e.to_string().contains("line 3"), "{e}");
+    assert!(e.to_string().contains("appraiser"), "{e}");
     assert_eq!(wb.document(), &before);
 }
 
@@ -312,7 +286,7 @@ fn a_session_is_not_saved_from_an_appraisal_that_no_longer_matches_the_subject()
     assert!(wb.runtime().fit_error.is_some());
     let dir = scratch("stale");
     let e = wb.save_session(&dir.join("stale.ron")).unwrap_err();
-    assert!(e.contains("up to date"), "{e}");
+    assert!(e.to_string().contains("up to date"), "{e}");
     assert!(!dir.join("stale.ron").exists());
 }
 
@@ -341,7 +315,7 @@ fn a_profiles_file_of_the_users_own_is_offered_for_claims_and_remembered() {
     )
     .unwrap();
     let e = wb.load_profiles(&broken).unwrap_err();
-    assert!(e.contains("broken.ron:3:"), "{e}");
+    assert!(e.to_string().contains("broken.ron:3:"), "{e}");
     assert!(wb.profiles().get("county").is_some());
     // The next start reads the remembered file.
     let prefs = wb.preferences().clone();
@@ -376,4 +350,44 @@ fn a_reopened_session_shows_the_warnings_it_was_saved_with() {
     let harness = harness_on(other);
     harness.get_by_label_contains(app::panes::WARNINGS_LABEL);
     harness.get_by_label_contains("The subject's model year 1995 is older than every listing");
+}
+
+#[test]
+fn opening_a_session_is_one_change_that_undo_takes_back() {
+    // Every change of the document goes through the one apply, so opening a session is on the
+    // undo history like any edit.
+    let dir = scratch("undo-open");
+    let path = dir.join("case.ron");
+    let mut first = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
+    first.apply(Command::ChoosePurpose(Purpose::TradeIn(default_trade_in())));
+    first.wait_for_jobs();
+    first.save_session(&path).unwrap();
+
+    let mut wb = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
+    let before = wb.document().clone();
+    wb.open_session(&path).unwrap();
+    assert!(matches!(wb.document().purpose, Purpose::TradeIn(_)));
+    assert_ne!(wb.document(), &before);
+    wb.undo();
+    assert_eq!(wb.document(), &before);
+    wb.redo();
+    assert!(matches!(wb.document().purpose, Purpose::TradeIn(_)));
+}
+
+#[test]
+fn a_recovery_file_that_cannot_be_written_is_said_not_dropped() {
+    // The recovery file's folder is a file: every write fails. The failure is in the banner.
+    let dir = scratch("recovery-fails");
+    let blocker = dir.join("not-a-folder");
+    std::fs::write(&blocker, b"a file where a folder should be").unwrap();
+    let mut wb = workbench_on(AppraisalDocument::demo(SMALL_DEMO))
+        .with_recovery_file(blocker.join("recovery.ron"));
+    wb.set_autosave_seconds(0.0);
+    wb.apply(Command::SetNotes("unsaved work".into()));
+    let mut harness = harness_on(wb);
+    harness.run_steps(2);
+    let notice = harness.state().notice().cloned().unwrap();
+    assert!(notice.is_failure(), "{notice:?}");
+    assert!(notice.text.contains("recovery file"), "{}", notice.text);
+    harness.get_by_label_contains("could not be written to the recovery file");
 }

@@ -1,10 +1,7 @@
 //! A few image snapshots of the workbench, drawn on the CPU (no GPU needed) and compared with
 //! the PNGs under `tests/snapshots/`. Regenerate after a deliberate change of the look with
-//! `UPDATE_SNAPSHOTS=1 cargo test -p app --test snapshots`, and look at the new images before
-//! committing them.
-
-// Tests unwrap: a failure is the report.
-#![allow(clippy::unwrap_used, clippy::expect_used)]
+//! `UPDATE_SNAPSHOTS=1 cargo test -p app --test workbench snapshots`, and look at the new
+//! images before committing them.
 
 use app::Workbench;
 use app::command::Command;

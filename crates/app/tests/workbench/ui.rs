@@ -1,9 +1,5 @@
 //! The workbench driven headlessly: state-level checks through the real `Workbench`, and the
-//! whole UI through egui_kittest by its accessible labels. No display or GPU needed.
-
-// Tests unwrap (a failure is the report) and compare values exactly: undo must restore the
-// identical number, and a recomputation of the same inputs is deterministic.
-#![allow(clippy::unwrap_used, clippy::expect_used, clippy::float_cmp)]
+//! whole UI through egui_kittest by its accessible labels.
 
 use app::Workbench;
 use app::command::Command;
@@ -12,26 +8,7 @@ use app::preferences::Preferences;
 use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
 
-const SMALL_DEMO: usize = 6_000;
-
-fn workbench() -> Workbench {
-    let mut wb = Workbench::with_document(
-        AppraisalDocument::demo(SMALL_DEMO),
-        Preferences::default(),
-        || {},
-    );
-    wb.wait_for_jobs();
-    wb
-}
-
-fn indicated(wb: &Workbench) -> f64 {
-    wb.runtime()
-        .appraisal
-        .as_ref()
-        .expect("appraised")
-        .reconciliation
-        .indicated_value
-}
+use crate::support::{SMALL_DEMO, harness_on, indicated, workbench};
 
 #[test]
 fn starts_on_the_demo_with_a_finished_appraisal() {
@@ -159,12 +136,7 @@ fn a_selection_made_in_one_pane_reaches_the_others() {
 }
 
 fn harness() -> Harness<'static, Workbench> {
-    let wb = workbench();
-    let mut harness = Harness::builder()
-        .with_size(egui::Vec2::new(1500.0, 950.0))
-        .build_ui_state(|ui, wb: &mut Workbench| wb.ui(ui), wb);
-    harness.run_steps(3);
-    harness
+    harness_on(workbench())
 }
 
 use eframe::egui;
@@ -394,9 +366,11 @@ fn selecting_a_comparable_elsewhere_scrolls_the_table_to_it() {
         .with_size(egui::Vec2::new(1500.0, 950.0))
         .build_ui_state(|ui, wb: &mut Workbench| wb.ui(ui), wb);
     harness.run_steps(3);
-    let label = last.line.to_string();
+    // The row's line number, marked "• " once the row is selected.
+    let (plain, marked) = (last.line.to_string(), format!("• {}", last.line));
     let below = |h: &Harness<'static, Workbench>| {
-        h.get_all_by_label(&label)
+        h.query_all_by_label(&plain)
+            .chain(h.query_all_by_label(&marked))
             .map(|n| n.rect().max.y)
             .fold(f32::MIN, f32::max)
     };
@@ -464,4 +438,38 @@ fn a_subject_outside_the_market_shows_its_warning_beside_the_value() {
     harness.get_by_label_contains("Appraisal date");
     // The subject stays as set: the year field does not pull it back into the market.
     assert_eq!(harness.state().document().subject.model_year, 1990);
+}
+
+#[test]
+fn a_listing_hovered_in_a_chart_is_marked_in_the_table_drawn_before_it() {
+    // Regression: the hover was cleared before the side panels drew and set by the charts
+    // after, so hovering a chart never reached the comparables table. Hover is now read from
+    // the previous frame by every pane.
+    let mut harness = harness();
+    let first = harness
+        .state()
+        .runtime()
+        .appraisal
+        .clone()
+        .unwrap()
+        .comparables[0]
+        .listing
+        .clone();
+    assert!(
+        harness
+            .query_by_label(&format!("• {}", first.line))
+            .is_none()
+    );
+    // What a chart does when the pointer is over the listing's point.
+    harness.state_mut().hover(first.row);
+    harness.run_steps(1);
+    assert_eq!(harness.state().selection().hovered, Some(first.row));
+    harness.get_by_label(&format!("• {}", first.line));
+    // The pointer gone, the mark goes with it.
+    harness.run_steps(2);
+    assert!(
+        harness
+            .query_by_label(&format!("• {}", first.line))
+            .is_none()
+    );
 }

@@ -1,4 +1,4 @@
-//! What both command-line test files need: running the binary and finding the repository's files.
+//! What the command-line checks share: running the binary and finding the repository's files.
 
 use std::path::PathBuf;
 use std::process::{Command, Output};

@@ -1,13 +1,8 @@
 //! The command line as a user runs it: exit codes, one-line errors, stable JSON keys.
 
-// Tests may unwrap: a failure is the report.
-#![allow(clippy::unwrap_used, clippy::expect_used)]
-
-mod common;
-
 use std::process::Output;
 
-use common::{comptrail, repo, succeeded};
+use crate::common::{comptrail, repo, succeeded};
 
 fn asset() -> String {
     repo("assets/demo-market.csv")
