@@ -105,6 +105,57 @@ pub fn fit_demo(
         .expect("fit")
 }
 
+/// The demo market of `rows` listings from `seed` with its Quellmark Tessel fitted with the
+/// default settings (`age_form` aside), made once per test run and shared by every check
+/// that reads it.
+#[must_use]
+#[allow(clippy::expect_used)]
+pub fn shared_tessel_fit(
+    rows: usize,
+    seed: u64,
+    age_form: model::hedonic::AgeForm,
+) -> &'static (model::market::Market, model::appraisal::MarketFit) {
+    type Shared = (model::market::Market, model::appraisal::MarketFit);
+    type Key = (usize, u64, model::hedonic::AgeForm);
+    static MADE: std::sync::Mutex<Vec<(Key, &'static Shared)>> = std::sync::Mutex::new(Vec::new());
+    let mut made = MADE
+        .lock()
+        .unwrap_or_else(std::sync::PoisonError::into_inner);
+    let key = (rows, seed, age_form);
+    if let Some((_, shared)) = made.iter().find(|(k, _)| *k == key) {
+        return shared;
+    }
+    let market = demo_market(rows, seed);
+    let fit = fit_demo(
+        &market,
+        "Quellmark",
+        "Tessel",
+        model::appraisal::FitSettings {
+            age_form,
+            ..model::appraisal::FitSettings::default()
+        },
+    );
+    let shared: &'static Shared = Box::leak(Box::new((market, fit)));
+    made.push((key, shared));
+    shared
+}
+
+/// The demo's used Quellmark Tessel Ambrel of `model_year` with `miles` on the odometer (the
+/// demo subject is the 2022 at 41,000 mi).
+#[must_use]
+pub fn tessel(model_year: i32, miles: f64) -> model::subject::Subject {
+    model::subject::Subject {
+        model_year,
+        make: "Quellmark".into(),
+        model: "Tessel".into(),
+        variant: Some("Ambrel".into()),
+        miles,
+        condition: model::condition::Condition::Used,
+        options: None,
+        vin: None,
+    }
+}
+
 /// Path of a file in the repository (`sample-sessions/…`, `assets/…`).
 #[must_use]
 pub fn repo_path(relative: &str) -> PathBuf {
@@ -141,7 +192,7 @@ pub fn scratch_dir(name: &str) -> PathBuf {
 #[allow(clippy::expect_used, clippy::needless_pass_by_value)]
 pub fn demo_session(
     purpose: model::session::Purpose,
-    market_path: Option<&str>,
+    market_path: Option<&std::path::Path>,
 ) -> model::session::Session {
     let market = demo_market(2_000, 1);
     let settings = model::appraisal::FitSettings {
@@ -149,30 +200,36 @@ pub fn demo_session(
         ..model::appraisal::FitSettings::default()
     };
     let fit = fit_demo(&market, "Quellmark", "Tessel", settings);
-    let subject = model::subject::Subject::parse(
-        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
-    )
-    .expect("subject");
-    let mut request = model::appraisal::AppraisalRequest::new(subject);
+    let mut request = model::appraisal::AppraisalRequest::new(tessel(2022, 41_000.0));
     if let model::session::Purpose::Claim { profile, .. } = &purpose {
         request.rules = profile.comparable_rules(&request.rules);
     }
     let appraisal = model::appraisal::appraise(&market, &fit, &request).expect("appraisal");
+    test_session(&model::session::Capture {
+        market: &market,
+        market_path,
+        fit: &fit,
+        settings: &settings,
+        overrides: &model::clean::Overrides::new(),
+        request: &request,
+        appraisal: &appraisal,
+        purpose: &purpose,
+        keep_segment: false,
+    })
+}
+
+/// The session of `capture`, by the invented test appraiser at a fixed time.
+///
+/// # Panics
+/// If the worksheet cannot be worked out.
+#[must_use]
+#[allow(clippy::expect_used)]
+pub fn test_session(capture: &model::session::Capture<'_>) -> model::session::Session {
     let at = chrono::DateTime::parse_from_rfc3339("2026-12-01T10:00:00Z")
         .expect("time")
         .to_utc();
     model::session::Session::capture(
-        &model::session::Capture {
-            market: &market,
-            market_path,
-            fit: &fit,
-            settings: &settings,
-            overrides: &model::clean::Overrides::new(),
-            request: &request,
-            appraisal: &appraisal,
-            purpose: &purpose,
-            keep_segment: false,
-        },
+        capture,
         model::session::Authorship {
             appraiser: "Test Appraiser (invented)".into(),
             created: at,

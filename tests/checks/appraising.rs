@@ -10,10 +10,7 @@ use model::gaps::{GapFlag, price_gaps};
 use model::subject::Subject;
 
 fn subject() -> Subject {
-    Subject::parse(
-        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
-    )
-    .unwrap()
+    acceptance::tessel(2022, 41_000.0)
 }
 
 #[test]
@@ -135,13 +132,7 @@ fn overrides_put_an_excluded_listing_back_and_take_one_out() {
     };
     let segment = market.find_segment("Quellmark", "Tessel").unwrap();
     let fit = fit_market(&market, segment, &settings, &Overrides::new()).unwrap();
-    let excluded = fit
-        .cleaning
-        .rows
-        .iter()
-        .copied()
-        .find(|&r| !fit.cleaning.is_included(r))
-        .unwrap();
+    let excluded = fit.cleaning.set_aside_rows().next().unwrap();
     let kept = fit.included_rows[0];
     let mut overrides = Overrides::new();
     overrides.insert(
@@ -309,25 +300,14 @@ fn constructed_segment(exact: usize, off: usize) -> model::market::Market {
             on_curve * 0.75
         };
         market.push(&model::market::Listing {
-            row: i,
-            line: i as u64 + 2,
-            model_year: 2026 - age,
-            make: "Quellmark".into(),
-            model: "Tessel".into(),
-            variant: None,
-            asking_price: price,
-            miles,
-            condition: model::condition::Condition::Used,
-            listed_on: None,
-            sold_on: None,
-            sale_price: None,
-            vin: None,
             seller: Some(format!("Seller {i}")),
-            location: None,
-            coordinates: None,
-            distance_miles: None,
-            title: None,
-            options: None,
+            ..model::market::Listing::asking(
+                i as u64 + 2,
+                ("Quellmark", "Tessel"),
+                2026 - age,
+                miles,
+                price,
+            )
         });
     }
     market

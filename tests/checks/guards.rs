@@ -5,7 +5,7 @@
 
 use std::sync::OnceLock;
 
-use acceptance::{data_path, demo_market, fit_demo};
+use acceptance::{data_path, demo_market, fit_demo, shared_tessel_fit, tessel};
 use model::adjustment::{AdjustmentKind, UserAdjustment};
 use model::appraisal::{AppraisalRequest, FitSettings, MarketFit, appraise, fit_market};
 use model::clean::Overrides;
@@ -18,12 +18,13 @@ use model::warnings::{Warning, WarningCode, has};
 use proptest::prelude::*;
 
 fn demo() -> &'static (Market, MarketFit) {
-    static DEMO: OnceLock<(Market, MarketFit)> = OnceLock::new();
-    DEMO.get_or_init(|| {
-        let market = demo_market(4_000, 1);
-        let fit = fit_demo(&market, "Quellmark", "Tessel", FitSettings::default());
-        (market, fit)
-    })
+    shared_tessel_fit(4_000, 1, AgeForm::Auto)
+}
+
+/// `subject` appraised on the demo market with the default rules.
+fn on_demo(subject: Subject) -> model::appraisal::Appraisal {
+    let (market, fit) = demo();
+    appraise(market, fit, &AppraisalRequest::new(subject)).unwrap()
 }
 
 fn subject(spec: &str) -> Subject {
@@ -61,15 +62,8 @@ fn fit_small(market: &Market, age_form: AgeForm, as_of: Option<chrono::NaiveDate
 fn a_subject_older_than_the_market_is_warned_and_never_worth_more_than_the_oldest_year() {
     // Regression: the 1990 subject on the demo market was valued at $783,221 by the quadratic
     // curve extrapolated past the data, without a word.
-    let (market, fit) = demo();
-    let old = appraise(
-        market,
-        fit,
-        &AppraisalRequest::new(subject(
-            "year=1990,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
-        )),
-    )
-    .unwrap();
+    let (_, fit) = demo();
+    let old = on_demo(tessel(1990, 41_000.0));
     assert!(
         has(&old.warnings, WarningCode::SubjectYearOutsideMarket),
         "{:?}",
@@ -77,14 +71,7 @@ fn a_subject_older_than_the_market_is_warned_and_never_worth_more_than_the_oldes
     );
     let (_, oldest_age) = fit.model.design().age_range();
     let oldest_year = fit.model.as_of_year() - oldest_age as i32;
-    let at_oldest = appraise(
-        market,
-        fit,
-        &AppraisalRequest::new(subject(&format!(
-            "year={oldest_year},make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used"
-        ))),
-    )
-    .unwrap();
+    let at_oldest = on_demo(tessel(oldest_year, 41_000.0));
     println!(
         "1990: {} ; {oldest_year}: {}",
         old.model_estimate.median, at_oldest.model_estimate.median
@@ -102,15 +89,7 @@ fn a_subject_older_than_the_market_is_warned_and_never_worth_more_than_the_oldes
 #[test]
 fn a_subject_beyond_the_markets_mileage_is_warned() {
     // Regression: 900,000 miles on the demo gave $5,225 without a word.
-    let (market, fit) = demo();
-    let a = appraise(
-        market,
-        fit,
-        &AppraisalRequest::new(subject(
-            "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=900000,condition=used",
-        )),
-    )
-    .unwrap();
+    let a = on_demo(tessel(2022, 900_000.0));
     let w = a
         .warnings
         .iter()
@@ -186,9 +165,7 @@ fn a_subject_typed_in_any_case_finds_its_market() {
 fn few_comparables_large_adjustments_and_disagreement_are_warned() {
     let (market, fit) = demo();
     // Only one model year, no mileage limit, no older than 90 days, and 30 asked for.
-    let mut request = AppraisalRequest::new(subject(
-        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
-    ));
+    let mut request = AppraisalRequest::new(tessel(2022, 41_000.0));
     request.rules.model_year_window = 0;
     request.rules.count = 30;
     request.rules.same_variant_only = true;
@@ -202,9 +179,7 @@ fn few_comparables_large_adjustments_and_disagreement_are_warned() {
         .copied()
         .find(|&r| market.model_year[r] == 2017 && market.variant_name(r) == "Veskel")
         .unwrap();
-    let mut request = AppraisalRequest::new(subject(
-        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
-    ));
+    let mut request = AppraisalRequest::new(tessel(2022, 41_000.0));
     request.choices.include.insert(market.line[far]);
     let a = appraise(market, fit, &request).unwrap();
     let forced = a
@@ -216,9 +191,7 @@ fn few_comparables_large_adjustments_and_disagreement_are_warned() {
     assert!(has(&a.warnings, WarningCode::LargeAdjustments));
     // An appraiser's line adding 40 % to every comparable puts the comparables far from the
     // model: the two disagree by more than the band.
-    let mut request = AppraisalRequest::new(subject(
-        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
-    ));
+    let mut request = AppraisalRequest::new(tessel(2022, 41_000.0));
     request.user_adjustments.push(UserAdjustment {
         line: None,
         kind: AdjustmentKind::Other,
@@ -232,32 +205,18 @@ fn few_comparables_large_adjustments_and_disagreement_are_warned() {
         codes(&a.warnings)
     );
     // The plain demo appraisal has none of these.
-    let plain = appraise(
-        market,
-        fit,
-        &AppraisalRequest::new(subject(
-            "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
-        )),
-    )
-    .unwrap();
+    let plain = on_demo(tessel(2022, 41_000.0));
     assert!(plain.warnings.is_empty(), "{:?}", codes(&plain.warnings));
 }
 
 #[test]
 fn a_forecast_past_the_oldest_listing_is_warned() {
     let (market, fit) = demo();
-    let s = subject("year=2016,make=Quellmark,model=Tessel,variant=Ambrel,miles=98000");
+    let s = tessel(2016, 98_000.0);
     let f = model::forecast::forecast(market, fit, &s, 60.0, None, 0.8).unwrap();
     assert!(has(&f.warnings, WarningCode::ForecastBeyondMarket));
-    let near = model::forecast::forecast(
-        market,
-        fit,
-        &subject("year=2023,make=Quellmark,model=Tessel,variant=Ambrel,miles=30000"),
-        6.0,
-        None,
-        0.8,
-    )
-    .unwrap();
+    let near =
+        model::forecast::forecast(market, fit, &tessel(2023, 30_000.0), 6.0, None, 0.8).unwrap();
     assert!(near.warnings.is_empty(), "{:?}", codes(&near.warnings));
 }
 
@@ -300,25 +259,15 @@ fn a_market_whose_value_rises_with_miles_is_warned_and_flat_beyond_its_miles() {
         let miles = 5_000.0 + 4_000.0 * f64::from(i);
         let price = 30_000.0 * (-0.1 * f64::from(age)).exp() * (0.01 * miles / 10_000.0).exp();
         market.push(&model::market::Listing {
-            row: i as usize,
-            line: u64::from(i) + 2,
-            model_year: 2026 - age as i32,
-            make: "Quellmark".into(),
-            model: "Brindle".into(),
-            variant: None,
-            asking_price: (price * (1.0 + 0.01 * f64::from(i % 3))).round(),
-            miles,
-            condition: Condition::Used,
             listed_on: chrono::NaiveDate::from_ymd_opt(2026, 5, 1),
-            sold_on: None,
-            sale_price: None,
-            vin: None,
             seller: Some(format!("Seller {i}")),
-            location: None,
-            coordinates: None,
-            distance_miles: None,
-            title: None,
-            options: None,
+            ..model::market::Listing::asking(
+                u64::from(i) + 2,
+                ("Quellmark", "Brindle"),
+                2026 - age as i32,
+                miles,
+                (price * (1.0 + 0.01 * f64::from(i % 3))).round(),
+            )
         });
     }
     let segment = market.find_segment("Quellmark", "Brindle").unwrap();
@@ -388,26 +337,16 @@ fn the_data_choose_a_curved_form_on_a_large_market() {
     );
 }
 
-fn form_fits() -> &'static Vec<(Market, MarketFit)> {
-    static FITS: OnceLock<Vec<(Market, MarketFit)>> = OnceLock::new();
+fn form_fits() -> &'static Vec<&'static (Market, MarketFit)> {
+    static FITS: OnceLock<Vec<&'static (Market, MarketFit)>> = OnceLock::new();
     FITS.get_or_init(|| {
-        let mut fits = Vec::new();
-        for form in AgeForm::FITTED {
-            let market = demo_market(3_000, 8);
-            let fit = fit_demo(
-                &market,
-                "Quellmark",
-                "Tessel",
-                FitSettings {
-                    age_form: form,
-                    ..FitSettings::default()
-                },
-            );
-            fits.push((market, fit));
-        }
+        let mut fits: Vec<&'static (Market, MarketFit)> = AgeForm::FITTED
+            .into_iter()
+            .map(|form| shared_tessel_fit(3_000, 8, form))
+            .collect();
         let small = small_export();
         let fit = fit_small(&small, AgeForm::Quadratic, None);
-        fits.push((small, fit));
+        fits.push(Box::leak(Box::new((small, fit))));
         fits
     })
 }

@@ -1,23 +1,15 @@
 //! Invariants checked over generated inputs (proptest).
 
-use std::sync::OnceLock;
-
-use acceptance::{demo_market, fit_demo};
 use linfa::ParamGuard;
 use model::adjustment::{SubjectTerms, model_lines};
-use model::appraisal::{FitSettings, MarketFit};
+use model::appraisal::MarketFit;
 use model::condition::Condition;
 use model::hedonic::{Attributes, HedonicParams};
 use model::market::Market;
 use proptest::prelude::*;
 
 fn shared() -> &'static (Market, MarketFit) {
-    static SHARED: OnceLock<(Market, MarketFit)> = OnceLock::new();
-    SHARED.get_or_init(|| {
-        let market = demo_market(6_000, 21);
-        let fit = fit_demo(&market, "Quellmark", "Tessel", FitSettings::default());
-        (market, fit)
-    })
+    acceptance::shared_tessel_fit(6_000, 21, model::hedonic::AgeForm::Auto)
 }
 
 proptest! {

@@ -173,27 +173,13 @@ fn exponential_depreciation_worked_example() {
         } else {
             3_000.0 + 500.0 * f64::from(age)
         };
-        market.push(&Listing {
-            row: i,
-            line: i as u64 + 2,
-            model_year: 2026 - age,
-            make: "Quellmark".into(),
-            model: "Tessel".into(),
-            variant: None,
-            asking_price: 10_500.0 * (-0.25 * f64::from(age)).exp(),
+        market.push(&Listing::asking(
+            i as u64 + 2,
+            ("Quellmark", "Tessel"),
+            2026 - age,
             miles,
-            condition: Condition::Used,
-            listed_on: None,
-            sold_on: None,
-            sale_price: None,
-            vin: None,
-            seller: None,
-            location: None,
-            coordinates: None,
-            distance_miles: None,
-            title: None,
-            options: None,
-        });
+            10_500.0 * (-0.25 * f64::from(age)).exp(),
+        ));
     }
     let settings = FitSettings {
         age_form: AgeForm::Linear,

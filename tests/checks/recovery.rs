@@ -92,17 +92,8 @@ fn cleaning_removes_the_planted_defects() {
 fn demo_market_depreciates_like_the_trade_says() {
     // Facts of the trade (common practice, no source): a new vehicle loses ~10-25 % in its first
     // year and 40-60 % over five years.
-    let market = demo_market(40_000, 3);
-    let fit = fit_demo(
-        &market,
-        "Quellmark",
-        "Tessel",
-        FitSettings {
-            age_form: AgeForm::PerYear,
-            ..FitSettings::default()
-        },
-    );
-    let table = depreciation_table(&fit.model, &market, 8);
+    let (market, fit) = acceptance::shared_tessel_fit(40_000, 3, AgeForm::PerYear);
+    let table = depreciation_table(&fit.model, market, 8);
     let core = &table.curves[0];
     assert_eq!(core.rows[0].age_years, None, "first row is the new row");
     let at = |age| core.rows.iter().find(|r| r.age_years == Some(age)).unwrap();

@@ -92,7 +92,7 @@ fn a_session_reproduces_after_its_market_file_is_deleted() {
     let dir = scratch_dir("deleted-market");
     let market = dir.join("market.csv");
     std::fs::write(&market, model::demo::demo_csv_bytes(2_000, 1)).unwrap();
-    let session = demo_session(trade_in(), Some(&market.display().to_string()));
+    let session = demo_session(trade_in(), Some(&market));
     let path = dir.join("case.ron");
     write_session(&path, &session).unwrap();
     std::fs::remove_file(&market).unwrap();
@@ -355,11 +355,7 @@ fn a_hand_included_comparable_the_fit_cannot_price_is_refused_and_the_session_re
         ..model::appraisal::FitSettings::default()
     };
     let fit = model::appraisal::fit_market(&market, segment, &settings, &overrides).unwrap();
-    let subject = model::subject::Subject::parse(
-        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
-    )
-    .unwrap();
-    let mut request = model::appraisal::AppraisalRequest::new(subject);
+    let mut request = model::appraisal::AppraisalRequest::new(acceptance::tessel(2022, 41_000.0));
     request.choices.include.insert(tolvane_lines[0]);
     let appraisal = model::appraisal::appraise(&market, &fit, &request).unwrap();
     assert_eq!(appraisal.refused.len(), 1);
@@ -375,29 +371,17 @@ fn a_hand_included_comparable_the_fit_cannot_price_is_refused_and_the_session_re
             .iter()
             .all(|c| c.listing.line != tolvane_lines[0])
     );
-    let at = chrono::DateTime::parse_from_rfc3339("2026-12-01T10:00:00Z")
-        .unwrap()
-        .to_utc();
-    let session = model::session::Session::capture(
-        &model::session::Capture {
-            market: &market,
-            market_path: None,
-            fit: &fit,
-            settings: &settings,
-            overrides: &overrides,
-            request: &request,
-            appraisal: &appraisal,
-            purpose: &Purpose::Value,
-            keep_segment: false,
-        },
-        model::session::Authorship {
-            appraiser: "Test Appraiser (invented)".into(),
-            created: at,
-            saved: at,
-            notes: String::new(),
-        },
-    )
-    .unwrap();
+    let session = acceptance::test_session(&model::session::Capture {
+        market: &market,
+        market_path: None,
+        fit: &fit,
+        settings: &settings,
+        overrides: &overrides,
+        request: &request,
+        appraisal: &appraisal,
+        purpose: &Purpose::Value,
+        keep_segment: false,
+    });
     let dir = scratch_dir("refused");
     let path = dir.join("refused.ron");
     write_session(&path, &session).unwrap();

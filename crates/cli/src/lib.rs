@@ -353,6 +353,7 @@ fn appraise_command(args: &AppraiseArgs) -> Result<()> {
                 )
             })
             .flatten(),
+        worksheet_rows: model::session::worksheet_rows(&purpose, worked.worksheet.as_ref()),
         worksheet: worked.worksheet,
         forecast,
         cautions: model::cautions::CAUTIONS.to_vec(),

@@ -137,6 +137,9 @@ pub struct AppraisalDocument {
     pub market_accuracy: Option<String>,
     /// The trade-in offer or claim settlement, when one was asked for.
     pub worksheet: Option<model::session::WorksheetOutcome>,
+    /// The worksheet as the rows every front end prints (the JSON has `worksheet`).
+    #[serde(skip)]
+    pub worksheet_rows: Vec<model::worksheet::rows::Row>,
     /// Days' supply of the segment, with a trade-in when the file has sale dates.
     pub segment_supply: Option<model::supply::SegmentSupply>,
     pub forecast: Option<Forecast>,

@@ -221,7 +221,7 @@ pub fn appraisal(doc: &AppraisalDocument) -> String {
         );
     }
     if let Some(w) = &doc.worksheet {
-        worksheet(&mut o, w);
+        worksheet(&mut o, w, &doc.worksheet_rows);
     }
     if let Some(s) = &doc.segment_supply {
         let _ = writeln!(o, "  {}", s.describe());
@@ -233,36 +233,28 @@ pub fn appraisal(doc: &AppraisalDocument) -> String {
     o
 }
 
-fn amount_line(o: &mut String, label: &str, amount: impl model::format::Dollars) {
-    let _ = writeln!(
-        o,
-        "  {label:<58} {:>12}",
-        model::format::signed_cents(amount)
-    );
-}
-
 /// The trade-in offer or the claim, every part on its own line.
-fn worksheet(o: &mut String, w: &model::session::WorksheetOutcome) {
+fn worksheet(
+    o: &mut String,
+    w: &model::session::WorksheetOutcome,
+    rows: &[model::worksheet::rows::Row],
+) {
     use model::session::WorksheetOutcome;
+    use model::worksheet::rows::{not_paid_lines, rule_break_lines, verdict_heading};
     let _ = writeln!(o);
     match w {
-        WorksheetOutcome::TradeIn { offer, sensitivity } => {
+        WorksheetOutcome::TradeIn { .. } => {
             let _ = writeln!(o, "Trade-in offer");
-            amount_line(o, "expected retail value", offer.retail_value);
-            amount_line(
-                o,
-                "expected sale after the list-to-sale discount",
-                offer.expected_sale,
-            );
-            for d in &offer.deductions {
-                amount_line(o, &format!("less {}", d.label), -d.amount);
-            }
-            let _ = writeln!(
-                o,
-                "  {:<58} {:>12}",
-                "ACV offer",
-                model::format::cents(offer.offer)
-            );
+        }
+        WorksheetOutcome::Claim(c) => {
+            let _ = writeln!(o, "Total-loss settlement ({})", c.check.profile_id);
+        }
+    }
+    for r in rows {
+        let _ = writeln!(o, "  {:<58} {:>12}", r.label, r.amount_text());
+    }
+    match w {
+        WorksheetOutcome::TradeIn { sensitivity, .. } => {
             let _ = writeln!(o, "  offer by days to sell: {}", sensitivity.by_days_text());
             let _ = writeln!(
                 o,
@@ -271,33 +263,14 @@ fn worksheet(o: &mut String, w: &model::session::WorksheetOutcome) {
             );
         }
         WorksheetOutcome::Claim(c) => {
-            let _ = writeln!(o, "Total-loss settlement ({})", c.check.profile_id);
-            amount_line(o, "actual cash value", c.acv);
-            for l in &c.itemized_in_acv {
-                amount_line(o, &format!("  of which itemized: {}", l.label), l.amount);
+            for line in not_paid_lines(c) {
+                let _ = writeln!(o, "  {line}");
             }
-            for l in &c.settlement.additions {
-                amount_line(o, &format!("plus {}", l.label), l.amount);
-            }
-            for l in &c.settlement.deductions {
-                amount_line(o, &format!("less {}", l.label), -l.amount);
-            }
-            let _ = writeln!(
-                o,
-                "  {:<58} {:>12}",
-                "settlement payment",
-                model::format::cents(c.settlement.payment)
-            );
-            for n in &c.not_paid {
-                let _ = writeln!(o, "  not paid: {} ({})", n.label, n.citation);
-            }
-            let _ = writeln!(o, "Total-loss test: {}", c.verdict.explanation);
+            let _ = writeln!(o, "{}: {}", verdict_heading(c), c.verdict.explanation);
             let _ = writeln!(o, "  rule: {}", c.total_loss_citation);
             let _ = writeln!(o, "Comparables against the profile: {}", c.check.summary());
-            for (i, cc) in c.check.comparables.iter().enumerate() {
-                for b in &cc.breaks {
-                    let _ = writeln!(o, "  comparable {} (line {}): {b}", i + 1, cc.line);
-                }
+            for line in rule_break_lines(&c.check) {
+                let _ = writeln!(o, "  {line}");
             }
         }
     }
@@ -313,7 +286,7 @@ fn comparable(o: &mut String, number: usize, c: &model::appraisal::AdjustedCompa
         l.line,
         l.model_year,
         l.model,
-        l.variant.as_deref().unwrap_or("(no variant)"),
+        model::vocabulary::variant_text(l.variant.as_deref()),
         thousands(l.miles),
         l.condition,
         money(l.asking_price),

@@ -90,17 +90,11 @@ pub struct SaveInputs<'a> {
 pub fn save(args: &AppraiseArgs, out: &Path, s: &SaveInputs<'_>) -> Result<Session> {
     let settings = crate::load::fit_settings(&args.market)?;
     let overrides = crate::load::overrides(&args.market);
-    let path = args.market.file.as_ref().map(|p| {
-        std::fs::canonicalize(p)
-            .unwrap_or_else(|_| p.clone())
-            .display()
-            .to_string()
-    });
     let at = now();
     let session = Session::capture(
         &Capture {
             market: &s.loaded.market,
-            market_path: path.as_deref(),
+            market_path: args.market.file.as_deref(),
             fit: s.fit,
             settings: &settings,
             overrides: &overrides,
@@ -405,56 +399,12 @@ pub fn profiles(path: Option<&Path>, json: bool) -> Result<()> {
         let mut out = String::new();
         for p in &file.profiles {
             let _ = writeln!(out, "{} ({}), reviewed {}", p.name, p.id, p.reviewed);
-            let rows = [
-                (
-                    "fewest comparables",
-                    p.min_comparables.value.to_string(),
-                    p.min_comparables.source(),
-                ),
-                (
-                    "listing age",
-                    p.max_listing_age_days
-                        .value
-                        .map_or("no limit".into(), |d| format!("{d} days")),
-                    p.max_listing_age_days.source(),
-                ),
-                (
-                    "distance",
-                    p.max_distance_miles
-                        .value
-                        .map_or("no limit".into(), |d| format!("{d} mi")),
-                    p.max_distance_miles.source(),
-                ),
-                (
-                    "mileage rule",
-                    p.mileage_rule
-                        .value
-                        .map_or("none".into(), |m| m.to_string()),
-                    p.mileage_rule.source(),
-                ),
-                (
-                    "sales tax paid",
-                    p.sales_tax_paid.value.to_string(),
-                    p.sales_tax_paid.source(),
-                ),
-                (
-                    "title and transfer fees paid",
-                    p.title_and_transfer_fees_paid.value.to_string(),
-                    p.title_and_transfer_fees_paid.source(),
-                ),
-                (
-                    "registration",
-                    p.registration.value.to_string(),
-                    p.registration.source(),
-                ),
-                (
-                    "total-loss rule",
-                    p.total_loss_rule.value.to_string(),
-                    p.total_loss_rule.source(),
-                ),
-            ];
-            for (k, v, s) in rows {
-                let _ = writeln!(out, "  {k:<29} {v}\n  {:<29} source: {s}", "");
+            for r in p.rule_rows() {
+                let _ = writeln!(
+                    out,
+                    "  {:<24} {}\n  {:<24} source: {}",
+                    r.rule, r.value, "", r.source
+                );
             }
             out.push('\n');
         }

@@ -212,11 +212,7 @@ pub fn grid_lines(g: &GridInputs<'_>) -> Vec<AdjustmentLine> {
 }
 
 fn variant_label(market: &Market, variant: NameId) -> &str {
-    if variant == crate::vocabulary::NO_NAME {
-        "(no variant)"
-    } else {
-        market.names.name(variant)
-    }
+    market.names.variant_name(variant)
 }
 
 /// The appraiser's lines that apply to the comparable on `line`.

@@ -210,6 +210,15 @@ impl SegmentCleaning {
             .collect()
     }
 
+    /// Rows set aside from the fit and the comparables (by a rule or by hand), ascending.
+    pub fn set_aside_rows(&self) -> impl Iterator<Item = usize> + '_ {
+        self.rows
+            .iter()
+            .zip(&self.included)
+            .filter(|(_, inc)| !**inc)
+            .map(|(r, _)| *r)
+    }
+
     fn position(&self, row: usize) -> Option<usize> {
         self.rows.binary_search(&row).ok()
     }

@@ -9,7 +9,6 @@ use crate::clean::Overrides;
 use crate::condition::Condition;
 use crate::hedonic::{AgeForm, Attributes, HedonicModel};
 use crate::market::Market;
-use crate::vocabulary::NO_NAME;
 
 /// One age of one variant.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -85,13 +84,7 @@ pub fn depreciation_table(
     } else {
         design.conditions[0]
     };
-    let name = |v| {
-        if v == NO_NAME {
-            "(no variant)".to_owned()
-        } else {
-            market.names.name(v).to_owned()
-        }
-    };
+    let name = |v| market.names.variant_name(v).to_owned();
     let value = |variant, age: u32, condition, miles| {
         model
             .estimate(

@@ -119,6 +119,40 @@ pub struct Listing {
 }
 
 impl Listing {
+    /// A used listing of `make` `model` with only what every listing has: the file line, model
+    /// year, miles and asking price; the optional columns empty (fill them with struct update
+    /// syntax). Its row is its line less the header, as an import numbers it.
+    #[must_use]
+    pub fn asking(
+        line: u64,
+        (make, model): (&str, &str),
+        model_year: i32,
+        miles: f64,
+        asking_price: f64,
+    ) -> Self {
+        Self {
+            row: usize::try_from(line.saturating_sub(2)).unwrap_or(usize::MAX),
+            line,
+            model_year,
+            make: make.to_owned(),
+            model: model.to_owned(),
+            variant: None,
+            asking_price,
+            miles,
+            condition: Condition::Used,
+            listed_on: None,
+            sold_on: None,
+            sale_price: None,
+            vin: None,
+            seller: None,
+            location: None,
+            coordinates: None,
+            distance_miles: None,
+            title: None,
+            options: None,
+        }
+    }
+
     /// Where the evidence came from: "Seller 075, Marrow Bend, VIN QUT…, listed 2026-11-20"
     /// (source, identifier, location and date, as a valuation report must give them).
     #[must_use]
@@ -141,7 +175,7 @@ impl Listing {
             self.line,
             self.model_year,
             self.model,
-            self.variant.as_deref().unwrap_or("(no variant)"),
+            crate::vocabulary::variant_text(self.variant.as_deref()),
             crate::format::thousands(self.miles),
             self.condition,
             crate::format::money(self.asking_price)
@@ -215,21 +249,34 @@ impl Market {
             .collect()
     }
 
+    /// The variant most listings of `segment` carry (ties go to the name first in order);
+    /// `None` when most state none. A subject switched to this segment takes it, so it stays a
+    /// vehicle the market can price.
+    #[must_use]
+    pub fn most_common_variant(&self, segment: Segment) -> Option<String> {
+        let mut counts: std::collections::BTreeMap<&str, (usize, NameId)> =
+            std::collections::BTreeMap::new();
+        for r in self.rows_of(segment) {
+            let id = self.variant[r];
+            counts
+                .entry(self.names.variant_name(id))
+                .or_insert((0, id))
+                .0 += 1;
+        }
+        let (_, (_, id)) = counts.into_iter().rev().max_by_key(|(_, (n, _))| *n)?;
+        self.optional_name(id)
+    }
+
     /// Text of an optional interned column value.
     #[must_use]
     pub fn optional_name(&self, id: NameId) -> Option<String> {
         (id != NO_NAME).then(|| self.names.name(id).to_owned())
     }
 
-    /// Variant text of a row, "(no variant)" when the feed did not state one.
+    /// Variant text of a row, [`crate::vocabulary::NO_VARIANT`] when the feed did not state one.
     #[must_use]
     pub fn variant_name(&self, row: usize) -> &str {
-        let id = self.variant[row];
-        if id == NO_NAME {
-            "(no variant)"
-        } else {
-            self.names.name(id)
-        }
+        self.names.variant_name(self.variant[row])
     }
 
     /// The latest listing or sale date in the market; the natural "as of" date for it.

@@ -87,32 +87,15 @@ mod tests {
     use chrono::NaiveDate;
 
     use super::*;
-    use crate::condition::Condition;
     use crate::market::{Listing, Market};
 
     fn listing(line: u64, listed: i64, sold: Option<i64>) -> Listing {
         let day =
             |n: i64| NaiveDate::from_ymd_opt(2026, 11, 30).map(|d| d - chrono::Duration::days(n));
         Listing {
-            row: 0,
-            line,
-            model_year: 2022,
-            make: "Quellmark".into(),
-            model: "Tessel".into(),
-            variant: None,
-            asking_price: 30_000.0,
-            miles: 40_000.0,
-            condition: Condition::Used,
             listed_on: day(listed),
             sold_on: sold.and_then(day),
-            sale_price: None,
-            vin: None,
-            seller: None,
-            location: None,
-            coordinates: None,
-            distance_miles: None,
-            title: None,
-            options: None,
+            ..Listing::asking(line, ("Quellmark", "Tessel"), 2022, 40_000.0, 30_000.0)
         }
     }
 

@@ -23,6 +23,15 @@ pub type NameId = u32;
 /// The id meaning "no value" in an interned column.
 pub const NO_NAME: NameId = NameId::MAX;
 
+/// How a listing or subject without a variant is printed in every output.
+pub const NO_VARIANT: &str = "(no variant)";
+
+/// A variant as every output prints it: its name, or [`NO_VARIANT`].
+#[must_use]
+pub fn variant_text(variant: Option<&str>) -> &str {
+    variant.unwrap_or(NO_VARIANT)
+}
+
 /// A set of distinct strings, each with a stable small id. A spelling merged into another
 /// ([`Vocabulary::alias`]) answers with the other's id.
 #[derive(Debug, Clone, Default)]
@@ -72,6 +81,16 @@ impl Vocabulary {
         }
     }
 
+    /// A variant's name as every output prints it: [`NO_VARIANT`] for [`NO_NAME`].
+    #[must_use]
+    pub fn variant_name(&self, id: NameId) -> &str {
+        if id == NO_NAME {
+            NO_VARIANT
+        } else {
+            self.name(id)
+        }
+    }
+
     /// The name behind `id`; empty for [`NO_NAME`] or an unknown id.
     #[must_use]
     pub fn name(&self, id: NameId) -> &str {
@@ -98,7 +117,7 @@ mod tests {
     #[test]
     fn names_match_without_case_or_extra_spaces() {
         assert_eq!(name_key("  QUELLMARK "), "quellmark");
-        assert_eq!(name_key("Tessel\t  Ambrel"), "tessel plus");
+        assert_eq!(name_key("Tessel\t  Ambrel"), "tessel ambrel");
         assert_eq!(name_key("ÉCLAT"), "éclat");
         assert_eq!(name_key(""), "");
     }

@@ -1,9 +1,9 @@
 //! What the report says, built from a saved session.
 
-use model::format::{cents, money, signed_cents, signed_money, thousands};
+use model::format::{cents, money, signed_money, thousands};
 use model::reconcile::{BandSource, GROSS_PENALTY};
 use model::session::{Purpose, Session, WorksheetOutcome};
-use model::worksheet::{ClaimWorksheet, HoldingCost, OfferSensitivity, TradeInOffer};
+use model::worksheet::{ClaimWorksheet, OfferSensitivity, TradeInOffer, rows};
 
 use crate::blocks::{Block, Column, Report};
 use crate::figure;
@@ -291,7 +291,7 @@ fn comparables(session: &Session, blocks: &mut Vec<Block>) {
                 format!(
                     "{} {}, {} mi, {}",
                     l.model_year,
-                    l.variant.as_deref().unwrap_or("(no variant)"),
+                    model::vocabulary::variant_text(l.variant.as_deref()),
                     thousands(l.miles),
                     l.condition
                 ),
@@ -408,37 +408,10 @@ fn trade_in(
     blocks: &mut Vec<Block>,
 ) {
     blocks.push(Block::Heading("Trade-in offer".into()));
-    let mut rows = vec![vec![
-        match &inputs.retail_value_note {
-            Some(note) => format!("Expected retail value (edited: {note})"),
-            None => "Expected retail value (the indicated value)".to_owned(),
-        },
-        cents(offer.retail_value),
-    ]];
-    rows.push(vec![
-        format!(
-            "Expected sale after a {} % list-to-sale discount",
-            inputs.list_to_sale_discount_pct
-        ),
-        cents(offer.expected_sale),
-    ]);
-    for d in &offer.deductions {
-        rows.push(vec![format!("less {}", d.label), signed_cents(-d.amount)]);
-    }
-    rows.push(vec!["ACV offer".into(), cents(offer.offer)]);
-    blocks.push(Block::Table {
-        columns: vec![Column::text("", 5.0), Column::number("Amount", 1.2)],
-        rows,
-    });
-    let holding = match inputs.holding {
-        HoldingCost::PerDay { amount } => format!("{} per day", money(amount)),
-        HoldingCost::RateOnOffer { annual_pct } => {
-            format!("{annual_pct} % a year on the offer")
-        }
-    };
+    worksheet_table(&rows::trade_in_rows(inputs, offer), blocks);
     blocks.push(Block::Paragraph(format!(
-        "Holding cost: {holding} for {} days. The offer at other days to sell and across the value band:",
-        inputs.days_to_sell
+        "Holding cost: {}. The offer at other days to sell and across the value band:",
+        rows::holding_text(inputs)
     )));
     let mut rows: Vec<Vec<String>> = sensitivity
         .by_days
@@ -458,6 +431,26 @@ fn trade_in(
     });
 }
 
+/// A worked worksheet's rows as a two-column table, the amounts included in the one above
+/// indented beneath it.
+fn worksheet_table(worked: &[rows::Row], blocks: &mut Vec<Block>) {
+    let rows = worked
+        .iter()
+        .map(|r| {
+            let label = if r.kind == rows::RowKind::Included {
+                format!("   {}", r.label)
+            } else {
+                r.label.clone()
+            };
+            vec![label, r.amount_text()]
+        })
+        .collect();
+    blocks.push(Block::Table {
+        columns: vec![Column::text("", 5.0), Column::number("Amount", 1.2)],
+        rows,
+    });
+}
+
 fn claim(
     session: &Session,
     profile: &model::worksheet::JurisdictionProfile,
@@ -468,57 +461,21 @@ fn claim(
         "Total-loss settlement under the {} profile",
         profile.name
     )));
-    let mut rows = vec![vec![
-        "Actual cash value (the indicated value)".to_owned(),
-        cents(worked.acv),
-    ]];
-    for l in &worked.itemized_in_acv {
-        rows.push(vec![
-            format!("   of which, itemized: {}", l.label),
-            signed_cents(l.amount),
-        ]);
-    }
-    for l in &worked.settlement.additions {
-        rows.push(vec![format!("plus {}", l.label), signed_cents(l.amount)]);
-    }
-    for l in &worked.settlement.deductions {
-        rows.push(vec![format!("less {}", l.label), signed_cents(-l.amount)]);
-    }
-    rows.push(vec![
-        "Settlement payment".into(),
-        cents(worked.settlement.payment),
-    ]);
-    blocks.push(Block::Table {
-        columns: vec![Column::text("", 5.0), Column::number("Amount", 1.2)],
-        rows,
-    });
-    if !worked.not_paid.is_empty() {
-        blocks.push(Block::List(
-            worked
-                .not_paid
-                .iter()
-                .map(|n| format!("Not paid: {} ({})", n.label, n.citation))
-                .collect(),
-        ));
+    worksheet_table(&rows::claim_rows(worked), blocks);
+    let not_paid = rows::not_paid_lines(worked);
+    if !not_paid.is_empty() {
+        blocks.push(Block::List(not_paid));
     }
     blocks.push(Block::Heading("Total-loss test".into()));
     blocks.push(Block::Paragraph(format!(
-        "{}. Rule: {}.",
-        worked.verdict.explanation, worked.total_loss_citation
+        "{}. {}. Rule: {}.",
+        rows::verdict_heading(worked),
+        worked.verdict.explanation,
+        worked.total_loss_citation
     )));
     blocks.push(Block::Heading("Comparables against the profile".into()));
     blocks.push(Block::Paragraph(worked.check.summary()));
-    let breaks: Vec<String> = worked
-        .check
-        .comparables
-        .iter()
-        .enumerate()
-        .flat_map(|(i, c)| {
-            c.breaks
-                .iter()
-                .map(move |b| format!("Comparable {} (market line {}): {b}", i + 1, c.line))
-        })
-        .collect();
+    let breaks = rows::rule_break_lines(&worked.check);
     if !breaks.is_empty() {
         blocks.push(Block::List(breaks));
     }
@@ -530,73 +487,12 @@ fn profile_rules(
     profile: &model::worksheet::JurisdictionProfile,
     blocks: &mut Vec<Block>,
 ) {
-    blocks.push(Block::Heading(
-        "The profile's rules and their sources".into(),
-    ));
-    let mut rows = vec![
-        vec![
-            "Fewest comparables".into(),
-            profile.min_comparables.value.to_string(),
-            profile.min_comparables.source(),
-        ],
-        vec![
-            "Listing age".into(),
-            profile
-                .max_listing_age_days
-                .value
-                .map_or("no limit".into(), |d| format!("at most {d} days")),
-            profile.max_listing_age_days.source(),
-        ],
-        vec![
-            "Distance".into(),
-            profile
-                .max_distance_miles
-                .value
-                .map_or("no limit".into(), |d| format!("at most {d:.0} mi")),
-            profile.max_distance_miles.source(),
-        ],
-        vec![
-            "Mileage".into(),
-            profile
-                .mileage_rule
-                .value
-                .map_or("no rule".into(), |m| m.to_string()),
-            profile.mileage_rule.source(),
-        ],
-        vec![
-            "Sales tax".into(),
-            if profile.sales_tax_paid.value {
-                "paid"
-            } else {
-                "not paid"
-            }
-            .into(),
-            profile.sales_tax_paid.source(),
-        ],
-        vec![
-            "Title and transfer fees".into(),
-            if profile.title_and_transfer_fees_paid.value {
-                "paid"
-            } else {
-                "not paid"
-            }
-            .into(),
-            profile.title_and_transfer_fees_paid.source(),
-        ],
-        vec![
-            "Total-loss rule".into(),
-            profile.total_loss_rule.value.to_string(),
-            profile.total_loss_rule.source(),
-        ],
-        vec![
-            "Registration".into(),
-            profile.registration.value.to_string(),
-            profile.registration.source(),
-        ],
-    ];
-    if let Some(doc) = &profile.documentation {
-        rows.push(vec!["Records".into(), doc.value.clone(), doc.source()]);
-    }
+    blocks.push(Block::Heading(rows::PROFILE_RULES_HEADING.into()));
+    let rows = profile
+        .rule_rows()
+        .into_iter()
+        .map(|r| vec![r.rule.to_owned(), r.value, r.source])
+        .collect();
     blocks.push(Block::Table {
         columns: vec![
             Column::text("Rule", 1.3),

@@ -43,12 +43,7 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
             });
         forecast_ui(&mut columns[1], cx);
     });
-    let subject_variant = cx
-        .document
-        .subject
-        .variant
-        .clone()
-        .unwrap_or_else(|| "(no variant)".into());
+    let subject_variant = model::vocabulary::variant_text(cx.document.subject.variant.as_deref());
     let Some(curve) = table
         .curves
         .iter()

@@ -8,8 +8,8 @@ use model::hedonic::{Attributes, age_years};
 
 use super::density::{Bounds, Plotted, View, exact_groups, extent, place};
 use super::{
-    PaneContext, after_chart, cached, cached_in, current_view, draw_cells, fit_id,
-    follow_selection, inputs_key, listing_plot, nearest,
+    ChartListings, PaneContext, cached, cached_in, comparable_rings, draw_cells, fit_id,
+    inputs_key, listing_chart, listing_plot,
 };
 use crate::palette::{SUBJECT, condition_shape, faded, ink_for, marker, variant_color};
 use report::visual::Shape;
@@ -138,42 +138,27 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
         subject.model_year - window,
         subject.model_year + window,
     ));
-    let view_id = ui.scope_id().with("mileage_chart_view");
     let below_id = ui.scope_id().with("mileage_chart_below");
-    let mut hovered = None;
-    let mut shown = None;
     let plot =
         listing_plot(ui, "value_by_mileage", Legend::default(), data.extent).x_axis_label("miles");
-    let follow_id = view_id.with("follow");
-    let response = plot.show(ui, |plot| {
-        let selected = cx.selection.selected;
-        follow_selection(
-            plot,
-            follow_id,
-            selected,
-            selected
-                .filter(|&r| {
-                    (cx.market.model_year[r] - cx.document.subject.model_year).abs() <= window
-                })
-                .map(|r| [cx.market.miles[r], cx.market.asking_price[r]]),
-        );
-        let (view, bounds) = current_view(plot, view_id, key, &data.all);
+    let selected_at = cx
+        .selection
+        .selected
+        .filter(|&r| (cx.market.model_year[r] - subject.model_year).abs() <= window)
+        .map(|r| [cx.market.miles[r], cx.market.asking_price[r]]);
+    let listings = ChartListings {
+        name: "mileage_chart_view",
+        key,
+        all: &data.all,
+        selected_at,
+    };
+    listing_chart(ui, cx, plot, &listings, |plot, cx, view, bounds| {
         let below_key = inputs_key(&[&key, &bounds.key(), &cx.document.level]);
         let below = cached_in(plot.ctx(), below_id, below_key, || {
-            below_band(cx, &data, &view)
+            below_band(cx, &data, view)
         });
-        let drawn = draw(plot, cx, &data, &view, &curve, &below);
-        hovered = nearest(plot, &drawn, 8.0);
-        shown = Some(view);
+        draw(plot, cx, &data, view, &curve, &below)
     });
-    after_chart(
-        ui,
-        cx,
-        hovered,
-        &response.response,
-        shown.as_deref(),
-        data.all.len(),
-    );
 }
 
 /// Draws the chart; returns the listings drawn one by one (for picking).
@@ -239,18 +224,7 @@ fn draw(
         .color(ink),
     );
     if let Some(a) = cx.appraisal {
-        let comps: Vec<[f64; 2]> = a
-            .comparables
-            .iter()
-            .map(|c| [c.listing.miles, c.listing.asking_price])
-            .collect();
-        plot.points(
-            Points::new("comparables", comps)
-                .shape(marker(Shape::Ring))
-                .filled(false)
-                .radius(8.0)
-                .color(ink),
-        );
+        comparable_rings(plot, a, 8.0, ink, |l| [l.miles, l.asking_price]);
         plot.points(
             Points::new(
                 "subject",

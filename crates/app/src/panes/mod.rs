@@ -121,11 +121,7 @@ impl PaneContext<'_> {
     }
 
     fn name_of(&self, id: model::vocabulary::NameId) -> String {
-        if id == model::vocabulary::NO_NAME {
-            "(no variant)".to_owned()
-        } else {
-            self.market.names.name(id).to_owned()
-        }
+        self.market.names.variant_name(id).to_owned()
     }
 
     /// Name of the `index`-th variant in color order.
@@ -210,7 +206,7 @@ pub fn jitter(row: usize) -> f64 {
 
 /// The drawn point nearest to the pointer, within `radius_px`.
 #[must_use]
-pub fn nearest(
+fn nearest(
     plot: &egui_plot::PlotUi<'_>,
     points: &[(usize, [f64; 2])],
     radius_px: f32,
@@ -369,7 +365,7 @@ pub fn listing_plot<'a>(
 /// What a chart shows of `all` in its current view (cached; asks for one more frame when the
 /// view changed, since plot bounds lag a frame behind a zoom), with the bounds.
 #[must_use]
-pub fn current_view(
+fn current_view(
     plot: &egui_plot::PlotUi<'_>,
     id: egui::Id,
     key: u64,
@@ -383,8 +379,90 @@ pub fn current_view(
     (view, bounds)
 }
 
+/// The listings a chart plots.
+#[derive(Clone, Copy)]
+pub struct ChartListings<'a> {
+    /// Names the chart's remembered view.
+    pub name: &'a str,
+    /// Changes when the listings or their places change.
+    pub key: u64,
+    /// Every listing the chart can show.
+    pub all: &'a [density::Plotted],
+    /// Where the selected listing is, when this chart shows it.
+    pub selected_at: Option<[f64; 2]>,
+}
+
+/// Draws a chart of listings the way both listing charts behave: the selected listing (at
+/// `selected_at` in plot coordinates) kept in view, the points thinned to the visible region
+/// (cached under `view_key`), drawn by `draw` (which returns the listings drawn one by one, for
+/// picking), and hover and click linked to the selection.
+pub fn listing_chart(
+    ui: &mut Ui,
+    cx: &mut PaneContext<'_>,
+    plot: egui_plot::Plot<'_>,
+    listings: &ChartListings<'_>,
+    draw: impl FnOnce(
+        &mut egui_plot::PlotUi<'_>,
+        &PaneContext<'_>,
+        &density::View,
+        &density::Bounds,
+    ) -> Vec<(usize, [f64; 2])>,
+) {
+    let ChartListings {
+        name,
+        key,
+        all,
+        selected_at,
+    } = *listings;
+    let view_id = ui.scope_id().with(name);
+    let mut hovered = None;
+    let mut shown = None;
+    let response = plot.show(ui, |plot| {
+        follow_selection(
+            plot,
+            view_id.with("follow"),
+            cx.selection.selected,
+            selected_at,
+        );
+        let (view, bounds) = current_view(plot, view_id, key, all);
+        let drawn = draw(plot, cx, &view, &bounds);
+        hovered = nearest(plot, &drawn, 8.0);
+        shown = Some(view);
+    });
+    after_chart(
+        ui,
+        cx,
+        hovered,
+        &response.response,
+        shown.as_deref(),
+        all.len(),
+    );
+}
+
+/// The appraisal's comparables as hollow rings in the plot's ink, placed by `at`.
+pub fn comparable_rings(
+    plot: &mut egui_plot::PlotUi<'_>,
+    appraisal: &Appraisal,
+    radius: f32,
+    ink: egui::Color32,
+    at: impl Fn(&model::market::Listing) -> [f64; 2],
+) {
+    let points: Vec<[f64; 2]> = appraisal
+        .comparables
+        .iter()
+        .map(|c| at(&c.listing))
+        .collect();
+    plot.points(
+        egui_plot::Points::new("comparables", points)
+            .shape(crate::palette::marker(report::visual::Shape::Ring))
+            .filled(false)
+            .radius(radius)
+            .color(ink),
+    );
+}
+
 /// After a chart: link the hovered listing, and say under the chart what it shows.
-pub fn after_chart(
+fn after_chart(
     ui: &mut Ui,
     cx: &mut PaneContext<'_>,
     hovered: Option<usize>,

@@ -59,7 +59,7 @@ pub fn ui(ui: &mut Ui, session: &Session, reproduction: &Reproduction) {
                         "{} {} {}, {} mi, {}",
                         l.model_year,
                         l.model,
-                        l.variant.as_deref().unwrap_or("(no variant)"),
+                        model::vocabulary::variant_text(l.variant.as_deref()),
                         model::format::thousands(l.miles),
                         l.condition
                     ))
@@ -86,7 +86,7 @@ pub fn ui(ui: &mut Ui, session: &Session, reproduction: &Reproduction) {
                 }
             });
         ui.separator();
-        super::worksheet::outcome_ui(ui, &reproduction.outcome);
+        super::worksheet::outcome_ui(ui, &session.purpose, &reproduction.outcome);
         if !session.authorship.notes.is_empty() {
             ui.separator();
             ui.strong("Notes");

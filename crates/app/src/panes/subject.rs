@@ -34,19 +34,15 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
             ui.end_row();
 
             let label = ui.label("Variant");
-            let current = subject
-                .variant
-                .clone()
-                .unwrap_or_else(|| "(no variant)".into());
+            let current = model::vocabulary::variant_text(subject.variant.as_deref());
             let combo = egui::ComboBox::from_id_salt("subject_variant")
-                .selected_text(current.clone())
+                .selected_text(current)
                 .show_ui(ui, |ui| {
-                    for index in 0..cx.fit.model.design().variants.len() {
-                        let name = cx.variant_label(index);
-                        if ui.selectable_label(name == current, name.clone()).clicked()
-                            && name != current
-                        {
-                            let value = (name != "(no variant)").then_some(name);
+                    for id in cx.color_order() {
+                        let value = cx.market.optional_name(id);
+                        let chosen = value == subject.variant;
+                        let name = cx.market.names.variant_name(id);
+                        if ui.selectable_label(chosen, name).clicked() && !chosen {
                             cx.commands.push(Command::SetSubjectVariant(value));
                         }
                     }
@@ -124,29 +120,21 @@ fn override_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, row: usize, line: u64) {
 /// Make and model: any model in the file. Switching keeps the year and miles and takes the new
 /// model's most common variant, so the subject stays one the market can price.
 fn model_selector_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, subject: &Subject) {
-    let current = format!("{} {}", subject.make, subject.model);
+    // The fitted segment is the subject's (the fit follows the subject's make and model).
+    let current = cx.fit.segment;
     let label = ui.label("Make and model");
     let combo = egui::ComboBox::from_id_salt("subject_model")
-        .selected_text(current.clone())
+        .selected_text(format!("{} {}", subject.make, subject.model))
         .show_ui(ui, |ui| {
             for (segment, count) in cx.market.segments() {
-                let name = cx.market.segment_name(segment);
                 let text = format!(
-                    "{name} ({} listings)",
+                    "{} ({} listings)",
+                    cx.market.segment_name(segment),
                     model::format::thousands(count as f64)
                 );
-                if ui.selectable_label(name == current, text).clicked() && name != current {
-                    let rows = cx.market.rows_of(segment);
-                    let mut counts: std::collections::BTreeMap<&str, usize> =
-                        std::collections::BTreeMap::new();
-                    for &r in &rows {
-                        *counts.entry(cx.market.variant_name(r)).or_default() += 1;
-                    }
-                    let variant = counts
-                        .into_iter()
-                        .max_by_key(|(_, n)| *n)
-                        .map(|(v, _)| v.to_owned())
-                        .filter(|v| v != "(no variant)");
+                let chosen = segment == current;
+                if ui.selectable_label(chosen, text).clicked() && !chosen {
+                    let variant = cx.market.most_common_variant(segment);
                     cx.commands.push(Command::SetSubject(Subject {
                         make: cx.market.names.name(segment.make).to_owned(),
                         model: cx.market.names.name(segment.model).to_owned(),

@@ -11,8 +11,8 @@ use report::visual::Shape;
 
 use super::density::{Bounds, Plotted, View, exact_groups, extent, place};
 use super::{
-    PaneContext, after_chart, cached, current_view, draw_cells, fit_id, follow_selection,
-    inputs_key, jitter, listing_plot, nearest,
+    ChartListings, PaneContext, cached, comparable_rings, draw_cells, fit_id, inputs_key, jitter,
+    listing_chart, listing_plot,
 };
 use crate::palette::{SUBJECT, condition_shape, faded, marker, variant_color};
 
@@ -104,9 +104,6 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     ui.label(
         "Circles used, squares certified, diamonds new; hollow and faded: excluded from the fit.",
     );
-    let view_id = ui.scope_id().with("year_chart_view");
-    let mut hovered = None;
-    let mut shown = None;
     let plot = listing_plot(
         ui,
         "price_by_year",
@@ -114,33 +111,21 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
         data.extent,
     )
     .x_axis_label("model year");
-    let follow_id = view_id.with("follow");
-    let response = plot.show(ui, |plot| {
-        let selected = cx.selection.selected;
-        follow_selection(
-            plot,
-            follow_id,
-            selected,
-            selected.map(|r| {
-                [
-                    f64::from(cx.market.model_year[r]) + jitter(r),
-                    cx.market.asking_price[r],
-                ]
-            }),
-        );
-        let (view, _) = current_view(plot, view_id, key, &data.all);
-        let drawn = draw(plot, cx, &data, &view);
-        hovered = nearest(plot, &drawn, 8.0);
-        shown = Some(view);
+    let selected_at = cx.selection.selected.map(|r| {
+        [
+            f64::from(cx.market.model_year[r]) + jitter(r),
+            cx.market.asking_price[r],
+        ]
     });
-    after_chart(
-        ui,
-        cx,
-        hovered,
-        &response.response,
-        shown.as_deref(),
-        data.all.len(),
-    );
+    let listings = ChartListings {
+        name: "year_chart_view",
+        key,
+        all: &data.all,
+        selected_at,
+    };
+    listing_chart(ui, cx, plot, &listings, |plot, cx, view, _| {
+        draw(plot, cx, &data, view)
+    });
 }
 
 /// The neutral ink of the plot's theme.
@@ -188,7 +173,7 @@ fn draw(
         );
     }
     let subject = &cx.document.subject;
-    let variant = subject.variant.as_deref().unwrap_or("(no variant)");
+    let variant = model::vocabulary::variant_text(subject.variant.as_deref());
     plot.line(
         Line::new(
             format!("fitted: {variant}, used, typical miles"),
@@ -198,23 +183,9 @@ fn draw(
         .width(1.5),
     );
     if let Some(a) = cx.appraisal {
-        let comparables: Vec<[f64; 2]> = a
-            .comparables
-            .iter()
-            .map(|c| {
-                [
-                    f64::from(c.listing.model_year) + jitter(c.listing.row),
-                    c.listing.asking_price,
-                ]
-            })
-            .collect();
-        plot.points(
-            Points::new("comparables", comparables)
-                .shape(marker(Shape::Ring))
-                .filled(false)
-                .radius(6.0)
-                .color(ink),
-        );
+        comparable_rings(plot, a, 6.0, ink, |l| {
+            [f64::from(l.model_year) + jitter(l.row), l.asking_price]
+        });
         let x = f64::from(subject.model_year);
         let band = a.reconciliation.value_band;
         plot.line(

@@ -8,7 +8,8 @@ use eframe::egui::{self, RichText, Ui};
 use model::format::money;
 
 use super::Workbench;
-use super::case_file::{FilePrompt, MarketState, Opened, Recovery};
+use super::case_file::{FilePrompt, MarketState, Opened};
+use super::recovery::Recovery;
 use crate::document::MarketSource;
 use crate::notice::Notice;
 

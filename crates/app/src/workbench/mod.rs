@@ -1,8 +1,8 @@
 //! The workbench: owns the document, preferences and runtime, lays out the panes and applies
 //! their commands in one place. Its concerns live in their own files: the background jobs
 //! (`background.rs`), the toolbar and shortcuts (`toolbar.rs`), the import report, help and
-//! waiting windows (`windows.rs`), the case file's logic (`case_file.rs`) and its windows and
-//! banner (`case_windows.rs`).
+//! waiting windows (`windows.rs`), the case file's logic (`case_file.rs`), its windows and
+//! banner (`case_windows.rs`) and the recovery file for unsaved work (`recovery.rs`).
 
 use eframe::egui::util::undoer::{Settings as UndoSettings, Undoer};
 use eframe::egui::{self, Ui};
@@ -11,10 +11,12 @@ use model::worksheet::ProfileFile;
 mod background;
 mod case_file;
 mod case_windows;
+mod recovery;
 mod toolbar;
 mod windows;
 
-pub use case_file::{AUTOSAVE_SECONDS, CaseFile, FilePrompt, MarketState, Opened, Recovery};
+pub use case_file::{CaseFile, FilePrompt, MarketState, Opened};
+pub use recovery::{AUTOSAVE_SECONDS, Recovery};
 
 use crate::command::{Command, apply};
 use crate::document::AppraisalDocument;

@@ -6,14 +6,14 @@ use std::path::PathBuf;
 
 use app::Workbench;
 use app::command::Command;
-use app::document::{AppraisalDocument, MarketSource, default_claim_inputs, default_trade_in};
+use app::document::{AppraisalDocument, MarketSource, default_trade_in};
 use app::workbench::{CentralView, MarketState};
 use eframe::egui;
 use egui_kittest::kittest::Queryable;
 use model::format::cents;
 use model::session::{Purpose, WorksheetOutcome, work_out};
 
-use crate::support::{SMALL_DEMO, harness_on, scratch, workbench_on};
+use crate::support::{SMALL_DEMO, harness_on, indicated, scratch, workbench_on};
 
 fn bottom_line(wb: &Workbench) -> model::money::Cents {
     let doc = wb.document();
@@ -49,14 +49,7 @@ fn a_trade_in_from_the_demo_is_worked_saved_and_reopened_to_the_same_numbers() {
     let path = dir.join("trade.ron");
     harness.state_mut().save_session(&path).unwrap();
     assert!(!harness.state().has_unsaved_changes());
-    let value = harness
-        .state()
-        .runtime()
-        .appraisal
-        .as_ref()
-        .unwrap()
-        .reconciliation
-        .indicated_value;
+    let value = indicated(harness.state());
 
     // A fresh workbench reopens it live (the demo market regenerates to the same bytes).
     let mut other = workbench_on(AppraisalDocument::demo(SMALL_DEMO / 2));
@@ -78,16 +71,7 @@ fn a_trade_in_from_the_demo_is_worked_saved_and_reopened_to_the_same_numbers() {
 #[test]
 fn a_claim_shows_the_settlement_the_profile_check_and_the_cautions() {
     let mut wb = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
-    let ny = wb.profiles().get("ny").unwrap().clone();
-    let mut inputs = default_claim_inputs(&ny);
-    inputs.sales_tax_pct = 8.0;
-    inputs.title_fee = model::money::Cents::whole_dollars(50);
-    inputs.repair_estimate = model::money::Cents::whole_dollars(25_000);
-    inputs.salvage_value = model::money::Cents::whole_dollars(5_000);
-    wb.apply(Command::ChoosePurpose(Purpose::Claim {
-        profile: ny,
-        inputs,
-    }));
+    crate::support::claim_in_new_york(&mut wb, 25_000);
     wb.wait_for_jobs();
     wb.show_view(CentralView::Worksheet);
     let payment = bottom_line(&wb);
@@ -171,13 +155,7 @@ fn a_session_whose_market_file_changed_offers_to_rerun_on_the_new_data() {
     wb.wait_for_jobs();
     let path = dir.join("case.ron");
     wb.save_session(&path).unwrap();
-    let saved_value = wb
-        .runtime()
-        .appraisal
-        .as_ref()
-        .unwrap()
-        .reconciliation
-        .indicated_value;
+    let saved_value = indicated(&wb);
     // Another market in the same place.
     std::fs::write(&market, model::demo::demo_csv_bytes(3_000, 6)).unwrap();
 
@@ -196,13 +174,7 @@ fn a_session_whose_market_file_changed_offers_to_rerun_on_the_new_data() {
     let wb = harness.state();
     assert!(wb.case_file().opened.as_ref().unwrap().live);
     assert_eq!(wb.document().market, MarketSource::File(market));
-    let now = wb
-        .runtime()
-        .appraisal
-        .as_ref()
-        .unwrap()
-        .reconciliation
-        .indicated_value;
+    let now = indicated(wb);
     assert_ne!(
         cents(now),
         cents(saved_value),
@@ -390,4 +362,40 @@ fn a_recovery_file_that_cannot_be_written_is_said_not_dropped() {
     assert!(notice.is_failure(), "{notice:?}");
     assert!(notice.text.contains("recovery file"), "{}", notice.text);
     harness.get_by_label_contains("could not be written to the recovery file");
+}
+
+#[test]
+fn the_worksheet_shows_every_row_as_the_command_line_and_the_report_word_it() {
+    // The sample trade-in and claim, reopened live: every row of the worded worksheet
+    // (model::worksheet::rows, which the command line and the report print too) is on screen
+    // with its amount, the bottom line in large type.
+    let samples = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../../sample-sessions");
+    for name in ["dealer-trade-in", "total-loss-claim"] {
+        let path = samples.join(format!("{name}.ron"));
+        let saved = model::session::read_session(&path).unwrap();
+        let mut wb = workbench_on(AppraisalDocument::demo(SMALL_DEMO / 3));
+        wb.open_session(&path).unwrap();
+        wb.wait_for_jobs();
+        assert!(wb.case_file().opened.as_ref().unwrap().live, "{name}");
+        wb.show_view(CentralView::Worksheet);
+        let harness = harness_on(wb);
+        let rows = model::session::worksheet_rows(&saved.purpose, saved.result.worksheet.as_ref());
+        assert!(rows.len() >= 3, "{name}");
+        for r in &rows {
+            let shown = |text: &str| harness.query_all_by_label(text).next().is_some();
+            if r.kind == model::worksheet::rows::RowKind::Result {
+                assert!(
+                    shown(&format!("{}: {}", r.label, r.amount_text())),
+                    "{name}: {r:?}"
+                );
+            } else {
+                assert!(shown(&r.label), "{name}: {} not shown", r.label);
+                assert!(
+                    shown(&r.amount_text()),
+                    "{name}: {} not shown",
+                    r.amount_text()
+                );
+            }
+        }
+    }
 }

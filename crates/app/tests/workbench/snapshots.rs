@@ -4,14 +4,11 @@
 //! images before committing them.
 
 use app::Workbench;
-use app::command::Command;
-use app::document::{AppraisalDocument, default_claim_inputs};
-use app::preferences::Preferences;
+use app::document::AppraisalDocument;
 use app::workbench::CentralView;
 use cpu_render::CpuRenderer;
 use eframe::egui;
 use egui_kittest::{Harness, SnapshotOptions};
-use model::session::Purpose;
 
 /// How far one pixel's color may move (YIQ distance, kittest's measure) before it counts as
 /// changed, and how many changed pixels a snapshot tolerates. The CPU renderer is
@@ -42,33 +39,15 @@ fn harness(mut wb: Workbench) -> Harness<'static, Workbench> {
 
 #[test]
 fn the_demo_appraisal_looks_as_it_should() {
-    let wb = Workbench::with_document(
-        AppraisalDocument::demo(4_000),
-        Preferences::default(),
-        || {},
-    );
+    let wb = crate::support::workbench_on(AppraisalDocument::demo(4_000));
     let mut harness = harness(wb);
     snapshot(&mut harness, "demo_appraisal");
 }
 
 #[test]
 fn the_claim_worksheet_looks_as_it_should() {
-    let mut wb = Workbench::with_document(
-        AppraisalDocument::demo(4_000),
-        Preferences::default(),
-        || {},
-    );
-    let ny = wb.profiles().get("ny").unwrap().clone();
-    let mut inputs = default_claim_inputs(&ny);
-    inputs.sales_tax_pct = 8.0;
-    inputs.title_fee = model::money::Cents::whole_dollars(50);
-    inputs.transfer_fee = model::money::Cents::whole_dollars(25);
-    inputs.repair_estimate = model::money::Cents::whole_dollars(24_000);
-    inputs.salvage_value = model::money::Cents::whole_dollars(5_000);
-    wb.apply(Command::ChoosePurpose(Purpose::Claim {
-        profile: ny,
-        inputs,
-    }));
+    let mut wb = crate::support::workbench_on(AppraisalDocument::demo(4_000));
+    crate::support::claim_in_new_york(&mut wb, 24_000);
     wb.show_view(CentralView::Worksheet);
     let mut harness = harness(wb);
     snapshot(&mut harness, "claim_worksheet");

@@ -4,10 +4,13 @@
 use std::path::PathBuf;
 
 use app::Workbench;
+use app::command::Command;
 use app::document::AppraisalDocument;
 use app::preferences::Preferences;
 use eframe::egui;
 use egui_kittest::Harness;
+use model::money::Cents;
+use model::session::Purpose;
 
 /// Listings of the demo market most checks run on: enough for every segment to fit, small
 /// enough to import in a moment.
@@ -40,6 +43,34 @@ pub fn scratch(name: &str) -> PathBuf {
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).unwrap();
     dir
+}
+
+/// Turns the appraisal into a New York total-loss claim: 8 % sales tax, $50 title and $25
+/// transfer fees, $5,000 salvage and the given repair estimate in dollars (invented figures).
+pub fn claim_in_new_york(wb: &mut Workbench, repair_dollars: i64) {
+    let ny = wb.profiles().get("ny").expect("shipped profile").clone();
+    let mut inputs = app::document::default_claim_inputs(&ny);
+    inputs.sales_tax_pct = 8.0;
+    inputs.title_fee = Cents::whole_dollars(50);
+    inputs.transfer_fee = Cents::whole_dollars(25);
+    inputs.repair_estimate = Cents::whole_dollars(repair_dollars);
+    inputs.salvage_value = Cents::whole_dollars(5_000);
+    wb.apply(Command::ChoosePurpose(Purpose::Claim {
+        profile: ny,
+        inputs,
+    }));
+}
+
+/// The listings of the appraisal's comparables, in the table's order.
+pub fn comparables(wb: &Workbench) -> Vec<model::market::Listing> {
+    wb.runtime()
+        .appraisal
+        .as_ref()
+        .expect("appraised")
+        .comparables
+        .iter()
+        .map(|c| c.listing.clone())
+        .collect()
 }
 
 /// The indicated value on screen.

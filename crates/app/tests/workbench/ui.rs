@@ -4,11 +4,10 @@
 use app::Workbench;
 use app::command::Command;
 use app::document::{AppraisalDocument, MarketSource};
-use app::preferences::Preferences;
 use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
 
-use crate::support::{SMALL_DEMO, harness_on, indicated, workbench};
+use crate::support::{SMALL_DEMO, comparables, harness_on, indicated, workbench};
 
 #[test]
 fn starts_on_the_demo_with_a_finished_appraisal() {
@@ -53,9 +52,7 @@ fn picking_a_listing_as_subject_updates_the_comparables_and_value() {
 fn excluding_a_comparable_changes_the_value_and_undo_restores_it() {
     let mut wb = workbench();
     let before = indicated(&wb);
-    let first = wb.runtime().appraisal.as_ref().unwrap().comparables[0]
-        .listing
-        .line;
+    let first = comparables(&wb)[0].line;
     wb.apply(Command::ExcludeComparable(first));
     wb.wait_for_jobs();
     assert_ne!(indicated(&wb), before);
@@ -79,9 +76,7 @@ fn a_bad_file_shows_the_import_report_and_keeps_the_market() {
     .unwrap();
     let mut wb = workbench();
     // A hand choice made before the failed open must survive it, with the appraisal date.
-    let first = wb.runtime().appraisal.as_ref().unwrap().comparables[0]
-        .listing
-        .line;
+    let first = comparables(&wb)[0].line;
     wb.apply(Command::ExcludeComparable(first));
     wb.wait_for_jobs();
     let before = indicated(&wb);
@@ -288,13 +283,7 @@ fn your_own_adjustment_lines_are_itemized_and_removable() {
 fn a_cleaning_override_made_on_screen_refits_the_market() {
     let mut harness = harness();
     let fit = harness.state().runtime().fit.clone().unwrap();
-    let excluded = fit
-        .cleaning
-        .rows
-        .iter()
-        .copied()
-        .find(|&r| !fit.cleaning.is_included(r))
-        .unwrap();
+    let excluded = fit.cleaning.set_aside_rows().next().unwrap();
     harness.state_mut().select(Some(excluded));
     harness.run_steps(2);
     harness.get_by_label("Keep in the fit").click();
@@ -352,16 +341,7 @@ fn selecting_a_comparable_elsewhere_scrolls_the_table_to_it() {
     let mut wb = workbench();
     wb.apply(Command::SetComparableCount(20));
     wb.wait_for_jobs();
-    let last = wb
-        .runtime()
-        .appraisal
-        .as_ref()
-        .unwrap()
-        .comparables
-        .last()
-        .unwrap()
-        .listing
-        .clone();
+    let last = comparables(&wb).last().unwrap().clone();
     let mut harness = Harness::builder()
         .with_size(egui::Vec2::new(1500.0, 950.0))
         .build_ui_state(|ui, wb: &mut Workbench| wb.ui(ui), wb);
@@ -388,12 +368,7 @@ fn selecting_a_comparable_elsewhere_scrolls_the_table_to_it() {
 fn a_market_too_large_to_draw_point_by_point_is_drawn_as_a_density_grid() {
     // 44,000 listings: the subject's model alone has more than the 20,000 a chart draws one by
     // one, while its three-year mileage window has fewer.
-    let mut wb = Workbench::with_document(
-        AppraisalDocument::demo(44_000),
-        Preferences::default(),
-        || {},
-    );
-    wb.wait_for_jobs();
+    let wb = crate::support::workbench_on(AppraisalDocument::demo(44_000));
     let fit = wb.runtime().fit.clone().unwrap();
     assert!(fit.cleaning.rows.len() > app::panes::MAX_POINTS);
     let mut harness = Harness::builder()
@@ -446,15 +421,7 @@ fn a_listing_hovered_in_a_chart_is_marked_in_the_table_drawn_before_it() {
     // after, so hovering a chart never reached the comparables table. Hover is now read from
     // the previous frame by every pane.
     let mut harness = harness();
-    let first = harness
-        .state()
-        .runtime()
-        .appraisal
-        .clone()
-        .unwrap()
-        .comparables[0]
-        .listing
-        .clone();
+    let first = comparables(harness.state())[0].clone();
     assert!(
         harness
             .query_by_label(&format!("• {}", first.line))

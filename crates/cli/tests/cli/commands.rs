@@ -17,12 +17,9 @@ fn json(out: &Output) -> serde_json::Value {
     serde_json::from_slice(&out.stdout).expect("valid JSON")
 }
 
-const SUBJECT: &str =
-    "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used";
-
-#[test]
-fn appraise_json_has_the_documented_keys() {
-    let out = comptrail(&[
+/// The demo subject appraised on the demo market as of its date, as JSON.
+fn demo_appraisal_json() -> serde_json::Value {
+    json(&comptrail(&[
         "appraise",
         &asset(),
         "--subject",
@@ -30,8 +27,15 @@ fn appraise_json_has_the_documented_keys() {
         "--as-of",
         "2026-11-30",
         "--json",
-    ]);
-    let v = json(&out);
+    ]))
+}
+
+const SUBJECT: &str =
+    "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used";
+
+#[test]
+fn appraise_json_has_the_documented_keys() {
+    let v = demo_appraisal_json();
     for key in [
         "import",
         "fit",
@@ -363,15 +367,7 @@ fn every_document_carries_its_warnings_and_the_small_export_is_read_as_one_model
             .unwrap()
             .starts_with("on this market")
     );
-    let v = json(&comptrail(&[
-        "appraise",
-        &asset(),
-        "--subject",
-        SUBJECT,
-        "--as-of",
-        "2026-11-30",
-        "--json",
-    ]));
+    let v = demo_appraisal_json();
     assert_eq!(v["warnings"], serde_json::json!([]));
     // Printed before the value, in words.
     let out = succeeded(&[

@@ -9,49 +9,37 @@ use proptest::prelude::*;
 
 use cli::args::{Cli, Command};
 
-/// Every option the commands take, with and without values.
-const OPTIONS: [&str; 40] = [
-    "--make",
-    "--model",
-    "--age-form",
-    "--robust",
-    "--as-of",
-    "--delimiter",
-    "--odometer",
-    "--stale-days",
-    "--keep",
-    "--drop",
-    "--demo-rows",
-    "--json",
-    "--subject",
-    "--level",
-    "--comps",
-    "--year-window",
-    "--mileage-rule",
-    "--max-days",
-    "--max-distance",
-    "--same-variant",
-    "--include-comp",
-    "--exclude-comp",
-    "--adjust",
-    "--hold-months",
-    "--hold-miles",
-    "--rerun",
-    "--appraiser",
-    "--notes",
-    "--keep-segment",
-    "--max-age",
-    "--top",
-    "--folds",
-    "--comparable-subjects",
-    "--rows",
-    "--seed",
-    "--pdf",
-    "--html",
-    "--profiles",
-    "--trade-in",
-    "--claim",
-];
+/// The long names of the options of `command` (every subcommand's when `None`), read from the
+/// argument definitions themselves so a new option is fuzzed the day it is added; with
+/// `valued`, only those that take a value (`Some(true)`) or only flags (`Some(false)`).
+fn options(command: Option<&str>, valued: Option<bool>) -> Vec<String> {
+    let cli = <Cli as clap::CommandFactory>::command();
+    let mut names: Vec<String> = cli
+        .get_subcommands()
+        .filter(|c| command.is_none_or(|name| c.get_name() == name))
+        .flat_map(clap::Command::get_arguments)
+        .filter(|a| valued.is_none_or(|v| a.get_action().takes_values() == v))
+        .filter_map(|a| a.get_long().map(|l| format!("--{l}")))
+        .collect();
+    names.sort();
+    names.dedup();
+    names
+}
+
+/// Every command's name, and one that is none.
+fn commands() -> Vec<String> {
+    let cli = <Cli as clap::CommandFactory>::command();
+    cli.get_subcommands()
+        .map(|c| c.get_name().to_owned())
+        .chain(std::iter::once("nonsense".to_owned()))
+        .collect()
+}
+
+/// Every option of every command.
+fn all_options() -> &'static [String] {
+    static ALL: OnceLock<Vec<String>> = OnceLock::new();
+    ALL.get_or_init(|| options(None, None))
+}
 
 /// Values that break parsing written without care.
 const VALUES: [&str; 34] = [
@@ -93,7 +81,7 @@ const VALUES: [&str; 34] = [
 
 fn word() -> impl Strategy<Value = String> {
     prop_oneof![
-        4 => prop::sample::select(OPTIONS.to_vec()).prop_map(str::to_owned),
+        4 => prop::sample::select(all_options()),
         4 => prop::sample::select(VALUES.to_vec()).prop_map(str::to_owned),
         1 => "\\PC{0,12}",
         1 => "-{1,2}[a-z-]{0,10}",
@@ -103,36 +91,22 @@ fn word() -> impl Strategy<Value = String> {
 /// `appraise` options that take a value, each followed by one, and flags: most such lines
 /// parse, so their values reach the engine.
 fn appraise_line() -> impl Strategy<Value = Vec<String>> {
-    let valued = [
-        "--age-form",
-        "--as-of",
-        "--stale-days",
-        "--keep",
-        "--drop",
-        "--level",
-        "--comps",
-        "--year-window",
-        "--mileage-rule",
-        "--max-days",
-        "--max-distance",
-        "--include-comp",
-        "--exclude-comp",
-        "--adjust",
-        "--hold-months",
-        "--hold-miles",
-        "--subject",
-    ];
+    let valued = options(Some("appraise"), Some(true));
+    let flags: Vec<Vec<String>> = options(Some("appraise"), Some(false))
+        .into_iter()
+        .filter(|f| f != "--help" && f != "--json")
+        .map(|f| vec![f])
+        .collect();
     let pair = (
-        prop::sample::select(valued.to_vec()),
+        prop::sample::select(valued),
         prop_oneof![
             3 => prop::sample::select(VALUES.to_vec()).prop_map(str::to_owned),
             2 => (-5.0e5f64..5.0e5).prop_map(|v| format!("{v}")),
             2 => (0u32..4_000).prop_map(|v| v.to_string()),
         ],
     )
-        .prop_map(|(o, v)| vec![o.to_owned(), v]);
-    let flag =
-        prop::sample::select(vec!["--robust", "--same-variant"]).prop_map(|f| vec![f.to_owned()]);
+        .prop_map(|(o, v)| vec![o, v]);
+    let flag = prop::sample::select(flags);
     prop::collection::vec(prop_oneof![4 => pair, 1 => flag], 0..6).prop_map(|parts| {
         ["comptrail", "appraise"]
             .into_iter()
@@ -148,22 +122,12 @@ fn command_line() -> impl Strategy<Value = Vec<String>> {
 
 fn any_command_line() -> impl Strategy<Value = Vec<String>> {
     (
-        prop::sample::select(vec![
-            "appraise",
-            "fit",
-            "depreciation",
-            "gaps",
-            "backtest",
-            "demo-market",
-            "profiles",
-            "report",
-            "nonsense",
-        ]),
+        prop::sample::select(commands()),
         prop::collection::vec(word(), 0..10),
     )
         .prop_map(|(command, words)| {
             std::iter::once("comptrail".to_owned())
-                .chain(std::iter::once(command.to_owned()))
+                .chain(std::iter::once(command))
                 .chain(words)
                 .collect()
         })
@@ -265,4 +229,20 @@ fn the_generated_command_lines_reach_the_engine() {
     };
     assert_eq!(args.year_window, 2);
     run_appraise(&args);
+}
+
+#[test]
+fn the_fuzzed_options_are_read_from_the_argument_definitions() {
+    // Every command and option is fuzzed, including ones added later.
+    for command in ["appraise", "fit", "report", "profiles", "demo-market"] {
+        assert!(commands().iter().any(|c| c == command), "{command}");
+    }
+    let valued = options(Some("appraise"), Some(true));
+    for option in ["--adjust", "--subject", "--as-of", "--claim", "--trade-in"] {
+        assert!(valued.iter().any(|o| o == option), "{option}");
+    }
+    let flags = options(Some("appraise"), Some(false));
+    assert!(flags.iter().any(|f| f == "--robust"), "{flags:?}");
+    assert!(!flags.iter().any(|f| f == "--subject"));
+    assert!(all_options().len() >= 40, "{}", all_options().len());
 }

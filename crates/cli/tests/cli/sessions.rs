@@ -148,11 +148,15 @@ fn a_damaged_or_newer_session_gives_one_clear_line() {
     let dir = scratch("damaged");
     let sample = std::fs::read_to_string(repo("sample-sessions/total-loss-claim.ron")).unwrap();
     let newer = dir.join("newer.ron");
-    std::fs::write(
-        &newer,
-        sample.replacen("format_version: 2,", "format_version: 9,", 1),
-    )
-    .unwrap();
+    let current = format!(
+        "format_version: {},",
+        model::session::SESSION_FORMAT_VERSION
+    );
+    assert!(
+        sample.contains(&current),
+        "the sample is in the current format"
+    );
+    std::fs::write(&newer, sample.replacen(&current, "format_version: 9,", 1)).unwrap();
     let out = comptrail(&["appraise", "--session", newer.to_str().unwrap()]);
     assert_eq!(out.status.code(), Some(1));
     let err = String::from_utf8_lossy(&out.stderr);
@@ -267,4 +271,74 @@ fn a_claim_in_json_has_the_documented_keys() {
         payment,
         "paid to the cent"
     );
+}
+
+/// `text` with the characters HTML escapes escaped, as the report writes it.
+fn as_html(text: &str) -> String {
+    text.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
+}
+
+#[test]
+fn the_command_line_and_the_report_word_a_worksheet_alike() {
+    // One trade-in and one claim, appraised and saved on the command line; the worksheet's
+    // rows are worded once (model::worksheet::rows) and both front ends print every one of
+    // them, label and amount, as they are.
+    let cases = [
+        (
+            "trade-in",
+            "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
+            "--trade-in",
+            "sample-sessions/worksheets/dealer-trade-in.ron",
+        ),
+        (
+            "claim",
+            "year=2021,make=Quellmark,model=Brindle,variant=Durnow,miles=52300,condition=used",
+            "--claim",
+            "sample-sessions/worksheets/total-loss-claim.ron",
+        ),
+    ];
+    let dir = scratch("worded-alike");
+    for (name, subject, flag, worksheet) in cases {
+        let session = dir.join(format!("{name}.ron"));
+        let html = dir.join(format!("{name}.html"));
+        let out = succeeded(&[
+            "appraise",
+            &repo("assets/demo-market.csv"),
+            "--subject",
+            subject,
+            "--as-of",
+            "2026-11-30",
+            flag,
+            &repo(worksheet),
+            "--save-session",
+            session.to_str().unwrap(),
+        ]);
+        let shown = text(&out);
+        succeeded(&[
+            "report",
+            session.to_str().unwrap(),
+            "--html",
+            html.to_str().unwrap(),
+        ]);
+        let page = std::fs::read_to_string(&html).unwrap();
+        let saved = model::session::read_session(&session).unwrap();
+        let rows = model::session::worksheet_rows(&saved.purpose, saved.result.worksheet.as_ref());
+        assert!(rows.len() >= 3, "{name}: {rows:?}");
+        for r in &rows {
+            let line = shown
+                .lines()
+                .find(|l| l.contains(&r.label))
+                .unwrap_or_else(|| panic!("{name}: \"{}\" not printed:\n{shown}", r.label));
+            assert!(line.contains(&r.amount_text()), "{name}: {line} vs {r:?}");
+            let cell = format!(
+                "{}</td><td class=\"r\">{}</td>",
+                as_html(&r.label),
+                as_html(&r.amount_text())
+            );
+            assert!(page.contains(&cell), "{name}: report lacks {cell}");
+        }
+    }
 }

@@ -4,7 +4,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::condition::Condition;
 use crate::market::Market;
-use crate::vocabulary::{NO_NAME, NameId};
+use crate::vocabulary::NameId;
 
 /// Age in model years at the appraisal date: the appraisal year minus the model year, so 0 for
 /// the appraisal year's model year. Next year's models, on sale early, also count as age 0: they
@@ -125,12 +125,7 @@ impl Design {
         }
         names.push("miles_10k".into());
         for &v in variants.iter().skip(1) {
-            let label = if v == NO_NAME {
-                "(no variant)"
-            } else {
-                market.names.name(v)
-            };
-            names.push(format!("variant={label}"));
+            names.push(format!("variant={}", market.names.variant_name(v)));
         }
         for c in conditions.iter().skip(1) {
             names.push(format!("condition={c}"));

@@ -19,7 +19,7 @@ pub use file::{
 pub use market_file::{MarketFile, find_market_file};
 pub use outcome::{
     Outcome, Purpose, SENSITIVITY_DAYS, WorksheetOutcome, itemized_deductions, trade_in_inputs,
-    work_out,
+    work_out, worksheet_rows,
 };
 pub use replay::{
     Difference, REPRODUCTION_RULE, ReplayError, Reproduction, reproduce, reproduces_to_the_cent,
@@ -143,8 +143,8 @@ pub struct Session {
 pub struct Capture<'a> {
     /// The market.
     pub market: &'a Market,
-    /// The absolute path of its file, if it came from one.
-    pub market_path: Option<&'a str>,
+    /// Its file, if it came from one (recorded by its absolute path).
+    pub market_path: Option<&'a std::path::Path>,
     /// The fit.
     pub fit: &'a MarketFit,
     /// Settings the fit used.
@@ -174,7 +174,14 @@ impl Session {
             market: MarketRecord {
                 source: c.market.source.clone(),
                 location: MarketLocation {
-                    absolute: c.market_path.map(str::to_owned),
+                    absolute: c.market_path.map(|p| {
+                        // A path that cannot be resolved (the file is gone already) is kept
+                        // as given; reopening reports it missing.
+                        std::fs::canonicalize(p)
+                            .unwrap_or_else(|_| p.to_owned())
+                            .display()
+                            .to_string()
+                    }),
                     from_session: None,
                 },
                 segment: c.market.segment_name(c.fit.segment),

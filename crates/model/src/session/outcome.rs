@@ -7,6 +7,7 @@ use crate::adjustment::UserAdjustment;
 use crate::appraisal::{Appraisal, AppraisalRequest};
 use crate::money::Cents;
 use crate::ols::Interval;
+use crate::worksheet::rows::{self, Row};
 use crate::worksheet::{
     ClaimInputs, ClaimWorksheet, JurisdictionProfile, Line, OfferSensitivity, TradeInInputs,
     TradeInOffer, WorksheetError, claim, offer,
@@ -83,6 +84,19 @@ impl Outcome {
             Some(WorksheetOutcome::Claim(c)) => Some(("settlement payment", c.settlement.payment)),
             None => None,
         }
+    }
+}
+
+/// The worked worksheet of `purpose` as rows, worded once for every front end (see
+/// [`crate::worksheet::rows`]); empty for a value only.
+#[must_use]
+pub fn worksheet_rows(purpose: &Purpose, worksheet: Option<&WorksheetOutcome>) -> Vec<Row> {
+    match (purpose, worksheet) {
+        (Purpose::TradeIn(inputs), Some(WorksheetOutcome::TradeIn { offer, .. })) => {
+            rows::trade_in_rows(inputs, offer)
+        }
+        (_, Some(WorksheetOutcome::Claim(worked))) => rows::claim_rows(worked),
+        _ => Vec::new(),
     }
 }
 

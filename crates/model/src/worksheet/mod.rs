@@ -4,13 +4,14 @@
 
 mod claim;
 mod profile;
+pub mod rows;
 mod total_loss;
 mod trade_in;
 
 pub use claim::{ClaimInputs, ClaimWorksheet, NotPaid, claim};
 pub use profile::{
     Cited, ComparableCheck, JurisdictionProfile, PROFILES_FORMAT_VERSION, ProfileCheck,
-    ProfileError, ProfileFile, RegistrationPaid, SHIPPED_PROFILES, shipped_profiles,
+    ProfileError, ProfileFile, RegistrationPaid, RuleRow, SHIPPED_PROFILES, shipped_profiles,
 };
 pub use total_loss::{
     Boundary, Settlement, SettlementInputs, TotalLossRule, TotalLossVerdict, settle,

@@ -256,7 +256,88 @@ impl ProfileCheck {
     }
 }
 
+/// One of a profile's rules as every front end lists it: what it governs, its value in
+/// words and where it comes from.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct RuleRow {
+    /// What the rule governs ("Listing age").
+    pub rule: &'static str,
+    /// Its value in words ("at most 90 days").
+    pub value: String,
+    /// The citation and its date.
+    pub source: String,
+}
+
+fn paid(yes: bool) -> String {
+    if yes { "paid" } else { "not paid" }.to_owned()
+}
+
 impl JurisdictionProfile {
+    /// Every rule of the profile with its source, worded once for the command line, the
+    /// workbench and the report.
+    #[must_use]
+    pub fn rule_rows(&self) -> Vec<RuleRow> {
+        fn row<T>(rule: &'static str, value: String, cited: &Cited<T>) -> RuleRow {
+            RuleRow {
+                rule,
+                value,
+                source: cited.source(),
+            }
+        }
+        let mut rows = vec![
+            row(
+                "Fewest comparables",
+                self.min_comparables.value.to_string(),
+                &self.min_comparables,
+            ),
+            row(
+                "Listing age",
+                self.max_listing_age_days
+                    .value
+                    .map_or("no limit".into(), |d| format!("at most {d} days")),
+                &self.max_listing_age_days,
+            ),
+            row(
+                "Distance",
+                self.max_distance_miles
+                    .value
+                    .map_or("no limit".into(), |d| format!("at most {d:.0} mi")),
+                &self.max_distance_miles,
+            ),
+            row(
+                "Mileage",
+                self.mileage_rule
+                    .value
+                    .map_or("no rule".into(), |m| m.to_string()),
+                &self.mileage_rule,
+            ),
+            row(
+                "Sales tax",
+                paid(self.sales_tax_paid.value),
+                &self.sales_tax_paid,
+            ),
+            row(
+                "Title and transfer fees",
+                paid(self.title_and_transfer_fees_paid.value),
+                &self.title_and_transfer_fees_paid,
+            ),
+            row(
+                "Total-loss rule",
+                self.total_loss_rule.value.to_string(),
+                &self.total_loss_rule,
+            ),
+            row(
+                "Registration",
+                self.registration.value.to_string(),
+                &self.registration,
+            ),
+        ];
+        if let Some(doc) = &self.documentation {
+            rows.push(row("Records", doc.value.clone(), doc));
+        }
+        rows
+    }
+
     /// `base` with the profile's filters (listing age, distance, mileage rule) in place, so the
     /// comparable search finds complying listings first.
     #[must_use]

@@ -165,11 +165,11 @@ pub fn offer(inputs: &TradeInInputs) -> Result<TradeInOffer, WorksheetError> {
         amount: amount("transport_and_fees", inputs.transport_and_fees)?,
     });
     deductions.push(Line {
-        label: "pack".into(),
+        label: PACK.into(),
         amount: amount("pack", inputs.pack)?,
     });
     deductions.push(Line {
-        label: "target front gross".into(),
+        label: FRONT_GROSS.into(),
         amount: amount("target_front_gross", inputs.target_front_gross)?,
     });
     let before_holding = expected_sale - deductions.iter().map(|l| l.amount).sum::<Cents>();
@@ -199,7 +199,7 @@ pub fn offer(inputs: &TradeInInputs) -> Result<TradeInOffer, WorksheetError> {
         }
     };
     deductions.push(Line {
-        label: format!("holding {days} days"),
+        label: format!("{HOLDING} {days} days"),
         amount: holding,
     });
     Ok(TradeInOffer {
@@ -208,6 +208,22 @@ pub fn offer(inputs: &TradeInInputs) -> Result<TradeInOffer, WorksheetError> {
         offer: before_holding - holding,
         deductions,
     })
+}
+
+const PACK: &str = "pack";
+const FRONT_GROSS: &str = "target front gross";
+const HOLDING: &str = "holding";
+
+/// Whether a deduction is the dealer's own margin or carrying cost (pack, target front gross,
+/// holding) rather than money spent on the vehicle: a report for the customer leaves these out.
+#[must_use]
+pub fn is_dealer_margin(deduction: &Line) -> bool {
+    deduction.label == PACK
+        || deduction.label == FRONT_GROSS
+        || deduction
+            .label
+            .strip_prefix(HOLDING)
+            .is_some_and(|rest| rest.starts_with(' '))
 }
 
 /// The offer at other days to sell and at the value band's ends.

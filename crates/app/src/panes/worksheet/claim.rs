@@ -1,12 +1,14 @@
 //! The claim worksheet: the profile, the claim's facts, the settlement and the checks.
 
-use eframe::egui::{self, RichText, Ui};
-use model::format::{cents, signed_cents};
+use eframe::egui::{self, Ui};
 use model::session::Purpose;
+use model::worksheet::rows::{
+    PROFILE_RULES_HEADING, not_paid_lines, rule_break_lines, verdict_heading,
+};
 use model::worksheet::{ClaimInputs, ClaimWorksheet, JurisdictionProfile, ProfileFile};
 
 use super::super::PaneContext;
-use super::{PAYMENT_LABEL, amount_row, input_row, money_input};
+use super::{input_row, money_input};
 use crate::command::Command;
 
 /// Edits the claim's profile and facts.
@@ -37,6 +39,21 @@ pub fn inputs_ui(
         "Profile reviewed {}. Its filters (listing age, distance, mileage) apply to the comparable search.",
         profile.reviewed
     ));
+    egui::CollapsingHeader::new(PROFILE_RULES_HEADING)
+        .id_salt("profile_rules")
+        .show(ui, |ui| {
+            egui::Grid::new("profile_rules_grid")
+                .num_columns(3)
+                .striped(true)
+                .show(ui, |ui| {
+                    for r in profile.rule_rows() {
+                        ui.label(r.rule);
+                        ui.label(r.value);
+                        ui.small(r.source);
+                        ui.end_row();
+                    }
+                });
+        });
     ui.heading("The claim");
     egui::Grid::new("claim_inputs")
         .num_columns(2)
@@ -78,41 +95,14 @@ pub fn inputs_ui(
     }
 }
 
-/// The worked claim.
+/// The worked claim after its settlement rows: what is not paid, the total-loss test, the
+/// comparables against the profile and the cautions.
 pub fn worked_ui(ui: &mut Ui, c: &ClaimWorksheet) {
-    ui.heading("Settlement");
-    egui::Grid::new("settlement_lines")
-        .striped(true)
-        .show(ui, |ui| {
-            amount_row(ui, "Actual cash value", cents(c.acv));
-            for l in &c.itemized_in_acv {
-                amount_row(
-                    ui,
-                    &format!("   of which {}", l.label),
-                    signed_cents(l.amount),
-                );
-            }
-            for l in &c.settlement.additions {
-                amount_row(ui, &format!("plus {}", l.label), signed_cents(l.amount));
-            }
-            for l in &c.settlement.deductions {
-                amount_row(ui, &format!("less {}", l.label), signed_cents(-l.amount));
-            }
-        });
-    ui.label(
-        RichText::new(format!("{PAYMENT_LABEL}: {}", cents(c.settlement.payment)))
-            .size(22.0)
-            .strong(),
-    );
-    for n in &c.not_paid {
-        ui.small(format!("Not paid: {} ({})", n.label, n.citation));
+    for line in not_paid_lines(c) {
+        ui.small(line);
     }
     ui.separator();
-    ui.heading(if c.verdict.total_loss {
-        "Total loss: yes"
-    } else {
-        "Total loss: no"
-    });
+    ui.heading(verdict_heading(c));
     ui.label(&c.verdict.explanation);
     ui.small(format!("Rule: {}", c.total_loss_citation));
     ui.separator();
@@ -123,13 +113,8 @@ pub fn worked_ui(ui: &mut Ui, c: &ClaimWorksheet) {
     } else {
         ui.colored_label(ui.visuals().error_fg_color, summary);
     }
-    for (i, comparable) in c.check.comparables.iter().enumerate() {
-        for b in &comparable.breaks {
-            ui.colored_label(
-                ui.visuals().warn_fg_color,
-                format!("Comparable {} (line {}): {b}", i + 1, comparable.line),
-            );
-        }
+    for line in rule_break_lines(&c.check) {
+        ui.colored_label(ui.visuals().warn_fg_color, line);
     }
     ui.separator();
     ui.heading("Cautions");

@@ -6,18 +6,16 @@ mod claim;
 mod trade_in;
 
 use eframe::egui::{self, RichText, Ui};
-use model::format::{cents, money, signed_cents};
-use model::session::{Outcome, Purpose, WorksheetOutcome, work_out};
+use model::format::money;
+use model::session::{Outcome, Purpose, WorksheetOutcome, work_out, worksheet_rows};
 use model::worksheet::ProfileFile;
+use model::worksheet::rows::{Row, RowKind};
 
 use super::PaneContext;
 use crate::command::Command;
 use crate::document::{default_claim, default_trade_in};
 
-/// Accessible label of the worksheet's bottom line ("ACV offer" or "Settlement payment").
-pub const OFFER_LABEL: &str = "ACV offer";
-/// Accessible label of the claim's payment.
-pub const PAYMENT_LABEL: &str = "Settlement payment";
+pub use model::worksheet::rows::{OFFER_LABEL, PAYMENT_LABEL};
 
 /// Draws the pane.
 pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>, profiles: &ProfileFile) {
@@ -40,7 +38,7 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>, profiles: &ProfileFile) {
             ui.columns(2, |columns| {
                 trade_in::inputs_ui(&mut columns[0], cx, inputs, appraisal);
                 match &outcome {
-                    Ok(o) => outcome_ui(&mut columns[1], o),
+                    Ok(o) => outcome_ui(&mut columns[1], &cx.document.purpose, o),
                     Err(e) => {
                         columns[1].colored_label(columns[1].visuals().error_fg_color, e.to_string());
                     }
@@ -52,7 +50,7 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>, profiles: &ProfileFile) {
             ui.columns(2, |columns| {
                 claim::inputs_ui(&mut columns[0], cx, profile, inputs, profiles);
                 match &outcome {
-                    Ok(o) => outcome_ui(&mut columns[1], o),
+                    Ok(o) => outcome_ui(&mut columns[1], &cx.document.purpose, o),
                     Err(e) => {
                         columns[1].colored_label(columns[1].visuals().error_fg_color, e.to_string());
                     }
@@ -147,16 +145,29 @@ fn money_input(ui: &mut Ui, label: &str, value: &mut model::money::Cents) -> boo
     changed
 }
 
-fn amount_row(ui: &mut Ui, label: &str, amount: String) {
-    ui.label(label);
-    ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
-        ui.monospace(amount);
+/// The worksheet's rows as the model words them, the bottom line large.
+fn rows_ui(ui: &mut Ui, id: &str, rows: &[Row]) {
+    egui::Grid::new(id).striped(true).show(ui, |ui| {
+        for r in rows.iter().filter(|r| r.kind != RowKind::Result) {
+            ui.label(&r.label);
+            ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
+                ui.monospace(r.amount_text());
+            });
+            ui.end_row();
+        }
     });
-    ui.end_row();
+    for r in rows.iter().filter(|r| r.kind == RowKind::Result) {
+        ui.label(
+            RichText::new(format!("{}: {}", r.label, r.amount_text()))
+                .size(22.0)
+                .strong(),
+        );
+    }
 }
 
 /// The worked worksheet, every part on its own line (shared with the saved-session view).
-pub fn outcome_ui(ui: &mut Ui, outcome: &Outcome) {
+pub fn outcome_ui(ui: &mut Ui, purpose: &Purpose, outcome: &Outcome) {
+    let rows = worksheet_rows(purpose, outcome.worksheet.as_ref());
     match &outcome.worksheet {
         None => {
             ui.label(format!(
@@ -164,24 +175,9 @@ pub fn outcome_ui(ui: &mut Ui, outcome: &Outcome) {
                 money(outcome.indicated_value)
             ));
         }
-        Some(WorksheetOutcome::TradeIn { offer, sensitivity }) => {
+        Some(WorksheetOutcome::TradeIn { sensitivity, .. }) => {
             ui.heading("Trade-in offer");
-            egui::Grid::new("offer_lines").striped(true).show(ui, |ui| {
-                amount_row(ui, "Expected retail value", cents(offer.retail_value));
-                amount_row(
-                    ui,
-                    "Expected sale after the list-to-sale discount",
-                    cents(offer.expected_sale),
-                );
-                for d in &offer.deductions {
-                    amount_row(ui, &format!("less {}", d.label), signed_cents(-d.amount));
-                }
-            });
-            ui.label(
-                RichText::new(format!("{OFFER_LABEL}: {}", cents(offer.offer)))
-                    .size(22.0)
-                    .strong(),
-            );
+            rows_ui(ui, "offer_lines", &rows);
             ui.label(format!(
                 "The offer at other days to sell: {}.",
                 sensitivity.by_days_text()
@@ -191,6 +187,10 @@ pub fn outcome_ui(ui: &mut Ui, outcome: &Outcome) {
                 sensitivity.by_value_text()
             ));
         }
-        Some(WorksheetOutcome::Claim(c)) => claim::worked_ui(ui, c),
+        Some(WorksheetOutcome::Claim(c)) => {
+            ui.heading("Settlement");
+            rows_ui(ui, "settlement_lines", &rows);
+            claim::worked_ui(ui, c);
+        }
     }
 }

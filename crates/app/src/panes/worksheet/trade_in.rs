@@ -110,9 +110,10 @@ fn retail_value_ui(ui: &mut Ui, edited: &mut TradeInInputs, appraisal: &Appraisa
     if let Some(note) = edited.retail_value_note.as_mut() {
         ui.horizontal(|ui| {
             changed |= cents_drag(ui, &mut edited.retail_value, 1e8, 10.0).changed();
-            ui.label("because");
+            let because = ui.label("because");
             changed |= ui
                 .add(egui::TextEdit::singleline(note).hint_text("the reason (required)"))
+                .labelled_by(because.id)
                 .changed();
         });
         if note.trim().is_empty() {
@@ -132,8 +133,10 @@ fn recon_ui(ui: &mut Ui, recon: &mut Vec<Line>) -> bool {
     let mut remove = None;
     for (i, line) in recon.iter_mut().enumerate() {
         ui.horizontal(|ui| {
+            let item = ui.label(format!("Item {}", i + 1));
             changed |= ui
                 .add(egui::TextEdit::singleline(&mut line.label).desired_width(200.0))
+                .labelled_by(item.id)
                 .changed();
             changed |= cents_drag(ui, &mut line.amount, 1e6, 5.0).changed();
             if ui.small_button("Remove").clicked() {
