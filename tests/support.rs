@@ -215,6 +215,7 @@ pub fn demo_session(
         appraisal: &appraisal,
         purpose: &purpose,
         keep_segment: false,
+        case: &model::session::CaseDetails::default(),
     })
 }
 

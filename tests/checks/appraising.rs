@@ -32,7 +32,7 @@ fn comparables_pass_the_filters_and_carry_itemized_adjustments() {
                 AdjustmentKind::Mileage,
                 AdjustmentKind::ModelYear,
                 AdjustmentKind::Variant,
-                AdjustmentKind::Condition
+                AdjustmentKind::SaleClass
             ]
         );
         let sum: f64 = c.adjustments.iter().map(|l| l.amount).sum();
@@ -391,5 +391,64 @@ fn a_collapsed_robust_scale_does_not_flag_the_market_as_outliers() {
         fit.model.residual_sd() > 0.05,
         "{}",
         fit.model.residual_sd()
+    );
+}
+
+/// A listing first listed after the appraisal date was not on the market that day (a claim's
+/// date of loss set weeks before the pull): it is never chosen, and when included by hand it
+/// carries the broken rule (common practice, no source: a value is as of its date).
+#[test]
+fn a_listing_listed_after_the_appraisal_date_is_not_a_comparable_unless_included_by_hand() {
+    let market = demo_market(20_000, 1);
+    let as_of = model::demo::demo_as_of() - chrono::Days::new(30);
+    let settings = FitSettings {
+        as_of: Some(as_of),
+        ..FitSettings::default()
+    };
+    let segment = model::appraisal::find_segment(&market, "Quellmark", "Tessel").unwrap();
+    let fit = fit_market(&market, segment, &settings, &Overrides::new()).unwrap();
+    assert_eq!(fit.as_of, as_of);
+    let request = AppraisalRequest::new(subject());
+    let a = appraise(&market, &fit, &request).unwrap();
+    assert!(!a.comparables.is_empty());
+    for c in &a.comparables {
+        assert!(c.listing.listed_on.unwrap() <= as_of, "{:?}", c.listing);
+        assert!(c.days_listed.unwrap() >= 0);
+    }
+    assert!(
+        a.stopped_by
+            .get("listed_after_appraisal_date")
+            .copied()
+            .unwrap_or(0)
+            > 0
+    );
+    // The best-matching later listing, included by hand, shows why it was not chosen.
+    let later = fit
+        .included_rows
+        .iter()
+        .copied()
+        .find(|&r| {
+            market.model_year[r] == 2022
+                && market.listed_on[r].is_some_and(|d| d > as_of)
+                && market.variant_name(r) == "Ambrel"
+        })
+        .unwrap();
+    let mut request = AppraisalRequest::new(subject());
+    request.choices.include.insert(market.line[later]);
+    let a = appraise(&market, &fit, &request).unwrap();
+    let included = a
+        .comparables
+        .iter()
+        .find(|c| c.listing.row == later)
+        .expect("included by hand");
+    assert!(included.manual);
+    assert!(
+        included
+            .rule_breaks
+            .iter()
+            .any(|b| b.code() == "listed_after_appraisal_date"
+                && b.to_string().contains("after the appraisal date")),
+        "{:?}",
+        included.rule_breaks
     );
 }

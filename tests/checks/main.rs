@@ -16,4 +16,5 @@ mod published;
 mod recovery;
 mod reports;
 mod sessions;
+mod vin;
 mod worksheets;

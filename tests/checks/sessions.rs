@@ -3,6 +3,7 @@
 //! leaves the old file whole.
 
 use acceptance::{data_path, demo_session, repo_path, scratch_dir};
+use model::adjustment::AdjustmentKind;
 use model::money::Cents;
 use model::session::{
     Purpose, SESSION_FORMAT_VERSION, SessionError, WorksheetOutcome, format_version_of,
@@ -254,6 +255,32 @@ fn format_2_sessions_are_migrated_and_still_reproduce() {
         let again = parse_session(&session_to_ron(&session).unwrap(), "again.ron").unwrap();
         assert_eq!(again, session, "{name}");
     }
+    // Format 3 (the samples before case details) reads with no case details, and the fitted
+    // sale-class line of each comparable, then of kind `condition` like the appraiser's own
+    // condition lines, is renamed; the appraiser's lines keep their kind.
+    for name in ["format-3-dealer-trade-in", "format-3-total-loss-claim"] {
+        let path = data_path(&format!("sessions/{name}.ron"));
+        let text = std::fs::read_to_string(&path).unwrap();
+        assert_eq!(format_version_of(&text), Some(3), "{name}");
+        let session = read_session(&path).unwrap();
+        assert_eq!(session.case, model::session::CaseDetails::default());
+        let r = reproduce(&session).unwrap();
+        assert!(r.reproduces(), "{name}: {:?}", r.differences);
+        for c in &session.appraisal.comparables {
+            let kinds: Vec<AdjustmentKind> = c.adjustments.iter().map(|l| l.kind).collect();
+            assert_eq!(kinds[3], AdjustmentKind::SaleClass, "{name}: {kinds:?}");
+            let own = session
+                .request
+                .user_adjustments
+                .iter()
+                .filter(|u| u.line.is_none_or(|l| l == c.listing.line))
+                .count();
+            assert_eq!(kinds.len(), 4 + own, "{name}");
+            assert!(kinds[4..].iter().all(|k| *k != AdjustmentKind::SaleClass));
+        }
+        let again = parse_session(&session_to_ron(&session).unwrap(), "again.ron").unwrap();
+        assert_eq!(again, session, "{name}");
+    }
     // The same text, declared as the current format, is refused for its fraction of a cent:
     // only older formats are rounded on reading.
     let text = std::fs::read_to_string(data_path("sessions/format-2-dealer-trade-in.ron")).unwrap();
@@ -381,6 +408,7 @@ fn a_hand_included_comparable_the_fit_cannot_price_is_refused_and_the_session_re
         appraisal: &appraisal,
         purpose: &Purpose::Value,
         keep_segment: false,
+        case: &model::session::CaseDetails::default(),
     });
     let dir = scratch_dir("refused");
     let path = dir.join("refused.ron");
@@ -389,4 +417,43 @@ fn a_hand_included_comparable_the_fit_cannot_price_is_refused_and_the_session_re
     assert_eq!(reopened.appraisal.refused, appraisal.refused);
     let r = reproduce(&reopened).unwrap();
     assert!(r.reproduces(), "{:?}", r.differences);
+}
+
+/// The session finder lists every sample in a folder with its case number, names the files that
+/// are not sessions, and narrows the list by number, name or VIN typed in any case (constructed:
+/// the samples' case details are set by `make-samples.sh`).
+#[test]
+fn the_finder_finds_a_session_by_its_claim_number_customer_or_vin() {
+    let dir = scratch_dir("finder");
+    for name in SAMPLES {
+        std::fs::copy(
+            repo_path(&format!("sample-sessions/{name}.ron")),
+            dir.join(format!("{name}.ron")),
+        )
+        .unwrap();
+    }
+    std::fs::write(dir.join("shopping-list.ron"), "(eggs: 12)").unwrap();
+    std::fs::write(dir.join("notes.txt"), "not looked at").unwrap();
+    let shelf = model::session::finder::sessions_in(&dir).unwrap();
+    assert_eq!(shelf.cards.len(), 3);
+    assert_eq!(shelf.unreadable.len(), 1, "{:?}", shelf.unreadable);
+    assert!(shelf.unreadable[0].0.ends_with("shopping-list.ron"));
+
+    let found: Vec<_> = shelf.matching("cl-2026-118304").collect();
+    assert_eq!(found.len(), 1);
+    assert_eq!(found[0].purpose, "Claim");
+    assert_eq!(found[0].person, "Maren Oduya (invented)");
+    assert!(found[0].bottom_line.starts_with("Settlement payment $"));
+
+    let found: Vec<_> = shelf.matching("castell T-26").collect();
+    assert_eq!(found.len(), 1);
+    assert_eq!(found[0].number, "T-26-0412");
+    assert!(found[0].bottom_line.starts_with("ACV offer $"));
+
+    let trade = model::session::read_session(&dir.join("dealer-trade-in.ron")).unwrap();
+    let vin = trade.request.subject.vin.clone().unwrap();
+    assert_eq!(shelf.matching(&vin.to_lowercase()).count(), 1);
+    assert_eq!(shelf.matching("").count(), 3);
+    assert_eq!(shelf.matching("no such case").count(), 0);
+    std::fs::remove_dir_all(&dir).ok();
 }

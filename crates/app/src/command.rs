@@ -50,6 +50,29 @@ pub enum Command {
     SetAppraiser(String),
     /// Set the notes.
     SetNotes(String),
+    /// Set the case's numbers and names (typing settles into one undo step).
+    SetCase(model::session::CaseDetails),
+    /// Set the subject's VIN (typing settles into one undo step).
+    SetSubjectVin(Option<String>),
+    /// Set the appraisal date (`None`: the market's latest date); in a claim it is the date of
+    /// loss, and both change together.
+    SetAppraisalDate(Option<chrono::NaiveDate>),
+    /// Set how age enters the fit (refits the market).
+    SetAgeForm(model::hedonic::AgeForm),
+    /// Use the robust fit or least squares (refits the market).
+    SetRobust(bool),
+    /// Set aside unsold listings older than this many days (`None` keeps them; refits).
+    SetStaleDays(Option<u32>),
+    /// Model years either side of the subject's a comparable may be.
+    SetYearWindow(i32),
+    /// How far a comparable's mileage may be from the subject's.
+    SetMileageRule(model::comparables::MileageRule),
+    /// Listed at most this many days before the appraisal date (`None`: no limit).
+    SetListingAge(Option<u32>),
+    /// At most this many miles away (`None`: no limit).
+    SetDistance(Option<f64>),
+    /// Only the subject's own variant as comparables.
+    SetSameVariant(bool),
     /// Replace the whole document (opening a session or recovering unsaved work).
     ReplaceDocument(Box<AppraisalDocument>),
     /// Go back to the market that is loaded after opening another failed or was canceled,
@@ -71,6 +94,11 @@ impl Command {
                 | Command::SetPurpose(_)
                 | Command::SetAppraiser(_)
                 | Command::SetNotes(_)
+                | Command::SetCase(_)
+                | Command::SetSubjectVin(_)
+                | Command::SetYearWindow(_)
+                | Command::SetListingAge(_)
+                | Command::SetDistance(_)
         )
     }
 }
@@ -117,10 +145,53 @@ pub fn apply(document: &mut AppraisalDocument, command: Command) -> bool {
             document.overrides.remove(&line);
         }
         Command::SetPurpose(purpose) | Command::ChoosePurpose(purpose) => {
+            // In a claim the appraisal date is the date of loss: whichever is set first
+            // becomes the other.
+            if matches!(purpose, Purpose::Claim { .. }) {
+                match document.case.date_of_loss {
+                    Some(date) => document.fit.as_of = Some(date),
+                    None => document.case.date_of_loss = document.fit.as_of,
+                }
+            }
             document.purpose = purpose;
         }
         Command::SetAppraiser(name) => document.appraiser = name,
         Command::SetNotes(notes) => document.notes = notes,
+        Command::SetCase(case) => {
+            // The date of loss is the claim's appraisal date: it moves only with it.
+            let date_of_loss = document.case.date_of_loss;
+            document.case = model::session::CaseDetails {
+                date_of_loss,
+                ..case
+            };
+        }
+        Command::SetSubjectVin(vin) => {
+            document.subject.vin = vin
+                .map(|v| v.trim().to_ascii_uppercase())
+                .filter(|v| !v.is_empty());
+        }
+        Command::SetAppraisalDate(date) => {
+            document.fit.as_of = date;
+            if matches!(document.purpose, Purpose::Claim { .. }) {
+                document.case.date_of_loss = date;
+            }
+        }
+        Command::SetAgeForm(form) => document.fit.age_form = form,
+        Command::SetRobust(robust) => document.fit.robust = robust,
+        Command::SetStaleDays(days) => {
+            document.fit.cleaning.stale_after_days = days.map(|d| d.clamp(1, 3_650));
+        }
+        Command::SetYearWindow(years) => document.rules.model_year_window = years.clamp(0, 30),
+        Command::SetMileageRule(rule) => document.rules.mileage = rule,
+        Command::SetListingAge(days) => {
+            document.rules.max_listing_age_days = days.map(|d| d.clamp(1, 3_650));
+        }
+        Command::SetDistance(miles) => {
+            document.rules.max_distance_miles = miles
+                .filter(|m| m.is_finite())
+                .map(|m| m.clamp(1.0, 25_000.0));
+        }
+        Command::SetSameVariant(only) => document.rules.same_variant_only = only,
         Command::ReplaceDocument(replacement) => *document = *replacement,
         Command::RevertOpen(before) => {
             document.market = before.market;

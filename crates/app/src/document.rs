@@ -7,7 +7,7 @@ use model::adjustment::UserAdjustment;
 use model::appraisal::{AppraisalRequest, FitSettings};
 use model::clean::Overrides;
 use model::comparables::{ComparableChoices, ComparableRules};
-use model::session::{Purpose, Session};
+use model::session::{CaseDetails, Purpose, Session};
 use model::subject::Subject;
 use model::worksheet::{ClaimInputs, JurisdictionProfile, TradeInInputs};
 use serde::{Deserialize, Serialize};
@@ -60,6 +60,10 @@ pub struct AppraisalDocument {
     pub appraiser: String,
     /// Free notes kept with the appraisal.
     pub notes: String,
+    /// The case's numbers and names (claim number, date of loss, stock number, …). Missing
+    /// from recovery files written before it existed.
+    #[serde(default)]
+    pub case: CaseDetails,
 }
 
 /// The subject shown when the workbench starts on the demo market.
@@ -96,6 +100,7 @@ impl AppraisalDocument {
             purpose: Purpose::Value,
             appraiser: String::new(),
             notes: String::new(),
+            case: CaseDetails::default(),
         }
     }
 
@@ -133,6 +138,7 @@ impl AppraisalDocument {
             purpose: session.purpose.clone(),
             appraiser: session.authorship.appraiser.clone(),
             notes: session.authorship.notes.clone(),
+            case: session.case.clone(),
         }
     }
 }

@@ -1,4 +1,5 @@
-//! `comptrail-workbench`: the desktop workbench. Opens on the demo market and a demo subject.
+//! `comptrail-workbench [FILE]`: the desktop workbench. Opens FILE when given (a market CSV, or
+//! a session `.ron`), so a file manager's "open with" works; else the demo market and subject.
 
 use app::Workbench;
 use app::preferences::{KEY, Preferences};
@@ -26,6 +27,9 @@ fn main() -> eframe::Result {
             // Unsaved work is written beside the preferences and offered back after a crash.
             if let Some(dir) = eframe::storage_dir("comptrail") {
                 workbench = workbench.with_recovery_file(dir.join("unsaved-appraisal.ron"));
+            }
+            if let Some(file) = std::env::args_os().nth(1) {
+                workbench.open_path(std::path::Path::new(&file));
             }
             Ok(Box::new(workbench))
         }),

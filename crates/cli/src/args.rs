@@ -93,6 +93,11 @@ pub enum Command {
         /// Write the HTML page here.
         #[arg(long)]
         html: Option<PathBuf>,
+        /// The customer's copy of a trade-in: the market evidence, the value and the offer,
+        /// without the dealer's margin lines (pack, target front gross, holding cost). A claim's
+        /// report is always whole.
+        #[arg(long)]
+        customer: bool,
     },
     /// List the jurisdiction profiles with each rule and its citation.
     Profiles {
@@ -232,8 +237,11 @@ pub struct AppraiseArgs {
     /// Never use the listing on this file line as a comparable (repeatable).
     #[arg(long = "exclude-comp", value_name = "LINE")]
     pub exclude_comp: Vec<u64>,
-    /// An adjustment of yours: "KIND:AMOUNT:BASIS[:LINE]", KIND options, prior-damage or other;
-    /// without LINE it applies to every comparable (repeatable).
+    /// An adjustment of yours, "KIND[@LINE]:AMOUNT:BASIS": KIND is options, prior-damage,
+    /// condition or other; AMOUNT in dollars, minus when the subject is worth less (e.g. -400
+    /// for a torn seat); BASIS any text, colons included; @LINE applies it to the comparable on
+    /// that market file line only, else to every comparable (repeatable). Example:
+    /// "condition@260:-400:driver seat bolster torn".
     #[arg(long = "adjust", value_name = "SPEC")]
     pub adjust: Vec<String>,
     /// Also forecast the value after this many months (0 to 120).
@@ -273,4 +281,23 @@ pub struct AppraiseArgs {
     /// Keep every listing of the segment in the session (larger file; the fit can be redone).
     #[arg(long)]
     pub keep_segment: bool,
+    /// The claim number, saved with the session and printed on the report.
+    #[arg(long, default_value = "")]
+    pub claim_number: String,
+    /// The date of loss, YYYY-MM-DD: a claim's appraisal date (sets --as-of; both given must
+    /// agree).
+    #[arg(long, value_name = "YYYY-MM-DD")]
+    pub date_of_loss: Option<String>,
+    /// The insured or owner of the vehicle.
+    #[arg(long, default_value = "")]
+    pub insured: String,
+    /// What happened: collision, theft, flood, fire, hail, vandalism or other.
+    #[arg(long, value_parser = clap::builder::ValueParser::new(|s: &str| s.parse::<model::case::LossType>()))]
+    pub loss_type: Option<model::case::LossType>,
+    /// The dealer's stock number for the traded vehicle.
+    #[arg(long, default_value = "")]
+    pub stock_number: String,
+    /// The customer trading the vehicle in.
+    #[arg(long, default_value = "")]
+    pub customer: String,
 }

@@ -109,12 +109,19 @@ fn run(cli: Cli) -> Result<ExitCode> {
             appraiser: String::new(),
             notes: String::new(),
             keep_segment: false,
+            claim_number: String::new(),
+            date_of_loss: None,
+            insured: String::new(),
+            loss_type: None,
+            stock_number: String::new(),
+            customer: String::new(),
         }))
     });
     match command {
         Command::DemoMarket { rows, seed, out } => demo_market(rows, seed, &out),
         Command::Fit(args) => fit(&args),
-        Command::Appraise(args) => {
+        Command::Appraise(mut args) => {
+            date_of_loss_is_the_appraisal_date(&mut args)?;
             if let Some(path) = &args.session {
                 // Exit status 2 says "read fine, but does not reproduce".
                 return Ok(if session::check(&args, path)? {
@@ -137,10 +144,54 @@ fn run(cli: Cli) -> Result<ExitCode> {
             session: path,
             pdf,
             html,
-        } => session::report(&path, pdf.as_deref(), html.as_deref()),
+            customer,
+        } => session::report(
+            &path,
+            pdf.as_deref(),
+            html.as_deref(),
+            if customer {
+                report::Audience::Customer
+            } else {
+                report::Audience::Full
+            },
+        ),
         Command::Profiles { profiles, json } => session::profiles(profiles.as_deref(), json),
     }?;
     Ok(ExitCode::SUCCESS)
+}
+
+/// `--date-of-loss` sets the appraisal date; an `--as-of` given with it must say the same.
+fn date_of_loss_is_the_appraisal_date(args: &mut AppraiseArgs) -> Result<()> {
+    let Some(text) = &args.date_of_loss else {
+        return Ok(());
+    };
+    let date = model::import::parse_date(text)
+        .ok_or_else(|| anyhow::anyhow!("--date-of-loss '{text}' is not a date (use YYYY-MM-DD)"))?;
+    if let Some(as_of) = &args.market.as_of {
+        if model::import::parse_date(as_of) != Some(date) {
+            bail!(
+                "--date-of-loss {date} and --as-of {as_of} disagree: a claim is appraised as of its date of loss (give one of them)"
+            );
+        }
+    }
+    args.market.as_of = Some(date.to_string());
+    Ok(())
+}
+
+/// The case details the options give.
+#[must_use]
+pub fn case_details(args: &AppraiseArgs) -> model::case::CaseDetails {
+    model::case::CaseDetails {
+        claim_number: args.claim_number.trim().to_owned(),
+        date_of_loss: args
+            .date_of_loss
+            .as_deref()
+            .and_then(model::import::parse_date),
+        insured: args.insured.trim().to_owned(),
+        loss_type: args.loss_type,
+        stock_number: args.stock_number.trim().to_owned(),
+        customer: args.customer.trim().to_owned(),
+    }
 }
 
 fn default_market_args() -> MarketArgs {
@@ -213,11 +264,16 @@ fn fit(args: &MarketArgs) -> Result<()> {
 const MAX_ADJUSTMENT_DOLLARS: f64 = 1e7;
 
 fn parse_adjustment(spec: &str) -> Result<UserAdjustment> {
-    let parts: Vec<&str> = spec.splitn(4, ':').collect();
-    let [kind, amount, basis, rest @ ..] = parts.as_slice() else {
+    // The basis is everything after the second colon, colons included.
+    let parts: Vec<&str> = spec.splitn(3, ':').collect();
+    let [head, amount, basis] = parts.as_slice() else {
         bail!(
-            "--adjust '{spec}': write KIND:AMOUNT:BASIS[:LINE], e.g. \"options:600:tow package the comparables lack\""
+            "--adjust '{spec}': write KIND[@LINE]:AMOUNT:BASIS, e.g. \"options:600:tow package the comparables lack\" or \"condition@260:-400:torn seat\""
         );
+    };
+    let (kind, line) = match head.split_once('@') {
+        Some((kind, line)) => (kind, Some(line)),
+        None => (*head, None),
     };
     let kind = AdjustmentKind::parse_user(kind).with_context(|| {
         format!("--adjust '{spec}': kind '{kind}' is not options, prior-damage, condition or other")
@@ -233,8 +289,7 @@ fn parse_adjustment(spec: &str) -> Result<UserAdjustment> {
     if basis.trim().is_empty() {
         bail!("--adjust '{spec}': every adjustment needs its basis");
     }
-    let line = rest
-        .first()
+    let line = line
         .map(|l| {
             l.trim()
                 .parse::<u64>()
@@ -333,7 +388,10 @@ fn appraise_command(args: &AppraiseArgs) -> Result<()> {
     if let Some(f) = &forecast {
         appraisal.warnings.extend(f.warnings.iter().cloned());
     }
+    let case = case_details(args);
     let doc = AppraisalDocument {
+        case_line: case.line(&purpose),
+        case,
         market_accuracy,
         import: ImportSummary::from_report(&loaded.report),
         fit: FitSummary::new(&loaded.market, &fit),

@@ -127,6 +127,11 @@ pub struct FitDocument {
 /// `appraise --json`.
 #[derive(Debug, Serialize)]
 pub struct AppraisalDocument {
+    /// The case's numbers and names, as given.
+    pub case: model::case::CaseDetails,
+    /// The case's filled-in fields for the purpose, in words (the JSON has `case`).
+    #[serde(skip)]
+    pub case_line: String,
     pub import: ImportSummary,
     pub fit: FitSummary,
     #[serde(flatten)]

@@ -23,7 +23,12 @@ pub fn import(s: &ImportSummary) -> String {
         thousands(s.rows_rejected as f64)
     );
     for (code, n) in &s.rejected_by_reason {
-        let _ = writeln!(o, "  rejected, {code}: {}", thousands(*n as f64));
+        let _ = writeln!(
+            o,
+            "  rejected, {}: {}",
+            model::import::reason_in_words(code),
+            thousands(*n as f64)
+        );
     }
     for r in s.rejected.iter().take(5) {
         let _ = writeln!(o, "    line {}: {}", r.line, r.reason);
@@ -89,7 +94,12 @@ pub fn fit(f: &FitSummary) -> String {
         thousands(f.cleaning.used as f64)
     );
     for (code, n) in &f.cleaning.excluded_by_rule {
-        let _ = writeln!(o, "  excluded, {code}: {}", thousands(*n as f64));
+        let _ = writeln!(
+            o,
+            "  set aside, {}: {}",
+            model::clean::rule_in_words(code),
+            thousands(*n as f64)
+        );
     }
     if let Some(why) = &f.cleaning.outlier_check_skipped {
         let _ = writeln!(o, "  outlier check skipped: {why}");
@@ -148,12 +158,32 @@ pub fn warnings(warnings: &[model::warnings::Warning]) -> String {
     o
 }
 
+/// The subject, and whether its VIN checks.
+fn subject_lines(o: &mut String, subject: &model::subject::Subject) {
+    let _ = writeln!(o, "\nSubject: {}", subject.describe());
+    if let Some(vin) = &subject.vin {
+        let problems = model::vin::problems(vin, subject.model_year);
+        let _ = writeln!(
+            o,
+            "VIN {vin}: {}",
+            if problems.is_empty() {
+                "checks (check digit and model year)".to_owned()
+            } else {
+                format!("does not check, {}", model::vin::problems_text(&problems))
+            }
+        );
+    }
+}
+
 pub fn appraisal(doc: &AppraisalDocument) -> String {
     let a = &doc.appraisal;
     let mut o = import(&doc.import);
     o.push_str(&fit(&doc.fit));
     let level = 100.0 * a.reconciliation.value_band.level;
-    let _ = writeln!(o, "\nSubject: {}", a.subject.describe());
+    if !doc.case_line.is_empty() {
+        let _ = writeln!(o, "\n{}", doc.case_line);
+    }
+    subject_lines(&mut o, &a.subject);
     let _ = writeln!(
         o,
         "Comparables: {} of {} listings of this model passed the filters; {} kept",
@@ -162,7 +192,12 @@ pub fn appraisal(doc: &AppraisalDocument) -> String {
         a.comparables.len()
     );
     for (code, n) in &a.stopped_by {
-        let _ = writeln!(o, "  stopped by {code}: {}", thousands(*n as f64));
+        let _ = writeln!(
+            o,
+            "  left out, {}: {}",
+            model::comparables::filter_in_words(code),
+            thousands(*n as f64)
+        );
     }
     for (i, c) in a.comparables.iter().enumerate() {
         comparable(&mut o, i + 1, c);

@@ -102,6 +102,7 @@ pub fn save(args: &AppraiseArgs, out: &Path, s: &SaveInputs<'_>) -> Result<Sessi
             appraisal: s.appraisal,
             purpose: s.purpose,
             keep_segment: args.keep_segment,
+            case: &crate::case_details(args),
         },
         Authorship {
             appraiser: args.appraiser.clone(),
@@ -367,7 +368,12 @@ fn render_check(d: &SessionCheck) -> String {
 }
 
 /// `report SESSION --pdf --html`.
-pub fn report(path: &Path, pdf: Option<&Path>, html: Option<&Path>) -> Result<()> {
+pub fn report(
+    path: &Path,
+    pdf: Option<&Path>,
+    html: Option<&Path>,
+    audience: report::Audience,
+) -> Result<()> {
     if pdf.is_none() && html.is_none() {
         bail!("say where to write the report: --pdf OUT.pdf and/or --html OUT.html");
     }
@@ -380,7 +386,13 @@ pub fn report(path: &Path, pdf: Option<&Path>, html: Option<&Path>) -> Result<()
         )
     })?;
     let identity = report::Identity::of(Some(path), Some(&bytes), reproduction.summary());
-    let doc = report::Report::from_session(&session, &identity);
+    if audience == report::Audience::Customer && !matches!(session.purpose, Purpose::TradeIn(_)) {
+        eprintln!(
+            "{}: --customer applies to trade-ins; a claim's report is always whole",
+            path.display()
+        );
+    }
+    let doc = report::Report::for_audience(&session, &identity, audience);
     if let Some(out) = pdf {
         model::session::write_atomically(out, &report::pdf::render(&doc))?;
         eprintln!("wrote {}", out.display());

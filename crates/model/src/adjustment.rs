@@ -25,7 +25,11 @@ pub enum AdjustmentKind {
     ModelYear,
     /// Variant difference, from the fitted variant terms.
     Variant,
-    /// Condition-class difference, from the fitted condition terms.
+    /// Sale-class difference (new, used, certified pre-owned), from the fitted terms. Sessions
+    /// before format 4 called it `condition`; reading one renames it.
+    SaleClass,
+    /// The vehicle's physical condition (wear, damage beyond the usual for its age), entered
+    /// by the appraiser.
     Condition,
     /// Options or equipment, entered by the appraiser.
     Options,
@@ -55,6 +59,7 @@ impl AdjustmentKind {
             Self::Mileage => "mileage",
             Self::ModelYear => "model year",
             Self::Variant => "variant",
+            Self::SaleClass => "sold as",
             Self::Condition => "condition",
             Self::Options => "options",
             Self::PriorDamage => "prior damage",
@@ -157,7 +162,7 @@ pub struct GridInputs<'a> {
     pub condition_log_change: f64,
 }
 
-/// The four model lines (mileage, model year, variant, condition) from their inputs; the one
+/// The four model lines (mileage, model year, variant, sale class) from their inputs; the one
 /// place the grid's arithmetic and wording live, used for a live fit and for a saved session.
 #[must_use]
 pub fn grid_lines(g: &GridInputs<'_>) -> Vec<AdjustmentLine> {
@@ -199,12 +204,12 @@ pub fn grid_lines(g: &GridInputs<'_>) -> Vec<AdjustmentLine> {
             ),
         ),
         line(
-            AdjustmentKind::Condition,
+            AdjustmentKind::SaleClass,
             g.condition_log_change,
             format!(
-                "fitted condition terms: {} vs {} ({:+.1} %)",
-                g.condition.0,
-                g.condition.1,
+                "fitted sale-class terms: sold {} vs {} ({:+.1} %)",
+                g.condition.0.sold_as(),
+                g.condition.1.sold_as(),
                 100.0 * (g.condition_log_change.exp() - 1.0)
             ),
         ),

@@ -551,6 +551,7 @@ pub fn appraise_among(
         fit,
         model_year: terms.model_year,
         miles: terms.miles,
+        subject_vin: request.subject.vin.as_deref(),
         comparables_asked: request.rules.count,
         comparables: &comparables,
         refused: &refused,

@@ -86,6 +86,23 @@ impl Exclusion {
     }
 }
 
+/// A cleaning rule's code (as counted by [`SegmentCleaning::counts`]) in words for people; the
+/// code itself when it is not one of ours.
+#[must_use]
+pub fn rule_in_words(code: &str) -> &str {
+    match code {
+        "duplicate_vin" => "the same VIN as an earlier listing",
+        "duplicate_listing" => "the same vehicle and price as an earlier listing",
+        "stale_listing" => "listed too long without selling",
+        "old_stock_listed_as_new" => "an earlier model year listed as new",
+        "branded_title" => "a branded title",
+        "implausibly_cheap" => "implausibly cheap for the market",
+        "high_outlier" => "priced far from the market",
+        "manual" => "set aside by hand",
+        other => other,
+    }
+}
+
 impl std::fmt::Display for Exclusion {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {

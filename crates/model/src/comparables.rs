@@ -157,6 +157,12 @@ pub enum RuleBreak {
         /// The limit.
         limit: u32,
     },
+    /// Listed after the appraisal date: not on the market on that date (a claim's date of loss
+    /// set before the market's latest listing).
+    ListedAfterAppraisalDate {
+        /// Days after the appraisal date.
+        days: i64,
+    },
     /// Too far away.
     TooFar {
         /// Miles away.
@@ -182,10 +188,28 @@ impl RuleBreak {
             RuleBreak::MilesOver { .. } => "miles_over_limit",
             RuleBreak::MilesUnder { .. } => "miles_under_limit",
             RuleBreak::ListingTooOld { .. } => "listing_too_old",
+            RuleBreak::ListedAfterAppraisalDate { .. } => "listed_after_appraisal_date",
             RuleBreak::TooFar { .. } => "too_far",
             RuleBreak::OtherVariant => "other_variant",
             RuleBreak::Excluded { .. } => "excluded_by_cleaning",
         }
+    }
+}
+
+/// A filter's code (as counted in `stopped_by`) in words for people; the code itself when it is
+/// not one of ours.
+#[must_use]
+pub fn filter_in_words(code: &str) -> &str {
+    match code {
+        "model_year_outside_window" => "model year outside the window",
+        "miles_over_limit" => "more miles than the mileage rule allows",
+        "miles_under_limit" => "fewer miles than the mileage rule allows",
+        "listing_too_old" => "listed too long before the appraisal date",
+        "listed_after_appraisal_date" => "listed after the appraisal date",
+        "too_far" => "too far away",
+        "other_variant" => "another variant",
+        "excluded_by_cleaning" => "set aside by cleaning",
+        other => other,
     }
 }
 
@@ -213,6 +237,13 @@ impl std::fmt::Display for RuleBreak {
             ),
             RuleBreak::ListingTooOld { days, limit } => {
                 write!(f, "listed {days} days ago (limit {limit})")
+            }
+            RuleBreak::ListedAfterAppraisalDate { days } => {
+                write!(
+                    f,
+                    "listed {days} day{} after the appraisal date",
+                    if *days == 1 { "" } else { "s" }
+                )
             }
             RuleBreak::TooFar { miles, limit } => {
                 write!(f, "{miles:.0} mi away (limit {limit:.0})")
@@ -282,8 +313,15 @@ fn first_failing_filter(
     if let Some(b) = rules.mileage.check(subject.miles, c.miles) {
         return Some(b.code());
     }
-    if let (Some(limit), Some(listed)) = (rules.max_listing_age_days, c.listed_on) {
-        if (as_of - listed).num_days() > i64::from(limit) {
+    if let Some(listed) = c.listed_on {
+        let days = (as_of - listed).num_days();
+        if days < 0 {
+            return Some("listed_after_appraisal_date");
+        }
+        if rules
+            .max_listing_age_days
+            .is_some_and(|limit| days > i64::from(limit))
+        {
             return Some("listing_too_old");
         }
     }
@@ -322,9 +360,11 @@ pub fn filter_breaks(
     if let Some(b) = rules.mileage.check(subject.miles, market.miles[row]) {
         breaks.push(b);
     }
-    if let (Some(limit), Some(listed)) = (rules.max_listing_age_days, market.listed_on[row]) {
+    if let Some(listed) = market.listed_on[row] {
         let days = (as_of - listed).num_days();
-        if days > i64::from(limit) {
+        if days < 0 {
+            breaks.push(RuleBreak::ListedAfterAppraisalDate { days: -days });
+        } else if let Some(limit) = rules.max_listing_age_days.filter(|&l| days > i64::from(l)) {
             breaks.push(RuleBreak::ListingTooOld { days, limit });
         }
     }

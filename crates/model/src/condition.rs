@@ -50,6 +50,18 @@ impl Condition {
     }
 }
 
+impl Condition {
+    /// The sale class in the trade's words, for "sold as …": new, used, certified pre-owned.
+    #[must_use]
+    pub fn sold_as(self) -> &'static str {
+        match self {
+            Self::New => "new",
+            Self::Used => "used",
+            Self::Certified => "certified pre-owned",
+        }
+    }
+}
+
 impl std::fmt::Display for Condition {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         f.write_str(self.as_str())

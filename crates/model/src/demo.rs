@@ -161,6 +161,30 @@ const OPTIONS: [&str; 5] = [
 ];
 const VIN_CHARS: &[u8] = b"ABCDEFGHJKLMNPRSTUVWXYZ0123456789";
 
+/// An invented VIN that checks (49 CFR 565.15) and can never be a real vehicle's: the
+/// manufacturer code starts with 0, which the region table of ISO 3780 assigns to no region
+/// (from memory of that table as public summaries give it: 1–5 North America, 6–7 Oceania,
+/// 8–9 South America, letters Africa, Asia and Europe), followed by the first VIN letters of the
+/// make and model; then five drawn characters, the check digit, the model-year character and
+/// seven drawn characters. `drawn` holds at least twelve VIN characters.
+fn demo_vin(make: &str, model: &str, model_year: i32, drawn: &[char]) -> String {
+    let letter = |name: &str| {
+        name.to_ascii_uppercase()
+            .chars()
+            .find(|c| crate::vin::transliterate(*c).is_some() && c.is_ascii_alphabetic())
+            .unwrap_or('X')
+    };
+    let mut vin = String::with_capacity(17);
+    vin.push('0');
+    vin.push(letter(make));
+    vin.push(letter(model));
+    vin.extend(&drawn[..5]);
+    vin.push('0'); // the check digit, put in below
+    vin.push(crate::vin::year_code(model_year));
+    vin.extend(&drawn[5..12]);
+    crate::vin::with_check_digit(&vin).unwrap_or(vin)
+}
+
 /// Writes a demo market of `rows` listings drawn with `seed` as CSV.
 pub fn write_demo_csv(rows: usize, seed: u64, out: &mut impl Write) -> io::Result<()> {
     let truth = demo_truth();
@@ -292,12 +316,10 @@ fn demo_row(
     } else {
         (String::new(), String::new())
     };
-    let vin: String = m.make[..2]
-        .to_ascii_uppercase()
-        .chars()
-        .chain(m.model[..1].chars())
-        .chain((0..14).map(|_| VIN_CHARS[rng.random_range(0..VIN_CHARS.len())] as char))
+    let drawn: Vec<char> = (0..14)
+        .map(|_| VIN_CHARS[rng.random_range(0..VIN_CHARS.len())] as char)
         .collect();
+    let vin = demo_vin(m.make, m.model, model_year, &drawn);
     let options: Vec<&str> = OPTIONS
         .iter()
         .copied()
@@ -321,5 +343,26 @@ fn draw_age(rng: &mut ChaCha8Rng) -> i32 {
         if rng.random::<f64>() < 1.0 / (1.0 + 0.15 * f64::from(age)) {
             return age;
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn every_demo_vin_checks_and_none_can_be_a_real_vehicle_s() {
+        let bytes = super::demo_csv_bytes(500, 3);
+        let text = String::from_utf8(bytes).unwrap_or_default();
+        let mut seen = 0;
+        for line in text.lines().skip(1) {
+            let fields: Vec<&str> = line.split(',').collect();
+            let (year, vin) = (fields[0].parse::<i32>().unwrap_or(0), fields[10]);
+            assert!(
+                vin.starts_with('0'),
+                "{vin}: no region holds manufacturer codes from 0"
+            );
+            assert!(crate::vin::problems(vin, year).is_empty(), "{vin} ({year})");
+            seen += 1;
+        }
+        assert!(seen >= 500);
     }
 }

@@ -93,6 +93,16 @@ pub fn signed_cents(value: impl Dollars) -> String {
     }
 }
 
+/// `text` with its first letter in capitals, for a label that begins a line ("settlement
+/// payment" → "Settlement payment").
+#[must_use]
+pub fn sentence_case(text: &str) -> String {
+    let mut chars = text.chars();
+    chars.next().map_or_else(String::new, |first| {
+        first.to_uppercase().chain(chars).collect()
+    })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -116,5 +126,8 @@ mod tests {
         assert_eq!(number(1e-320), "1e-320");
         assert_eq!(number(1e300), "1e300");
         assert_eq!(number(f64::NAN), "NaN");
+        assert_eq!(sentence_case("settlement payment"), "Settlement payment");
+        assert_eq!(sentence_case("ACV offer"), "ACV offer");
+        assert_eq!(sentence_case(""), "");
     }
 }

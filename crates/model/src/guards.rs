@@ -111,6 +111,8 @@ pub struct AppraisalFacts<'a> {
     pub model_year: i32,
     /// The subject's miles.
     pub miles: f64,
+    /// The subject's VIN, when given.
+    pub subject_vin: Option<&'a str>,
     /// How many comparables were asked for.
     pub comparables_asked: usize,
     /// The comparables used.
@@ -183,6 +185,57 @@ pub fn appraisal_warnings(f: &AppraisalFacts<'_>) -> Vec<Warning> {
         );
     }
     out.extend(disagreement_warning(f));
+    out.extend(vin_warnings(f));
+    out
+}
+
+/// A subject or comparable VIN that fails its check digit or names another model year: the
+/// usual sign of a misread identifier. The value does not use VINs; the evidence does.
+fn vin_warnings(f: &AppraisalFacts<'_>) -> Vec<Warning> {
+    let mut out = Vec::new();
+    if let Some(vin) = f.subject_vin.filter(|v| !v.trim().is_empty()) {
+        let problems = crate::vin::problems(vin, f.model_year);
+        if !problems.is_empty() {
+            out.push(Warning::new(
+                WarningCode::SubjectVinNotValid,
+                format!(
+                    "The subject's VIN {} does not check: {} ({}). Read it again from the vehicle or its title before the file goes out; the value does not depend on it.",
+                    vin.trim(),
+                    crate::vin::problems_text(&problems),
+                    crate::vin::SOURCE
+                ),
+            ));
+        }
+    }
+    let failing: Vec<String> = f
+        .comparables
+        .iter()
+        .filter_map(|c| {
+            let problems = crate::vin::listing_problems(&c.listing);
+            (!problems.is_empty()).then(|| {
+                format!(
+                    "line {} ({})",
+                    c.listing.line,
+                    crate::vin::problems_text(&problems)
+                )
+            })
+        })
+        .collect();
+    if !failing.is_empty() {
+        out.push(
+            Warning::new(
+                WarningCode::ComparableVinNotValid,
+                format!(
+                    "The VIN of {} comparable{} does not check ({}): {}. A misread VIN weakens the evidence; check it against the listing, or replace the comparable, before relying on the value.",
+                    failing.len(),
+                    if failing.len() == 1 { "" } else { "s" },
+                    crate::vin::SOURCE,
+                    failing.join("; ")
+                ),
+            )
+            .with("comparables", failing.len() as f64),
+        );
+    }
     out
 }
 

@@ -44,11 +44,15 @@ pub enum WarningCode {
     ForecastBeyondMarket,
     /// Held-out listings miss their estimates by more than the band.
     BacktestErrorExceedsBand,
+    /// The subject's VIN fails its check digit or disagrees with its model year.
+    SubjectVinNotValid,
+    /// A comparable's VIN fails its check digit or disagrees with its model year.
+    ComparableVinNotValid,
 }
 
 impl WarningCode {
     /// Every code, in the order the README lists them.
-    pub const ALL: [WarningCode; 15] = [
+    pub const ALL: [WarningCode; 17] = [
         Self::SubjectYearOutsideMarket,
         Self::SubjectMileageOutsideMarket,
         Self::AgeCurveNotFalling,
@@ -62,6 +66,8 @@ impl WarningCode {
         Self::RobustScaleCollapsed,
         Self::OutliersNotChecked,
         Self::ComparableNotAdjustable,
+        Self::SubjectVinNotValid,
+        Self::ComparableVinNotValid,
         Self::ForecastBeyondMarket,
         Self::BacktestErrorExceedsBand,
     ];
@@ -85,6 +91,8 @@ impl WarningCode {
             Self::ModelAndComparablesDisagree => "model_and_comparables_disagree",
             Self::ForecastBeyondMarket => "forecast_beyond_market",
             Self::BacktestErrorExceedsBand => "backtest_error_exceeds_band",
+            Self::SubjectVinNotValid => "subject_vin_not_valid",
+            Self::ComparableVinNotValid => "comparable_vin_not_valid",
         }
     }
 }

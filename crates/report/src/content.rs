@@ -48,10 +48,34 @@ fn pct(x: f64) -> String {
     format!("{x:.1} %")
 }
 
+/// Who a report is for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Audience {
+    /// The file's own copy: every line of the worksheet. A claim's report is always this (the
+    /// claimant is owed the itemization).
+    #[default]
+    Full,
+    /// The customer trading a vehicle in: the market evidence, the value and the offer, without
+    /// the dealer's internal margin lines (pack, target front gross, holding cost) or the
+    /// offer's sensitivity to them.
+    Customer,
+}
+
 impl Report {
-    /// The report for `session`.
+    /// The full report for `session`.
     #[must_use]
     pub fn from_session(session: &Session, identity: &Identity) -> Self {
+        Self::for_audience(session, identity, Audience::Full)
+    }
+
+    /// The report for `session` as `audience` should read it (a customer report of anything
+    /// but a trade-in is the full report).
+    #[must_use]
+    pub fn for_audience(session: &Session, identity: &Identity, audience: Audience) -> Self {
+        let audience = match session.purpose {
+            Purpose::TradeIn(_) => audience,
+            _ => Audience::Full,
+        };
         let subject = &session.request.subject;
         let mut blocks = Vec::new();
         headline(session, &mut blocks);
@@ -65,6 +89,11 @@ impl Report {
                     .collect(),
             ));
         }
+        // The case's numbers after the warnings: a warning stands right beside the value.
+        let case = case_facts(session);
+        if !case.is_empty() {
+            blocks.push(Block::Facts(case));
+        }
         blocks.push(Block::Heading("The vehicle appraised".into()));
         blocks.push(Block::Facts(subject_facts(session)));
         blocks.push(Block::Heading("The market".into()));
@@ -75,7 +104,7 @@ impl Report {
         reconciliation(session, &mut blocks);
         match (&session.purpose, &session.result.worksheet) {
             (Purpose::TradeIn(inputs), Some(WorksheetOutcome::TradeIn { offer, sensitivity })) => {
-                trade_in(inputs, offer, sensitivity, &mut blocks);
+                trade_in(inputs, offer, sensitivity, audience, &mut blocks);
                 blocks.push(Block::Paragraph(session.segment_supply.map_or_else(
                     || "Days' supply: the market file has no sale dates.".to_owned(),
                     |s| s.describe(),
@@ -87,7 +116,8 @@ impl Report {
             _ => {}
         }
         method(session, &mut blocks);
-        if !session.authorship.notes.trim().is_empty() {
+        // The appraiser's notes are the file's, not the customer's.
+        if audience == Audience::Full && !session.authorship.notes.trim().is_empty() {
             blocks.push(Block::Heading("Notes".into()));
             blocks.push(Block::Paragraph(session.authorship.notes.clone()));
         }
@@ -99,41 +129,12 @@ impl Report {
                 .collect(),
         ));
         blocks.push(Block::Heading("This report's identity".into()));
-        blocks.push(Block::Facts(vec![
-            ("Session file".into(), identity.session_file.clone()),
-            (
-                "Session file hash (XXH3-64)".into(),
-                identity.session_hash.clone(),
-            ),
-            ("Reopened".into(), identity.reproduction.clone()),
-            (
-                "Market file".into(),
-                session.market.source.file_name.clone(),
-            ),
-            (
-                "Market file hash (XXH3-64)".into(),
-                session.market.source.content_hash.clone(),
-            ),
-            ("Appraiser".into(), session.authorship.appraiser.clone()),
-            (
-                "Saved".into(),
-                session
-                    .authorship
-                    .saved
-                    .format("%Y-%m-%d %H:%M UTC")
-                    .to_string(),
-            ),
-            (
-                "Program".into(),
-                format!(
-                    "comptrail {} (session format {})",
-                    env!("CARGO_PKG_VERSION"),
-                    session.format_version
-                ),
-            ),
-        ]));
+        blocks.push(Block::Facts(identity_facts(session, identity)));
         Report {
-            title: format!("{}: {}", session.purpose.title(), subject.describe()),
+            title: match audience {
+                Audience::Full => format!("{}: {}", session.purpose.title(), subject.describe()),
+                Audience::Customer => format!("Your trade-in: {}", subject.describe()),
+            },
             subtitle: format!(
                 "Prepared by {} · value as of {} · {}",
                 session.authorship.appraiser,
@@ -149,6 +150,53 @@ impl Report {
     }
 }
 
+/// Where the report's session and market came from, who made it and with what.
+fn identity_facts(session: &Session, identity: &Identity) -> Vec<(String, String)> {
+    vec![
+        ("Session file".into(), identity.session_file.clone()),
+        (
+            "Session file hash (XXH3-64)".into(),
+            identity.session_hash.clone(),
+        ),
+        ("Reopened".into(), identity.reproduction.clone()),
+        (
+            "Market file".into(),
+            session.market.source.file_name.clone(),
+        ),
+        (
+            "Market file hash (XXH3-64)".into(),
+            session.market.source.content_hash.clone(),
+        ),
+        ("Appraiser".into(), session.authorship.appraiser.clone()),
+        (
+            "Saved".into(),
+            session
+                .authorship
+                .saved
+                .format("%Y-%m-%d %H:%M UTC")
+                .to_string(),
+        ),
+        (
+            "Program".into(),
+            format!(
+                "comptrail {} (session format {})",
+                env!("CARGO_PKG_VERSION"),
+                session.format_version
+            ),
+        ),
+    ]
+}
+
+/// The case's filled-in numbers and names, for the top of the report.
+fn case_facts(session: &Session) -> Vec<(String, String)> {
+    session
+        .case
+        .filled(&session.purpose)
+        .into_iter()
+        .map(|f| (f.label.to_owned(), f.value))
+        .collect()
+}
+
 fn headline(session: &Session, blocks: &mut Vec<Block>) {
     let r = &session.result;
     let band = &r.value_band;
@@ -160,9 +208,7 @@ fn headline(session: &Session, blocks: &mut Vec<Block>) {
         ),
     ];
     if let Some((label, amount)) = r.bottom_line() {
-        let mut label = label.to_owned();
-        label[..1].make_ascii_uppercase();
-        items.push((label, cents(amount)));
+        items.push((model::format::sentence_case(label), cents(amount)));
     }
     if let Some(WorksheetOutcome::Claim(c)) = &r.worksheet {
         items.push((
@@ -183,10 +229,25 @@ fn subject_facts(session: &Session) -> Vec<(String, String)> {
             s.variant.clone().unwrap_or_else(|| "(none)".into()),
         ),
         ("Odometer".into(), format!("{} mi", thousands(s.miles))),
-        ("Condition class".into(), s.condition.to_string()),
+        ("Sold as".into(), s.condition.to_string()),
     ];
     if let Some(vin) = &s.vin {
-        facts.push(("VIN".into(), vin.clone()));
+        let problems = model::vin::problems(vin, s.model_year);
+        facts.push((
+            "VIN".into(),
+            if problems.is_empty() {
+                format!(
+                    "{vin} (checks: check digit and model year, {})",
+                    model::vin::SOURCE
+                )
+            } else {
+                format!(
+                    "{vin}: DOES NOT CHECK, {} ({})",
+                    model::vin::problems_text(&problems),
+                    model::vin::SOURCE
+                )
+            },
+        ));
     }
     if let Some(options) = &s.options {
         facts.push(("Options".into(), options.clone()));
@@ -286,27 +347,39 @@ fn comparables(session: &Session, blocks: &mut Vec<Block>) {
         .enumerate()
         .map(|(i, c)| {
             let l = &c.listing;
+            let vin = model::vin::listing_problems(l);
             vec![
                 format!("{}", i + 1),
                 format!(
-                    "{} {}, {} mi, {}",
+                    "{} {} {} {}, {} mi, sold as {}",
                     l.model_year,
+                    l.make,
+                    l.model,
                     model::vocabulary::variant_text(l.variant.as_deref()),
                     thousands(l.miles),
                     l.condition
                 ),
                 format!(
-                    "{} (market line {}{})",
+                    "{} (market line {}{}){}",
                     l.source(),
                     l.line,
                     c.days_listed
                         .map(|d| format!(", {d} days listed"))
-                        .unwrap_or_default()
+                        .unwrap_or_default(),
+                    if vin.is_empty() {
+                        String::new()
+                    } else {
+                        format!(
+                            ". VIN DOES NOT CHECK: {} ({})",
+                            model::vin::problems_text(&vin),
+                            model::vin::SOURCE
+                        )
+                    }
                 ),
                 money(l.asking_price),
                 money(c.adjusted_price),
-                format!("{:.1}", c.net_pct),
-                format!("{:.1}", c.gross_pct),
+                format!("{:+.1} %", c.net_pct),
+                format!("{:.1} %", c.gross_pct),
                 format!("{:.1} %", 100.0 * c.weight),
             ]
         })
@@ -318,8 +391,8 @@ fn comparables(session: &Session, blocks: &mut Vec<Block>) {
             Column::text("Source", 3.6),
             Column::number("Asking", 1.0),
             Column::number("Adjusted", 1.0),
-            Column::number("Net %", 0.7),
-            Column::number("Gross %", 0.7),
+            Column::number("Net", 0.7),
+            Column::number("Gross", 0.7),
             Column::number("Weight", 0.8),
         ],
         rows,
@@ -405,10 +478,18 @@ fn trade_in(
     inputs: &model::worksheet::TradeInInputs,
     offer: &TradeInOffer,
     sensitivity: &OfferSensitivity,
+    audience: Audience,
     blocks: &mut Vec<Block>,
 ) {
     blocks.push(Block::Heading("Trade-in offer".into()));
-    worksheet_table(&rows::trade_in_rows(inputs, offer), blocks);
+    let mut worked = rows::trade_in_rows(inputs, offer);
+    if audience == Audience::Customer {
+        worked.retain(|r| !r.internal);
+        worksheet_table(&worked, blocks);
+        blocks.push(Block::Paragraph(rows::CUSTOMER_OFFER_NOTE.into()));
+        return;
+    }
+    worksheet_table(&worked, blocks);
     blocks.push(Block::Paragraph(format!(
         "Holding cost: {}. The offer at other days to sell and across the value band:",
         rows::holding_text(inputs)

@@ -14,4 +14,4 @@ pub mod pdf;
 pub mod visual;
 
 pub use blocks::{Block, Report};
-pub use content::Identity;
+pub use content::{Audience, Identity};

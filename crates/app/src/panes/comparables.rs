@@ -25,6 +25,36 @@ pub enum SortBy {
     Miles,
 }
 
+/// The column groups, each with how many columns it spans (the first is the row's button).
+const GROUPS: [(&str, usize); 4] = [
+    ("", 1),
+    ("The listing", 8),
+    ("Adjustments to the subject", 7),
+    ("Result", 3),
+];
+
+/// The columns after the row's button, with the sort each heading offers.
+const COLUMNS: [(&str, Option<SortBy>); 18] = [
+    ("line", None),
+    ("vehicle", None),
+    ("miles", Some(SortBy::Miles)),
+    ("asking", None),
+    ("seller", None),
+    ("place", None),
+    ("listed", None),
+    ("VIN", None),
+    ("mileage", None),
+    ("model year", None),
+    ("variant", None),
+    ("sold as", None),
+    ("your lines", None),
+    ("net", None),
+    ("gross", Some(SortBy::Gross)),
+    ("adjusted price", Some(SortBy::AdjustedPrice)),
+    ("similarity", Some(SortBy::Similarity)),
+    ("weight", Some(SortBy::Weight)),
+];
+
 fn amount(c: &AdjustedComparable, kinds: &[AdjustmentKind]) -> f64 {
     c.adjustments
         .iter()
@@ -64,24 +94,21 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
                 .striped(true)
                 .spacing([12.0, 4.0])
                 .show(ui, |ui| {
+                    // Group headings over the columns they span: the listing as it was
+                    // listed, its adjustments to the subject, and what it counts for.
+                    for (i, group) in GROUPS.iter().enumerate() {
+                        for column in 0..group.1 {
+                            if column == 0 && i > 0 {
+                                ui.label(RichText::new(group.0).strong().underline());
+                            } else {
+                                ui.label("");
+                            }
+                        }
+                    }
+                    ui.end_row();
                     // The row's action first, so it is in view however wide the table.
                     ui.label("");
-                    for (label, key) in [
-                        ("line", None),
-                        ("vehicle", None),
-                        ("miles", Some(SortBy::Miles)),
-                        ("asking", None),
-                        ("mileage", None),
-                        ("year", None),
-                        ("variant", None),
-                        ("condition", None),
-                        ("your lines", None),
-                        ("net %", None),
-                        ("gross %", Some(SortBy::Gross)),
-                        ("adjusted", Some(SortBy::AdjustedPrice)),
-                        ("similarity", Some(SortBy::Similarity)),
-                        ("weight", Some(SortBy::Weight)),
-                    ] {
+                    for (label, key) in COLUMNS {
                         match key {
                             Some(k) => {
                                 let text = if sort == k {
@@ -140,31 +167,47 @@ fn row_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, c: &AdjustedComparable) -> egui
     if r.hovered() {
         cx.selection.hover(l.row);
     }
-    let source = l.source();
     let vehicle = format!(
-        "{} {} {}{}",
+        "{} {} {} {}, sold as {}{}",
         l.model_year,
-        l.variant.as_deref().unwrap_or(""),
-        l.condition,
+        l.make,
+        l.model,
+        model::vocabulary::variant_text(l.variant.as_deref()),
+        l.condition.sold_as(),
         if c.manual { " (by hand)" } else { "" }
     );
     let breaks: Vec<String> = c.rule_breaks.iter().map(ToString::to_string).collect();
-    let hover = if breaks.is_empty() {
-        source
+    let vehicle_cell = ui.label(vehicle);
+    let vehicle_cell = if breaks.is_empty() {
+        vehicle_cell
     } else {
-        format!("{source}\nbreaks: {}", breaks.join("; "))
+        vehicle_cell.on_hover_text(format!("breaks: {}", breaks.join("; ")))
     };
-    if ui.label(vehicle).on_hover_text(hover).hovered() {
+    if vehicle_cell.hovered() {
         cx.selection.hover(l.row);
     }
-    ui.label(thousands(l.miles));
+    ui.label(format!("{} mi", thousands(l.miles)));
     ui.label(money(l.asking_price));
+    ui.label(l.seller.as_deref().unwrap_or("unknown"));
+    ui.label(match (&l.location, l.distance_miles) {
+        (Some(place), Some(d)) => format!("{place}, {d:.0} mi away"),
+        (Some(place), None) => place.clone(),
+        (None, Some(d)) => format!("{d:.0} mi away"),
+        (None, None) => "unknown".into(),
+    });
+    ui.label(match (l.listed_on, c.days_listed) {
+        (Some(date), Some(days)) => format!("{date}, {days} days before"),
+        (Some(date), None) => date.to_string(),
+        _ => "no date".into(),
+    });
+    vin_cell(ui, l);
     for kinds in [
         &[AdjustmentKind::Mileage][..],
         &[AdjustmentKind::ModelYear],
         &[AdjustmentKind::Variant],
-        &[AdjustmentKind::Condition],
+        &[AdjustmentKind::SaleClass],
         &[
+            AdjustmentKind::Condition,
             AdjustmentKind::Options,
             AdjustmentKind::PriorDamage,
             AdjustmentKind::Other,
@@ -183,10 +226,32 @@ fn row_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, c: &AdjustedComparable) -> egui
                 basis.join("\n")
             });
     }
-    ui.label(format!("{:.1}", c.net_pct));
-    ui.label(format!("{:.1}", c.gross_pct));
+    ui.label(format!("{:+.1} %", c.net_pct));
+    ui.label(format!("{:.1} %", c.gross_pct));
     ui.label(RichText::new(money(c.adjusted_price)).strong());
     ui.label(format!("{:.2}", c.similarity));
     ui.label(format!("{:.1} %", 100.0 * c.weight));
     r
+}
+
+/// The listing's VIN, marked when it does not check (49 CFR 565.15).
+fn vin_cell(ui: &mut Ui, l: &model::market::Listing) {
+    let Some(vin) = l.vin.as_deref() else {
+        ui.label("none");
+        return;
+    };
+    let problems = model::vin::listing_problems(l);
+    if problems.is_empty() {
+        ui.monospace(vin);
+    } else {
+        ui.colored_label(
+            ui.visuals().warn_fg_color,
+            RichText::new(format!("{vin} (does not check)")).monospace(),
+        )
+        .on_hover_text(format!(
+            "{} ({})",
+            model::vin::problems_text(&problems),
+            model::vin::SOURCE
+        ));
+    }
 }

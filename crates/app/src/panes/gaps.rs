@@ -23,52 +23,62 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>, gaps: Option<&crate::jobs::Flag
         cx.market.segment_name(cx.fit.segment),
         100.0 * level
     ));
-    ui.columns(2, |columns| {
-        columns[0].label(RichText::new("Furthest below the market").strong());
-        table(&mut columns[0], cx, "gaps_below", gaps.iter().take(SHOWN));
-        columns[1].label(RichText::new("Furthest above the market").strong());
-        table(
-            &mut columns[1],
-            cx,
-            "gaps_above",
-            gaps.iter().rev().take(SHOWN),
-        );
-    });
+    // One table above the other, each scrolling on its own both ways: side by side they ran
+    // into each other on screens narrower than the two.
+    let height = ((ui.available_height() - 60.0) / 2.0).max(120.0);
+    ui.label(RichText::new("Furthest below the market").strong());
+    table(ui, cx, "gaps_below", height, gaps.iter().take(SHOWN));
+    ui.separator();
+    ui.label(RichText::new("Furthest above the market").strong());
+    table(ui, cx, "gaps_above", height, gaps.iter().rev().take(SHOWN));
 }
 
 fn table<'a>(
     ui: &mut Ui,
     cx: &mut PaneContext<'_>,
     id: &str,
+    height: f32,
     rows: impl Iterator<Item = &'a PriceGap>,
 ) {
-    egui::ScrollArea::vertical().id_salt(id).show(ui, |ui| {
-        egui::Grid::new(id).striped(true).show(ui, |ui| {
-            for h in ["line", "listing", "asking", "market", "gap", "", "cleaning"] {
-                ui.label(RichText::new(h).strong());
-            }
-            ui.end_row();
-            for g in rows {
-                let selected = cx.selection.selected == Some(g.row);
-                if ui
-                    .selectable_label(selected, g.line.to_string())
-                    .on_hover_text("select this listing")
-                    .clicked()
-                {
-                    cx.selection.selected = Some(g.row);
+    egui::ScrollArea::both()
+        .id_salt(id)
+        .max_height(height)
+        .auto_shrink([false, true])
+        .show(ui, |ui| {
+            egui::Grid::new(id).striped(true).show(ui, |ui| {
+                for h in [
+                    "line",
+                    "listing",
+                    "asking",
+                    "market",
+                    "gap",
+                    "against its band",
+                    "cleaning",
+                ] {
+                    ui.label(RichText::new(h).strong());
                 }
-                ui.label(&g.description);
-                ui.label(money(g.asking_price));
-                ui.label(money(g.expected));
-                ui.label(format!("{} ({:+.1} %)", signed_money(g.gap), g.gap_pct));
-                ui.label(match g.flag {
-                    GapFlag::Within => "within",
-                    GapFlag::BelowMarket => "below band",
-                    GapFlag::AboveMarket => "above band",
-                });
-                ui.label(g.exclusion.as_deref().unwrap_or(""));
                 ui.end_row();
-            }
+                for g in rows {
+                    let selected = cx.selection.selected == Some(g.row);
+                    if ui
+                        .selectable_label(selected, g.line.to_string())
+                        .on_hover_text("select this listing")
+                        .clicked()
+                    {
+                        cx.selection.selected = Some(g.row);
+                    }
+                    ui.label(&g.description);
+                    ui.label(money(g.asking_price));
+                    ui.label(money(g.expected));
+                    ui.label(format!("{} ({:+.1} %)", signed_money(g.gap), g.gap_pct));
+                    ui.label(match g.flag {
+                        GapFlag::Within => "within",
+                        GapFlag::BelowMarket => "below band",
+                        GapFlag::AboveMarket => "above band",
+                    });
+                    ui.label(g.exclusion.as_deref().unwrap_or(""));
+                    ui.end_row();
+                }
+            });
         });
-    });
 }

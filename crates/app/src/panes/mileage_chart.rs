@@ -3,10 +3,11 @@
 //! band, and listings priced below their own band marked for a look.
 
 use eframe::egui::Ui;
-use egui_plot::{Legend, Line, MarkerShape, PlotPoints, PlotUi, Points};
+use egui_plot::{Line, MarkerShape, PlotPoints, PlotUi, Points};
 use model::hedonic::{Attributes, age_years};
 
 use super::density::{Bounds, Plotted, View, exact_groups, extent, place};
+use super::key::{self, Glyph, KeyEntry};
 use super::{
     ChartListings, PaneContext, cached, cached_in, comparable_rings, draw_cells, fit_id,
     inputs_key, listing_chart, listing_plot,
@@ -133,14 +134,39 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     });
     let subject = &cx.document.subject;
     let window = cx.document.rules.model_year_window;
-    ui.label(format!(
-        "Model years {}–{}",
-        subject.model_year - window,
-        subject.model_year + window,
-    ));
+    let (oldest, newest) = (subject.model_year - window, subject.model_year + window);
+    ui.label(format!("Model years {oldest}–{newest}"));
+    let ink = crate::palette::ink(ui);
+    let level = 100.0 * cx.document.level;
+    let mut entries = key::listing_entries(cx, ink);
+    entries.extend([
+        KeyEntry::new(Glyph::Line, ink, "model: the subject's fitted value"),
+        KeyEntry::new(
+            Glyph::Dashed,
+            ink.gamma_multiply(0.6),
+            format!("model: {level:.0} % prediction band"),
+        ),
+        KeyEntry::new(
+            Glyph::Marker(Shape::TriangleDown, true),
+            ink,
+            "below its own band: a deal or a problem? look first",
+        ),
+        KeyEntry::new(
+            Glyph::Bubble(bubble_radius(oldest, oldest)),
+            ink.gamma_multiply(0.7),
+            format!("bubble size: model year, {oldest}"),
+        ),
+        KeyEntry::new(
+            Glyph::Bubble(bubble_radius(newest, oldest)),
+            ink.gamma_multiply(0.7),
+            format!("to {newest}"),
+        ),
+    ]);
+    key::key_ui(ui, "mileage_chart_key", &entries);
     let below_id = ui.scope_id().with("mileage_chart_below");
-    let plot =
-        listing_plot(ui, "value_by_mileage", Legend::default(), data.extent).x_axis_label("miles");
+    let plot = listing_plot(ui, "value_by_mileage", data.extent)
+        .x_axis_label("miles")
+        .x_axis_formatter(|mark, _| format!("{} mi", model::format::thousands(mark.value)));
     let selected_at = cx
         .selection
         .selected
@@ -159,6 +185,11 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
         });
         draw(plot, cx, &data, view, &curve, &below)
     });
+}
+
+/// Newer model years draw larger bubbles.
+fn bubble_radius(year: i32, oldest: i32) -> f32 {
+    1.5 + 1.5 * (year - oldest).max(0) as f32
 }
 
 /// Draws the chart; returns the listings drawn one by one (for picking).
@@ -180,8 +211,7 @@ fn draw(
     for (series, points) in groups {
         let (variant, year, condition, included) = data.series[series as usize];
         let color = variant_color(variant);
-        // Newer model years draw larger bubbles.
-        let radius = 1.5 + 1.5 * (year - oldest).max(0) as f32;
+        let radius = bubble_radius(year, oldest);
         plot.points(
             Points::new(
                 if included {

@@ -5,8 +5,10 @@ pub mod comparables;
 pub mod density;
 pub mod depreciation;
 pub mod gaps;
+pub mod key;
 pub mod mileage_chart;
 pub mod saved_session;
+pub mod settings;
 pub mod subject;
 pub mod user_adjustments;
 pub mod value;
@@ -271,17 +273,6 @@ pub fn draw_cells(
             .or_default()
             .push(c.center);
     }
-    let keys: Vec<u32> = groups.keys().map(|(s, _)| *s).collect();
-    // The legend takes a name's color from its first series (the charts' legends pick the first
-    // color): start each name with its full color and no points.
-    let mut named = std::collections::BTreeSet::new();
-    for series in &keys {
-        let (name, color) = color_of(*series);
-        if named.insert(name.clone()) {
-            plot.points(egui_plot::Points::new(name, Vec::<[f64; 2]>::new()).color(color));
-        }
-    }
-
     for ((series, shade), centres) in groups {
         let (name, color) = color_of(series);
         let strength = shade as f32 / density::SHADES as f32;
@@ -339,18 +330,19 @@ pub fn follow_selection(
     }
 }
 
-/// A chart of listings: its legend keeps the variants' own colors, it fills the space left
-/// above its note, and its automatic view always holds the whole `extent`.
+/// A chart of listings: asking price in dollars up the side (its key is drawn above it, not
+/// over the data), it fills the space left above its note, and its automatic view always
+/// holds the whole `extent`.
 #[must_use]
 pub fn listing_plot<'a>(
     ui: &Ui,
     id: &'a str,
-    legend: egui_plot::Legend,
     extent: Option<density::Bounds>,
 ) -> egui_plot::Plot<'a> {
     let mut plot = egui_plot::Plot::new(id)
-        .legend(legend.color_conflict_handling(egui_plot::ColorConflictHandling::PickFirst))
         .y_axis_label("asking price")
+        .y_axis_formatter(|mark, _| model::format::money(mark.value))
+        .y_axis_min_width(56.0)
         .height((ui.available_height() - 24.0).max(120.0));
     if let Some(e) = extent {
         plot = plot
@@ -377,6 +369,44 @@ fn current_view(
         plot.ctx().request_repaint();
     }
     (view, bounds)
+}
+
+/// A date typed as YYYY-MM-DD: returns the new value once the field is left or Enter pressed
+/// (`Some(None)` when emptied); a date it cannot read is said beside it and not applied.
+pub fn date_field(
+    ui: &mut Ui,
+    id: &str,
+    current: Option<chrono::NaiveDate>,
+    labelled_by: egui::Id,
+) -> Option<Option<chrono::NaiveDate>> {
+    let memory = ui.scope_id().with(id);
+    let shown = current.map(|d| d.to_string()).unwrap_or_default();
+    let mut text: String = ui
+        .data(|d| d.get_temp::<(String, String)>(memory))
+        .filter(|(of, _)| *of == shown)
+        .map_or_else(|| shown.clone(), |(_, typed)| typed);
+    let response = ui
+        .add(
+            egui::TextEdit::singleline(&mut text)
+                .hint_text("YYYY-MM-DD")
+                .desired_width(110.0),
+        )
+        .labelled_by(labelled_by);
+    let done = response.lost_focus();
+    let parsed = if text.trim().is_empty() {
+        Ok(None)
+    } else {
+        model::import::parse_date(&text).map(Some).ok_or(())
+    };
+    if parsed.is_err() {
+        ui.colored_label(ui.visuals().error_fg_color, "not a date (YYYY-MM-DD)");
+    }
+    if done {
+        ui.data_mut(|d| d.remove::<(String, String)>(memory));
+        return parsed.ok().filter(|p| *p != current);
+    }
+    ui.data_mut(|d| d.insert_temp(memory, (shown, text)));
+    None
 }
 
 /// The listings a chart plots.

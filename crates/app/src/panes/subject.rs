@@ -66,11 +66,11 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
             }
             ui.end_row();
 
-            ui.label("Condition");
+            ui.label("Sold as");
             ui.horizontal(|ui| {
                 for c in Condition::ALL {
                     if ui
-                        .selectable_label(subject.condition == c, c.as_str())
+                        .selectable_label(subject.condition == c, c.sold_as())
                         .clicked()
                         && subject.condition != c
                     {
@@ -79,9 +79,47 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
                 }
             });
             ui.end_row();
+
+            vin_row(ui, cx, &subject);
         });
     ui.separator();
     selected_listing_ui(ui, cx);
+}
+
+/// Accessible label of the subject's VIN field.
+pub const VIN_LABEL: &str = "VIN";
+
+/// The subject's VIN, typed, and whether it checks (49 CFR 565.15) for its model year.
+fn vin_row(ui: &mut Ui, cx: &mut PaneContext<'_>, subject: &Subject) {
+    let label = ui.label(VIN_LABEL);
+    ui.vertical(|ui| {
+        let mut vin = subject.vin.clone().unwrap_or_default();
+        if ui
+            .add(
+                egui::TextEdit::singleline(&mut vin)
+                    .hint_text("17 characters")
+                    .char_limit(20)
+                    .desired_width(190.0)
+                    .font(egui::TextStyle::Monospace),
+            )
+            .labelled_by(label.id)
+            .changed()
+        {
+            cx.commands.push(Command::SetSubjectVin(Some(vin)));
+        }
+        if let Some(vin) = subject.vin.as_deref().filter(|v| !v.is_empty()) {
+            let problems = model::vin::problems(vin, subject.model_year);
+            if problems.is_empty() {
+                ui.small("Checks (check digit and model year)");
+            } else {
+                ui.colored_label(
+                    ui.visuals().warn_fg_color,
+                    format!("Does not check: {}", model::vin::problems_text(&problems)),
+                );
+            }
+        }
+    });
+    ui.end_row();
 }
 
 /// Keep an excluded listing in the fit, or drop a kept one, by hand (the market refits).
@@ -161,8 +199,12 @@ fn selected_listing_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     override_ui(ui, cx, row, listing.line);
     ui.horizontal(|ui| {
         if ui.button("Use as subject").clicked() {
-            cx.commands
-                .push(Command::SetSubject(Subject::from_listing(&listing)));
+            // The listing is a template: its VIN is another vehicle's, so the subject's own
+            // stays.
+            cx.commands.push(Command::SetSubject(Subject {
+                vin: cx.document.subject.vin.clone(),
+                ..Subject::from_listing(&listing)
+            }));
         }
         if cx.is_comparable(row) {
             if ui.button("Remove from comparables").clicked() {

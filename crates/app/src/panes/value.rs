@@ -62,12 +62,18 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
         .id_salt("value_model_details")
         .show(ui, |ui| details_ui(ui, cx, a));
     ui.horizontal(|ui| {
-        let mut level = cx.document.level;
+        let mut percent = (100.0 * cx.document.level).round();
         if ui
-            .add(egui::Slider::new(&mut level, 0.5..=0.99).text("level"))
+            .add(
+                egui::Slider::new(&mut percent, 50.0..=99.0)
+                    .step_by(1.0)
+                    .suffix(" %")
+                    .text("band level"),
+            )
+            .on_hover_text("How sure the value band is: 80 % means four in five such vehicles would sell inside it")
             .changed()
         {
-            cx.commands.push(Command::SetLevel(level));
+            cx.commands.push(Command::SetLevel(percent / 100.0));
         }
         let mut count = cx.document.rules.count;
         if ui

@@ -4,12 +4,13 @@
 use std::collections::BTreeMap;
 
 use eframe::egui::{Color32, Ui};
-use egui_plot::{Legend, Line, MarkerShape, PlotPoints, PlotUi, Points};
+use egui_plot::{Line, MarkerShape, PlotPoints, PlotUi, Points};
 use model::condition::Condition;
 use model::hedonic::Attributes;
 use report::visual::Shape;
 
 use super::density::{Bounds, Plotted, View, exact_groups, extent, place};
+use super::key::{self, Glyph, KeyEntry};
 use super::{
     ChartListings, PaneContext, cached, comparable_rings, draw_cells, fit_id, inputs_key, jitter,
     listing_chart, listing_plot,
@@ -101,16 +102,38 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     let doc = cx.document;
     let key = inputs_key(&[&fit_id(cx), &doc.subject.variant, &doc.level]);
     let data = cached(ui, "year_chart_data", key, || gather(cx));
-    ui.label(
-        "Circles used, squares certified, diamonds new; hollow and faded: excluded from the fit.",
-    );
-    let plot = listing_plot(
-        ui,
-        "price_by_year",
-        Legend::default().position(egui_plot::Corner::LeftTop),
-        data.extent,
-    )
-    .x_axis_label("model year");
+    let ink = crate::palette::ink(ui);
+    let mut entries = key::listing_entries(cx, ink);
+    let variant = model::vocabulary::variant_text(doc.subject.variant.as_deref());
+    entries.extend([
+        KeyEntry::new(
+            Glyph::Bar,
+            ink.gamma_multiply(0.55),
+            "model-year mean asking price",
+        ),
+        KeyEntry::new(
+            Glyph::Line,
+            ink,
+            format!("fitted: {variant}, sold used, typical miles"),
+        ),
+        KeyEntry::new(
+            Glyph::Line,
+            crate::palette::SUBJECT,
+            "the subject's value band",
+        ),
+    ]);
+    key::key_ui(ui, "year_chart_key", &entries);
+    let plot = listing_plot(ui, "price_by_year", data.extent)
+        .x_axis_label("model year")
+        // A tick and label for every model year (years are whole numbers).
+        .x_grid_spacer(egui_plot::uniform_grid_spacer(|_| [1.0, 5.0, 10.0]))
+        .x_axis_formatter(|mark, _| {
+            if (mark.value - mark.value.round()).abs() < 1e-6 {
+                format!("{:.0}", mark.value)
+            } else {
+                String::new()
+            }
+        });
     let selected_at = cx.selection.selected.map(|r| {
         [
             f64::from(cx.market.model_year[r]) + jitter(r),

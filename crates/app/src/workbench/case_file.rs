@@ -54,6 +54,8 @@ pub enum FilePrompt {
     OpenSession,
     /// Write the report (PDF and HTML beside each other).
     Report,
+    /// Write the customer's copy of a trade-in's report (no dealer margin lines).
+    CustomerReport,
     /// Point a reopened session at its moved market file.
     LocateMarket,
     /// A jurisdiction profile file of the user's own.
@@ -87,6 +89,8 @@ pub struct CaseFile {
     pub confirm_close: bool,
     /// The user chose to close without saving.
     pub allow_close: bool,
+    /// The session finder, while its window is open.
+    pub finder: Option<super::finder::Finder>,
 }
 
 pub(super) fn now() -> DateTime<Utc> {
@@ -174,6 +178,7 @@ impl Workbench {
                 appraisal: &appraisal,
                 purpose: &self.document.purpose,
                 keep_segment,
+                case: &self.document.case,
             },
             Authorship {
                 appraiser: self.document.appraiser.clone(),
@@ -243,7 +248,11 @@ impl Workbench {
     }
 
     /// Writes the report for the current appraisal as `base`.pdf and `base`.html.
-    pub fn write_report(&mut self, base: &Path) -> Result<(PathBuf, PathBuf), AppError> {
+    pub fn write_report(
+        &mut self,
+        base: &Path,
+        audience: report::Audience,
+    ) -> Result<(PathBuf, PathBuf), AppError> {
         // The report's charts show the whole model's market, whether or not sessions keep it.
         let session = self.capture_session(true)?;
         let saved_bytes = self
@@ -257,7 +266,7 @@ impl Workbench {
             saved_bytes.as_deref(),
             "computed live in the workbench from the market file".into(),
         );
-        let doc = report::Report::from_session(&session, &identity);
+        let doc = report::Report::for_audience(&session, &identity, audience);
         let pdf = base.with_extension("pdf");
         let html = base.with_extension("html");
         write_atomically(&pdf, &report::pdf::render(&doc))?;
@@ -268,6 +277,21 @@ impl Workbench {
             html.display()
         )));
         Ok((pdf, html))
+    }
+
+    /// Opens a file given from outside (the command line, a file manager, a drop): a session
+    /// when it ends in `.ron`, else a market. A failure is said in the banner.
+    pub fn open_path(&mut self, path: &Path) {
+        let is_session = path
+            .extension()
+            .is_some_and(|e| e.eq_ignore_ascii_case("ron"));
+        if is_session {
+            if let Err(e) = self.open_session(path) {
+                self.notice = Some(Notice::from(&e));
+            }
+        } else {
+            self.apply(Command::OpenMarket(path.to_owned()));
+        }
     }
 
     /// Asks for a file: the native dialog when there is one, else a typed path.
@@ -284,6 +308,19 @@ impl Workbench {
                 .clone()
                 .unwrap_or_else(|| PathBuf::from("appraisal.ron"))
                 .with_extension(""),
+            FilePrompt::CustomerReport => {
+                let base = self
+                    .case
+                    .path
+                    .clone()
+                    .unwrap_or_else(|| PathBuf::from("appraisal.ron"))
+                    .with_extension("");
+                let name = base
+                    .file_name()
+                    .map(|n| n.to_string_lossy().into_owned())
+                    .unwrap_or_default();
+                base.with_file_name(format!("{name}-customer"))
+            }
             FilePrompt::LocateMarket => PathBuf::from("market.csv"),
             FilePrompt::Profiles => PathBuf::from("jurisdictions.ron"),
         };
@@ -294,7 +331,7 @@ impl Workbench {
                 .set_file_name(suggested.display().to_string())
                 .save_file(),
             FilePrompt::OpenSession => dialog.add_filter("comptrail session", &["ron"]).pick_file(),
-            FilePrompt::Report => dialog
+            FilePrompt::Report | FilePrompt::CustomerReport => dialog
                 .set_file_name(suggested.display().to_string())
                 .save_file(),
             FilePrompt::LocateMarket => dialog.add_filter("market CSV", &["csv"]).pick_file(),
@@ -312,8 +349,13 @@ impl Workbench {
     fn use_prompted(&mut self, which: FilePrompt, path: &Path) {
         let outcome = match which {
             FilePrompt::SaveSession => self.save_session(path),
-            FilePrompt::OpenSession => self.open_session(path),
-            FilePrompt::Report => self.write_report(path).map(|_| ()),
+            FilePrompt::OpenSession => self.open_session(path).map(|()| {
+                self.case.finder = None;
+            }),
+            FilePrompt::Report => self.write_report(path, report::Audience::Full).map(|_| ()),
+            FilePrompt::CustomerReport => self
+                .write_report(path, report::Audience::Customer)
+                .map(|_| ()),
             FilePrompt::LocateMarket => {
                 self.rerun_opened_on(MarketSource::File(path.to_owned()));
                 Ok(())
@@ -348,6 +390,8 @@ impl Workbench {
             CaseAction::KeepOpen => self.case.confirm_close = false,
             CaseAction::Rerun(source) => self.rerun_opened_on(source),
             CaseAction::LocateMarket => self.prompt(FilePrompt::LocateMarket),
+            CaseAction::LookIn(folder) => self.find_sessions_in(&folder),
+            CaseAction::Browse(which) => self.prompt(which),
         }
     }
 }

@@ -32,6 +32,10 @@ pub enum CaseAction {
     Rerun(MarketSource),
     /// Ask where the reopened session's market file went.
     LocateMarket,
+    /// List the sessions of this folder in the finder.
+    LookIn(PathBuf),
+    /// Ask for a file with the system's dialog (or a typed path).
+    Browse(FilePrompt),
 }
 
 impl Workbench {
@@ -39,6 +43,7 @@ impl Workbench {
     pub(super) fn case_windows(&mut self, ui: &Ui) {
         let mut actions: Vec<CaseAction> = Vec::new();
         actions.extend(prompt_window(ui, &mut self.case.prompt));
+        actions.extend(self.finder_window(ui));
         if let Some(offer) = &self.case.recovery_offer {
             actions.extend(recovery_window(ui, offer));
         }
@@ -72,6 +77,10 @@ impl Workbench {
 
     /// The banner: the last notice, and a reopened session's reproduction and market file.
     pub(super) fn banner_ui(&mut self, ui: &mut Ui) {
+        let case_line = self.document.case.line(&self.document.purpose);
+        if !case_line.is_empty() {
+            ui.label(RichText::new(case_line).strong());
+        }
         let action = banner(ui, self.notice.as_ref(), self.case.opened.as_ref());
         if let Some(action) = action {
             self.act(action);
@@ -86,6 +95,10 @@ fn prompt_window(ui: &Ui, prompt: &mut Option<(FilePrompt, String)>) -> Option<C
         FilePrompt::SaveSession => ("Save the session", "Save"),
         FilePrompt::OpenSession => ("Open a session", "Open"),
         FilePrompt::Report => ("Write the report (PDF and HTML)", "Write"),
+        FilePrompt::CustomerReport => (
+            "Write the customer's copy (PDF and HTML, no dealer margins)",
+            "Write",
+        ),
         FilePrompt::LocateMarket => ("Where is the market file now?", "Re-run"),
         FilePrompt::Profiles => ("Open a jurisdiction profiles file", "Open"),
     };

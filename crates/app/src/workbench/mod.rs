@@ -2,7 +2,8 @@
 //! their commands in one place. Its concerns live in their own files: the background jobs
 //! (`background.rs`), the toolbar and shortcuts (`toolbar.rs`), the import report, help and
 //! waiting windows (`windows.rs`), the case file's logic (`case_file.rs`), its windows and
-//! banner (`case_windows.rs`) and the recovery file for unsaved work (`recovery.rs`).
+//! banner (`case_windows.rs`), the session finder (`finder.rs`) and the recovery file for
+//! unsaved work (`recovery.rs`).
 
 use eframe::egui::util::undoer::{Settings as UndoSettings, Undoer};
 use eframe::egui::{self, Ui};
@@ -11,11 +12,13 @@ use model::worksheet::ProfileFile;
 mod background;
 mod case_file;
 mod case_windows;
+pub mod finder;
 mod recovery;
 mod toolbar;
 mod windows;
 
 pub use case_file::{CaseFile, FilePrompt, MarketState, Opened};
+pub use finder::{FINDER_FILTER_LABEL, FINDER_TITLE, Finder};
 pub use recovery::{AUTOSAVE_SECONDS, Recovery};
 
 use crate::command::{Command, apply};
@@ -68,6 +71,8 @@ pub enum CentralView {
     PriceGaps,
     /// The trade-in offer or the claim.
     Worksheet,
+    /// The appraisal date, how the market is fitted, which listings may be comparables.
+    Settings,
 }
 
 impl Workbench {
@@ -264,7 +269,8 @@ impl Workbench {
         egui::Panel::bottom("cautions").show(ui, |ui| {
             ui.small(model::cautions::CAUTIONS[..3].join(" "));
         });
-        if self.notice.is_some() || self.case.opened.is_some() {
+        let has_case = !self.document.case.line(&self.document.purpose).is_empty();
+        if self.notice.is_some() || self.case.opened.is_some() || has_case {
             egui::Panel::top("case_banner").show(ui, |ui| self.banner_ui(ui));
         }
         self.case_windows(ui);
@@ -315,6 +321,7 @@ impl Workbench {
                 ui.selectable_value(view, CentralView::Depreciation, "Depreciation");
                 ui.selectable_value(view, CentralView::PriceGaps, "Price gaps");
                 ui.selectable_value(view, CentralView::Worksheet, "Worksheet");
+                ui.selectable_value(view, CentralView::Settings, panes::settings::SETTINGS_LABEL);
             });
             ui.separator();
             match *view {
@@ -322,6 +329,7 @@ impl Workbench {
                 CentralView::Depreciation => panes::depreciation::ui(ui, &mut cx),
                 CentralView::PriceGaps => panes::gaps::ui(ui, &mut cx, gaps.as_deref()),
                 CentralView::Worksheet => panes::worksheet::ui(ui, &mut cx, profiles),
+                CentralView::Settings => panes::settings::ui(ui, &mut cx),
             }
         });
         for command in commands {
@@ -329,7 +337,7 @@ impl Workbench {
         }
     }
 
-    /// A file dropped on the window is opened as a market.
+    /// A file dropped on the window is opened: a session (`.ron`) or a market.
     fn open_dropped(&mut self, ui: &Ui) {
         let dropped = ui.input(|i| {
             i.raw
@@ -339,7 +347,7 @@ impl Workbench {
                 .find(|p| !p.as_os_str().is_empty())
         });
         if let Some(path) = dropped {
-            self.apply(Command::OpenMarket(path));
+            self.open_path(&path);
         }
     }
 }

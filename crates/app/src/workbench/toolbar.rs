@@ -126,7 +126,7 @@ impl Workbench {
 
     fn session_buttons_ui(&mut self, ui: &mut Ui) {
         if ui.button("Open session…").clicked() {
-            self.prompt(FilePrompt::OpenSession);
+            self.open_finder();
         }
         let recent = self.preferences.recent_sessions.clone();
         if !recent.is_empty() {
@@ -156,7 +156,18 @@ impl Workbench {
         if ui.button("Save as…").clicked() {
             self.prompt(FilePrompt::SaveSession);
         }
-        if ui.button("Report…").clicked() {
+        if matches!(self.document.purpose, model::session::Purpose::TradeIn(_)) {
+            ui.menu_button("Report…", |ui| {
+                if ui.button("For the file (every line)…").clicked() {
+                    self.prompt(FilePrompt::Report);
+                    ui.close();
+                }
+                if ui.button("For the customer (no dealer margins)…").clicked() {
+                    self.prompt(FilePrompt::CustomerReport);
+                    ui.close();
+                }
+            });
+        } else if ui.button("Report…").clicked() {
             self.prompt(FilePrompt::Report);
         }
         ui.menu_button("Session options", |ui| {

@@ -5,6 +5,9 @@ use eframe::egui::{self, RichText, Ui};
 
 use super::Workbench;
 
+/// Title of the help window.
+pub const HELP_TITLE: &str = "Help";
+
 impl Workbench {
     pub(super) fn waiting_ui(&self, ui: &mut Ui) {
         ui.vertical_centered(|ui| {
@@ -56,9 +59,28 @@ impl Workbench {
     }
 
     pub(super) fn help_window(&mut self, ui: &Ui) {
-        egui::Window::new("Keyboard shortcuts")
+        egui::Window::new(HELP_TITLE)
             .open(&mut self.show_help)
+            .default_width(620.0)
             .show(ui.ctx(), |ui| {
+                ui.strong("The words on screen");
+                egui::ScrollArea::vertical()
+                    .max_height(420.0)
+                    .id_salt("glossary")
+                    .show(ui, |ui| {
+                        egui::Grid::new("glossary_grid")
+                            .num_columns(2)
+                            .striped(true)
+                            .show(ui, |ui| {
+                                for (term, meaning) in model::glossary::GLOSSARY {
+                                    ui.strong(term);
+                                    ui.add(egui::Label::new(meaning).wrap());
+                                    ui.end_row();
+                                }
+                            });
+                    });
+                ui.separator();
+                ui.strong("Keyboard and mouse");
                 egui::Grid::new("shortcuts").show(ui, |ui| {
                     for (keys, what) in [
                         ("Ctrl+O", "open a market file"),

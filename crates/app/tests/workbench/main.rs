@@ -9,6 +9,7 @@
 #![allow(clippy::unwrap_used, clippy::expect_used, clippy::float_cmp)]
 
 mod charts;
+mod desk;
 mod sessions;
 mod snapshots;
 mod support;

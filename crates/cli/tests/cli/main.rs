@@ -7,5 +7,6 @@
 
 mod commands;
 mod common;
+mod desk;
 mod fuzz;
 mod sessions;

@@ -21,7 +21,7 @@ use crate::market::{Market, MarketSource, content_hash};
 
 use batches::{Plan, Tokenizer, read_batches};
 pub use headers::{Field, field_for, normalize_header};
-pub use report::{DroppedValue, ImportReport, RejectReason, RejectedRow};
+pub use report::{DroppedValue, ImportReport, RejectReason, RejectedRow, reason_in_words};
 pub use values::{parse_date, parse_number, parse_year};
 
 /// Kilometers per statute mile.

@@ -53,6 +53,20 @@ impl RejectReason {
     }
 }
 
+/// A rejection's code (as counted in `rejected_by_reason`) in words for people; the code
+/// itself when it is not one of ours.
+#[must_use]
+pub fn reason_in_words(code: &str) -> &str {
+    match code {
+        "missing_value" => "a required value is empty",
+        "not_a_number" => "a number column holds something else",
+        "price_out_of_range" => "asking price out of range",
+        "model_year_out_of_range" => "model year out of range",
+        "mileage_out_of_range" => "mileage out of range",
+        other => other,
+    }
+}
+
 impl std::fmt::Display for RejectReason {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {

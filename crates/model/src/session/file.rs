@@ -9,7 +9,7 @@ use super::Session;
 
 /// Format version this build writes. Files with a higher number are refused; lower numbers are
 /// migrated on reading.
-pub const SESSION_FORMAT_VERSION: u32 = 3;
+pub const SESSION_FORMAT_VERSION: u32 = 4;
 
 const HEADER: &str = "\
 // comptrail appraisal session. Human-readable on purpose: every comparable, every adjustment
@@ -220,10 +220,13 @@ pub fn parse_session(text: &str, source_name: &str) -> Result<Session, SessionEr
         }
         Ok(2) => {
             let _rounding = crate::money::RoundAmountsOnRead::begin();
-            ron::from_str::<super::legacy::SessionV2>(text)
-                .map(super::legacy::SessionV2::migrate)
+            ron::from_str::<super::legacy::SessionV2To3>(text)
+                .map(super::legacy::SessionV2To3::migrate)
                 .map_err(|e| syntax_error(text, source_name, &e))
         }
+        Ok(3) => ron::from_str::<super::legacy::SessionV2To3>(text)
+            .map(super::legacy::SessionV2To3::migrate)
+            .map_err(|e| syntax_error(text, source_name, &e)),
         _ => ron::from_str::<Session>(text).map_err(|e| syntax_error(text, source_name, &e)),
     }
 }

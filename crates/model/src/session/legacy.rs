@@ -9,6 +9,7 @@
 use serde::Deserialize;
 
 use super::{Authorship, FitRecord, MarketLocation, MarketRecord, Outcome, Purpose, Session};
+use crate::adjustment::AdjustmentKind;
 use crate::appraisal::{Appraisal, AppraisalRequest};
 use crate::market::{Listing, MarketSource};
 
@@ -38,9 +39,12 @@ pub(super) struct SessionV1 {
 impl SessionV1 {
     /// The same session in the current format.
     pub(super) fn migrate(self) -> Session {
+        let mut appraisal = self.appraisal;
+        name_sale_class_lines(&mut appraisal);
         Session {
             format_version: super::SESSION_FORMAT_VERSION,
             authorship: self.authorship,
+            case: crate::case::CaseDetails::default(),
             market: MarketRecord {
                 source: self.market.source,
                 location: MarketLocation {
@@ -52,7 +56,7 @@ impl SessionV1 {
             },
             fit: self.fit,
             request: self.request,
-            appraisal: self.appraisal,
+            appraisal,
             purpose: self.purpose,
             result: self.result,
             segment_supply: None,
@@ -61,9 +65,11 @@ impl SessionV1 {
     }
 }
 
-/// A whole format-2 session: the current shape before format 3's additions.
+/// A whole format-2 or format-3 session: the current shape before format 4 added the case
+/// details (format 3 refuses fractions of a cent and may carry the age form's choice, both read
+/// by the same shape).
 #[derive(Debug, Deserialize)]
-pub(super) struct SessionV2 {
+pub(super) struct SessionV2To3 {
     authorship: Authorship,
     market: MarketRecord,
     fit: FitRecord,
@@ -77,20 +83,38 @@ pub(super) struct SessionV2 {
     segment_listings: Option<Vec<Listing>>,
 }
 
-impl SessionV2 {
+impl SessionV2To3 {
     /// The same session in the current format.
     pub(super) fn migrate(self) -> Session {
+        let mut appraisal = self.appraisal;
+        name_sale_class_lines(&mut appraisal);
         Session {
             format_version: super::SESSION_FORMAT_VERSION,
             authorship: self.authorship,
+            case: crate::case::CaseDetails::default(),
             market: self.market,
             fit: self.fit,
             request: self.request,
-            appraisal: self.appraisal,
+            appraisal,
             purpose: self.purpose,
             result: self.result,
             segment_supply: self.segment_supply,
             segment_listings: self.segment_listings,
+        }
+    }
+}
+
+/// Before format 4 the fitted sale-class line of every comparable was of kind `condition`, the
+/// kind the appraiser's own condition lines also use. The fitted line is always the first of
+/// that kind (the grid's four model lines come before the appraiser's), so it is renamed.
+fn name_sale_class_lines(appraisal: &mut Appraisal) {
+    for c in &mut appraisal.comparables {
+        if let Some(line) = c
+            .adjustments
+            .iter_mut()
+            .find(|l| l.kind == AdjustmentKind::Condition)
+        {
+            line.kind = AdjustmentKind::SaleClass;
         }
     }
 }

@@ -7,6 +7,7 @@
 //! evidence ([`reproduce`]) and compares them with the stored result.
 
 mod file;
+pub mod finder;
 mod legacy;
 mod market_file;
 mod outcome;
@@ -29,6 +30,7 @@ use chrono::{DateTime, Utc};
 use serde::{Deserialize, Serialize};
 
 use crate::appraisal::{Appraisal, AppraisalRequest, FitSettings, MarketFit};
+pub use crate::case::CaseDetails;
 use crate::clean::Overrides;
 use crate::hedonic::AnnualDepreciation;
 use crate::market::{Listing, Market, MarketSource};
@@ -117,6 +119,8 @@ pub struct Session {
     pub format_version: u32,
     /// Who and when.
     pub authorship: Authorship,
+    /// The case it belongs to: claim or stock number, names, date of loss (format 4 on).
+    pub case: CaseDetails,
     /// The market.
     pub market: MarketRecord,
     /// The fit.
@@ -159,6 +163,8 @@ pub struct Capture<'a> {
     pub purpose: &'a Purpose,
     /// Keep every listing of the segment in the file.
     pub keep_segment: bool,
+    /// The case it belongs to.
+    pub case: &'a CaseDetails,
 }
 
 impl Session {
@@ -171,6 +177,7 @@ impl Session {
         Ok(Self {
             format_version: SESSION_FORMAT_VERSION,
             authorship,
+            case: c.case.clone(),
             market: MarketRecord {
                 source: c.market.source.clone(),
                 location: MarketLocation {

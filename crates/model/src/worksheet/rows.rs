@@ -10,6 +10,9 @@ use crate::money::Cents;
 /// The trade-in's bottom line.
 pub const OFFER_LABEL: &str = "ACV offer";
 
+/// What a customer's copy of a trade-in says in place of the dealer's margin lines.
+pub const CUSTOMER_OFFER_NOTE: &str = "The offer also allows for the dealer's costs of holding and selling the vehicle. It is based on the market evidence above and is valid for the period stated by the dealer.";
+
 /// The claim's bottom line.
 pub const PAYMENT_LABEL: &str = "Settlement payment";
 

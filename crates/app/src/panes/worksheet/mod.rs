@@ -6,6 +6,7 @@ mod claim;
 mod trade_in;
 
 use eframe::egui::{self, RichText, Ui};
+use model::case::{self, LossType};
 use model::format::money;
 use model::session::{Outcome, Purpose, WorksheetOutcome, work_out, worksheet_rows};
 use model::worksheet::ProfileFile;
@@ -88,6 +89,56 @@ fn case_details_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
             .changed()
         {
             cx.commands.push(Command::SetNotes(notes));
+        }
+    });
+    case_fields_ui(ui, cx);
+}
+
+/// The case's numbers and names for the purpose: a claim's number, date of loss, insured and
+/// type of loss; a trade-in's stock number and customer.
+fn case_fields_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
+    let current = &cx.document.case;
+    let mut edited = current.clone();
+    ui.horizontal_wrapped(|ui| {
+        let text = |ui: &mut Ui, label: &str, value: &mut String, width: f32| {
+            let label = ui.label(label);
+            ui.add(egui::TextEdit::singleline(value).desired_width(width))
+                .labelled_by(label.id)
+                .changed()
+        };
+        match &cx.document.purpose {
+            Purpose::Claim { .. } => {
+                let mut changed = text(ui, case::CLAIM_NUMBER, &mut edited.claim_number, 120.0);
+                let label = ui.label(case::DATE_OF_LOSS);
+                if let Some(date) =
+                    super::date_field(ui, "date_of_loss", current.date_of_loss, label.id)
+                {
+                    cx.commands.push(Command::SetAppraisalDate(date));
+                }
+                changed |= text(ui, case::INSURED, &mut edited.insured, 180.0);
+                let label = ui.label(case::LOSS_TYPE);
+                let combo = egui::ComboBox::from_id_salt("loss_type")
+                    .selected_text(edited.loss_type.map_or("(not given)", LossType::as_str))
+                    .show_ui(ui, |ui| {
+                        for t in LossType::ALL {
+                            changed |= ui
+                                .selectable_value(&mut edited.loss_type, Some(t), t.as_str())
+                                .changed();
+                        }
+                    });
+                combo.response.labelled_by(label.id);
+                if changed {
+                    cx.commands.push(Command::SetCase(edited));
+                }
+            }
+            Purpose::TradeIn(_) => {
+                let mut changed = text(ui, case::STOCK_NUMBER, &mut edited.stock_number, 120.0);
+                changed |= text(ui, case::CUSTOMER, &mut edited.customer, 200.0);
+                if changed {
+                    cx.commands.push(Command::SetCase(edited));
+                }
+            }
+            Purpose::Value => {}
         }
     });
 }

@@ -1,0 +1,318 @@
+//! The ground rules of the appraisal: every engine option the command line has, grouped as the
+//! trade thinks of them: the appraisal date, how the market is fitted, which listings may be
+//! comparables. Each change is a command (undoable, saved in the session); a claim's profile
+//! filters are shown locked with their citation.
+
+use eframe::egui::{self, RichText, Ui};
+use model::appraisal::AsOfSource;
+use model::comparables::{ComparableRules, MileageRule};
+use model::hedonic::AgeForm;
+use model::session::Purpose;
+
+use super::PaneContext;
+use crate::command::Command;
+
+/// The tab's heading and accessible name.
+pub const SETTINGS_LABEL: &str = "Ground rules";
+
+/// Label of the appraisal date's field.
+pub const APPRAISAL_DATE_LABEL: &str = "Appraisal date";
+
+/// Label of the model-year window's field.
+pub const YEAR_WINDOW_LABEL: &str = "Model years either side";
+
+/// Draws the pane.
+pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
+    egui::ScrollArea::vertical()
+        .id_salt("settings_scroll")
+        .show(ui, |ui| {
+            ui.heading(SETTINGS_LABEL);
+            ui.small(
+                "Every change refits or re-appraises at once, can be undone (Ctrl+Z) and is saved with the session.",
+            );
+            ui.add_space(6.0);
+            appraisal_date_ui(ui, cx);
+            ui.separator();
+            fitting_ui(ui, cx);
+            ui.separator();
+            comparables_ui(ui, cx);
+        });
+}
+
+fn appraisal_date_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
+    ui.strong(APPRAISAL_DATE_LABEL);
+    let claim = matches!(cx.document.purpose, Purpose::Claim { .. });
+    if claim {
+        ui.label("In a claim the appraisal date is the date of loss: ages, listing ages and the 90-day window are counted back from it.");
+    } else {
+        ui.label("Ages and listing ages are counted back from this date.");
+    }
+    let set = cx.document.fit.as_of;
+    ui.horizontal(|ui| {
+        let label = ui.label(if claim { "Date of loss" } else { "Date" });
+        if let Some(date) = super::date_field(ui, "appraisal_date", set, label.id) {
+            cx.commands.push(Command::SetAppraisalDate(date));
+        }
+        if set.is_some()
+            && ui
+                .button("Use the market's latest date")
+                .on_hover_text("The latest listing or sale date in the market file")
+                .clicked()
+        {
+            cx.commands.push(Command::SetAppraisalDate(None));
+        }
+    });
+    ui.small(match cx.fit.as_of_source {
+        AsOfSource::Given => format!("In use: {} (as set).", cx.fit.as_of),
+        AsOfSource::LatestInMarket => format!(
+            "In use: {}, the market's latest listing or sale date.",
+            cx.fit.as_of
+        ),
+        AsOfSource::Today => format!(
+            "In use: {}, today: the listings have no dates. Set the date the market was pulled.",
+            cx.fit.as_of
+        ),
+    });
+}
+
+fn fitting_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
+    ui.strong("How the market is fitted");
+    let fit = cx.document.fit;
+    ui.label("How price falls with age:");
+    let forms = [
+        (
+            AgeForm::Auto,
+            "Chosen by the data (lowest BIC among the forms that fall with age)",
+        ),
+        (AgeForm::Linear, "A constant rate each year"),
+        (AgeForm::Quadratic, "A rate that changes smoothly with age"),
+        (
+            AgeForm::PerYear,
+            "Each model year on its own (no shape imposed)",
+        ),
+    ];
+    for (form, words) in forms {
+        if ui.radio(fit.age_form == form, words).clicked() && fit.age_form != form {
+            cx.commands.push(Command::SetAgeForm(form));
+        }
+    }
+    if let Some(choice) = &cx.fit.age_form_choice {
+        ui.small(format!("In use: {}", choice.reason));
+    }
+    let mut robust = fit.robust;
+    if ui
+        .checkbox(
+            &mut robust,
+            "Robust fit (Huber): listings far from the curve count less",
+        )
+        .changed()
+    {
+        cx.commands.push(Command::SetRobust(robust));
+    }
+    let stale = fit.cleaning.stale_after_days;
+    ui.horizontal(|ui| {
+        let mut on = stale.is_some();
+        let label = "Set aside unsold listings older than";
+        if ui.checkbox(&mut on, label).changed() {
+            cx.commands
+                .push(Command::SetStaleDays(on.then_some(stale.unwrap_or(180))));
+        }
+        let mut days = stale.unwrap_or(180);
+        let field = ui.add_enabled(
+            on,
+            egui::DragValue::new(&mut days)
+                .range(1..=3_650)
+                .suffix(" days"),
+        );
+        if field
+            .on_hover_text("Stale listings: asking prices that did not sell")
+            .changed()
+        {
+            cx.commands.push(Command::SetStaleDays(Some(days)));
+        }
+    });
+}
+
+fn comparables_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
+    ui.strong("Which listings may be comparables");
+    let rules = cx.document.rules;
+    let profile = match &cx.document.purpose {
+        Purpose::Claim { profile, .. } => Some(profile.clone()),
+        _ => None,
+    };
+    egui::Grid::new("comparable_rules")
+        .num_columns(2)
+        .spacing([12.0, 6.0])
+        .show(ui, |ui| {
+            let label = ui.label(YEAR_WINDOW_LABEL);
+            let mut years = rules.model_year_window;
+            if ui
+                .add(egui::DragValue::new(&mut years).range(0..=30).prefix("± "))
+                .labelled_by(label.id)
+                .changed()
+            {
+                cx.commands.push(Command::SetYearWindow(years));
+            }
+            ui.end_row();
+
+            ui.label("Mileage");
+            match &profile {
+                Some(p) => locked(
+                    ui,
+                    &rule_text(&p.comparable_rules(&rules)),
+                    &p.mileage_rule.source(),
+                ),
+                None => mileage_ui(ui, cx, rules.mileage),
+            }
+            ui.end_row();
+
+            ui.label("Listing age");
+            match &profile {
+                Some(p) => locked(
+                    ui,
+                    &limit_text(
+                        p.max_listing_age_days.value.map(f64::from),
+                        "days before the appraisal date",
+                    ),
+                    &p.max_listing_age_days.source(),
+                ),
+                None => listing_age_ui(ui, cx, rules.max_listing_age_days),
+            }
+            ui.end_row();
+
+            ui.label("Distance");
+            match &profile {
+                Some(p) => locked(
+                    ui,
+                    &limit_text(p.max_distance_miles.value, "miles away"),
+                    &p.max_distance_miles.source(),
+                ),
+                None => distance_ui(ui, cx, rules.max_distance_miles),
+            }
+            ui.end_row();
+
+            ui.label("Variant");
+            let mut same = rules.same_variant_only;
+            if ui
+                .checkbox(&mut same, "only the subject's own variant")
+                .changed()
+            {
+                cx.commands.push(Command::SetSameVariant(same));
+            }
+            ui.end_row();
+
+            let label = ui.label("Comparables to keep");
+            let mut count = rules.count;
+            if ui
+                .add(egui::DragValue::new(&mut count).range(1..=30))
+                .labelled_by(label.id)
+                .changed()
+            {
+                cx.commands.push(Command::SetComparableCount(count));
+            }
+            ui.end_row();
+        });
+    if let Some(p) = &profile {
+        ui.small(format!(
+            "The {} profile sets the mileage, listing-age and distance rules of this claim and at least {} comparables ({}); choose another profile in the worksheet to change them.",
+            p.name,
+            p.min_comparables.value,
+            p.min_comparables.source()
+        ));
+    }
+}
+
+/// A rule the claim's profile sets: its value, and where it comes from on hover and below.
+fn locked(ui: &mut Ui, value: &str, source: &str) {
+    ui.vertical(|ui| {
+        ui.label(RichText::new(format!("{value} (set by the profile)")).strong())
+            .on_hover_text("Set by the claim's jurisdiction profile");
+        ui.small(format!("Source: {source}"));
+    });
+}
+
+fn limit_text(limit: Option<f64>, unit: &str) -> String {
+    limit.map_or_else(
+        || "no limit".to_owned(),
+        |v| format!("at most {} {unit}", model::format::thousands(v)),
+    )
+}
+
+fn rule_text(rules: &ComparableRules) -> String {
+    rules.mileage.to_string()
+}
+
+fn mileage_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, current: MileageRule) {
+    let none = MileageRule {
+        max_over: None,
+        max_under: None,
+    };
+    let choices = [
+        (
+            MileageRule::default_pricing(),
+            "Within 15,000 mi or 30 % either way",
+        ),
+        (
+            MileageRule::new_york(),
+            "At most 4,000 mi or 10 % more (11 NYCRR 216.7)",
+        ),
+        (none, "No limit"),
+    ];
+    ui.vertical(|ui| {
+        for (rule, words) in choices {
+            if ui.radio(current == rule, words).clicked() && current != rule {
+                cx.commands.push(Command::SetMileageRule(rule));
+            }
+        }
+        if !choices.iter().any(|(rule, _)| *rule == current) {
+            ui.small(format!("In use (as saved): {current}"));
+        }
+    });
+}
+
+fn listing_age_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, current: Option<u32>) {
+    ui.horizontal(|ui| {
+        let mut on = current.is_some();
+        if ui.checkbox(&mut on, "listed at most").changed() {
+            cx.commands
+                .push(Command::SetListingAge(on.then_some(current.unwrap_or(90))));
+        }
+        let mut days = current.unwrap_or(90);
+        if ui
+            .add_enabled(
+                on,
+                egui::DragValue::new(&mut days)
+                    .range(1..=3_650)
+                    .suffix(" days"),
+            )
+            .changed()
+        {
+            cx.commands.push(Command::SetListingAge(Some(days)));
+        }
+        ui.label("before the appraisal date");
+    });
+}
+
+fn distance_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, current: Option<f64>) {
+    ui.horizontal(|ui| {
+        let mut on = current.is_some();
+        if ui.checkbox(&mut on, "at most").changed() {
+            cx.commands
+                .push(Command::SetDistance(on.then_some(current.unwrap_or(150.0))));
+        }
+        let mut miles = current.unwrap_or(150.0);
+        if ui
+            .add_enabled(
+                on,
+                egui::DragValue::new(&mut miles)
+                    .range(1.0..=25_000.0)
+                    .speed(5.0)
+                    .suffix(" mi"),
+            )
+            .changed()
+        {
+            cx.commands.push(Command::SetDistance(Some(miles)));
+        }
+        ui.label("away (needs a distance column)");
+    });
+}

@@ -1,0 +1,314 @@
+//! The two desks' day in the workbench: every engine setting changed on screen (undone, saved,
+//! reopened), a claim's case details and date of loss, the subject's VIN checked, the session
+//! found again by its number, and a trade-in report fit to hand to the customer.
+
+use app::command::Command;
+use app::document::{AppraisalDocument, default_trade_in};
+use app::panes::settings::{SETTINGS_LABEL, YEAR_WINDOW_LABEL};
+use app::workbench::CentralView;
+use app::workbench::finder::{FINDER_FILTER_LABEL, FINDER_TITLE};
+use chrono::NaiveDate;
+use egui_kittest::kittest::Queryable;
+use model::case::{self, CaseDetails, LossType};
+use model::format::cents;
+use model::hedonic::AgeForm;
+use model::session::{Purpose, read_session};
+
+use crate::support::{
+    SMALL_DEMO, claim_in_new_york, comparables, harness_on, indicated, scratch, workbench,
+    workbench_on,
+};
+
+#[test]
+fn every_ground_rule_is_on_screen_and_a_change_is_undone_saved_and_reopened() {
+    let mut wb = workbench();
+    wb.show_view(CentralView::Settings);
+    let mut harness = harness_on(wb);
+    // The tab and the pane's heading.
+    assert_eq!(harness.get_all_by_label(SETTINGS_LABEL).count(), 2);
+    harness.get_by_label(YEAR_WINDOW_LABEL);
+    for words in [
+        "Robust fit (Huber): listings far from the curve count less",
+        "Set aside unsold listings older than",
+        "only the subject's own variant",
+        "Use the market's latest date",
+    ] {
+        harness.get_by_label_contains(words);
+    }
+    // The age form, chosen on screen: the fit changes to it, and undo brings the data's choice
+    // back.
+    let chosen_by_data = harness
+        .state()
+        .runtime()
+        .fit
+        .as_ref()
+        .unwrap()
+        .model
+        .params()
+        .age_form;
+    let other = if chosen_by_data == AgeForm::Linear {
+        ("A rate that changes smoothly with age", AgeForm::Quadratic)
+    } else {
+        ("A constant rate each year", AgeForm::Linear)
+    };
+    harness.get_by_label(other.0).click();
+    harness.run_steps(2);
+    harness.state_mut().wait_for_jobs();
+    harness.run_steps(1);
+    assert_eq!(harness.state().document().fit.age_form, other.1);
+    assert_eq!(
+        harness
+            .state()
+            .runtime()
+            .fit
+            .as_ref()
+            .unwrap()
+            .model
+            .params()
+            .age_form,
+        other.1
+    );
+    harness.state_mut().undo();
+    harness.state_mut().wait_for_jobs();
+    assert_eq!(harness.state().document().fit.age_form, AgeForm::Auto);
+    assert_eq!(
+        harness
+            .state()
+            .runtime()
+            .fit
+            .as_ref()
+            .unwrap()
+            .model
+            .params()
+            .age_form,
+        chosen_by_data
+    );
+
+    // The robust fit, switched on screen.
+    harness.run_steps(1);
+    harness
+        .get_by_label("Robust fit (Huber): listings far from the curve count less")
+        .click();
+    harness.run_steps(2);
+    harness.state_mut().wait_for_jobs();
+    let robust = !AppraisalDocument::demo(SMALL_DEMO).fit.robust;
+    assert_eq!(harness.state().document().fit.robust, robust);
+
+    // A wider year window and a date of its own; saved and reopened with both.
+    let mut wb = harness.into_state();
+    wb.apply(Command::SetYearWindow(3));
+    let date = NaiveDate::from_ymd_opt(2026, 10, 15).unwrap();
+    wb.apply(Command::SetAppraisalDate(Some(date)));
+    wb.wait_for_jobs();
+    let subject_year = wb.document().subject.model_year;
+    assert!(
+        comparables(&wb)
+            .iter()
+            .all(|l| (l.model_year - subject_year).abs() <= 3)
+    );
+    assert_eq!(wb.runtime().fit.as_ref().unwrap().as_of, date);
+    let value = indicated(&wb);
+    let path = scratch("ground-rules").join("rules.ron");
+    wb.save_session(&path).unwrap();
+    let session = read_session(&path).unwrap();
+    assert_eq!(session.request.rules.model_year_window, 3);
+    assert_eq!(session.fit.settings.robust, robust);
+
+    let mut other = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
+    other.open_session(&path).unwrap();
+    other.wait_for_jobs();
+    assert_eq!(other.document().rules.model_year_window, 3);
+    assert_eq!(other.document().fit.as_of, Some(date));
+    assert_eq!(other.document().fit.robust, robust);
+    assert_eq!(cents(indicated(&other)), cents(value));
+}
+
+#[test]
+fn a_claims_profile_locks_its_rules_on_screen_with_their_source() {
+    let mut wb = workbench();
+    claim_in_new_york(&mut wb, 9_000);
+    wb.wait_for_jobs();
+    wb.show_view(CentralView::Settings);
+    let harness = harness_on(wb);
+    // Mileage, listing age and distance.
+    assert_eq!(
+        harness
+            .get_all_by_label_contains("(set by the profile)")
+            .count(),
+        3
+    );
+    harness.get_by_label_contains("Source: 11 NYCRR 216.7");
+    harness.get_by_label("Date of loss");
+}
+
+#[test]
+fn a_claims_case_details_and_date_of_loss_are_saved_shown_and_printed() {
+    let mut wb = workbench();
+    claim_in_new_york(&mut wb, 9_000);
+    let loss = NaiveDate::from_ymd_opt(2026, 11, 2).unwrap();
+    wb.apply(Command::SetAppraisalDate(Some(loss)));
+    wb.apply(Command::SetCase(CaseDetails {
+        claim_number: "CL-77-1203".into(),
+        insured: "Oda Prenn (invented)".into(),
+        loss_type: Some(LossType::Flood),
+        ..CaseDetails::default()
+    }));
+    wb.wait_for_jobs();
+    // The date of loss is the appraisal date, both ways.
+    assert_eq!(wb.document().case.date_of_loss, Some(loss));
+    assert_eq!(wb.runtime().fit.as_ref().unwrap().as_of, loss);
+    wb.show_view(CentralView::Worksheet);
+    let harness = harness_on(wb);
+    // The banner carries the case line; the worksheet its fields.
+    harness.get_by_label_contains("Claim number CL-77-1203");
+    harness.get_by_label(case::CLAIM_NUMBER);
+    harness.get_by_label(case::INSURED);
+    let mut wb = harness.into_state();
+
+    let dir = scratch("case-details");
+    let path = dir.join("flood.ron");
+    wb.save_session(&path).unwrap();
+    let session = read_session(&path).unwrap();
+    assert_eq!(session.case.claim_number, "CL-77-1203");
+    assert_eq!(session.case.date_of_loss, Some(loss));
+    assert_eq!(session.fit.settings.as_of, Some(loss));
+
+    let (pdf, html) = wb
+        .write_report(&dir.join("flood"), report::Audience::Full)
+        .unwrap();
+    let html = std::fs::read_to_string(html).unwrap();
+    for words in [
+        "CL-77-1203",
+        "Oda Prenn (invented)",
+        "flood",
+        "2026-11-02",
+        case::DATE_OF_LOSS,
+    ] {
+        assert!(html.contains(words), "{words} missing from the report");
+    }
+    assert!(pdf.exists());
+
+    // Found again by its number in the session finder.
+    wb.find_sessions_in(&dir);
+    wb.filter_sessions("cl-77");
+    let harness = harness_on(wb);
+    harness.get_by_label(FINDER_TITLE);
+    harness.get_by_label(FINDER_FILTER_LABEL);
+    harness.get_by_label_contains("1 of 1 session in");
+    harness.get_by_label("Open claim");
+    harness.get_by_label("Oda Prenn (invented)");
+    let mut wb = harness.into_state();
+    wb.filter_sessions("someone else");
+    let harness = harness_on(wb);
+    harness.get_by_label_contains("0 of 1 session in");
+    std::fs::remove_dir_all(&dir).ok();
+}
+
+#[test]
+fn the_subjects_vin_is_checked_and_a_bad_one_is_a_warning_beside_the_value() {
+    let mut wb = workbench();
+    let year = wb.document().subject.model_year;
+    let good =
+        model::vin::with_check_digit(&format!("0UT4PL220{}7M01556", model::vin::year_code(year)))
+            .unwrap();
+    wb.apply(Command::SetSubjectVin(Some(good.to_lowercase())));
+    wb.wait_for_jobs();
+    assert_eq!(wb.document().subject.vin.as_deref(), Some(good.as_str()));
+    let codes = |wb: &app::Workbench| -> Vec<&'static str> {
+        wb.runtime()
+            .appraisal
+            .as_ref()
+            .unwrap()
+            .warnings
+            .iter()
+            .map(|w| w.code.as_str())
+            .collect()
+    };
+    assert!(!codes(&wb).contains(&"subject_vin_not_valid"));
+    let harness = harness_on(wb);
+    harness.get_by_label("Checks (check digit and model year)");
+
+    // One character misread: the check digit no longer holds.
+    let mut wb = harness.into_state();
+    let mut bad = good.clone().into_bytes();
+    bad[12] = if bad[12] == b'5' { b'6' } else { b'5' };
+    let bad = String::from_utf8(bad).unwrap();
+    wb.apply(Command::SetSubjectVin(Some(bad)));
+    wb.wait_for_jobs();
+    assert!(codes(&wb).contains(&"subject_vin_not_valid"));
+    let harness = harness_on(wb);
+    harness.get_by_label_contains("Does not check:");
+    // The warning stands beside the value as well.
+    harness.get_by_label_contains("The subject's VIN");
+
+    // Clearing it clears the warning.
+    let mut wb = harness.into_state();
+    wb.apply(Command::SetSubjectVin(Some("  ".into())));
+    wb.wait_for_jobs();
+    assert_eq!(wb.document().subject.vin, None);
+    assert!(!codes(&wb).contains(&"subject_vin_not_valid"));
+}
+
+#[test]
+fn using_a_listing_as_the_subject_keeps_the_subjects_own_vin() {
+    let mut wb = workbench();
+    wb.apply(Command::SetSubjectVin(Some("0UT4PL220N7M01556".into())));
+    wb.wait_for_jobs();
+    let listing = comparables(&wb)[0].clone();
+    assert_ne!(listing.vin.as_deref(), Some("0UT4PL220N7M01556"));
+    wb.select(Some(listing.row));
+    let mut harness = harness_on(wb);
+    harness.get_by_label("Use as subject").click();
+    harness.run_steps(2);
+    let wb = harness.state();
+    assert_eq!(wb.document().subject.miles, listing.miles);
+    assert_eq!(
+        wb.document().subject.vin.as_deref(),
+        Some("0UT4PL220N7M01556"),
+        "the listing's VIN is another vehicle's"
+    );
+}
+
+#[test]
+fn the_customers_trade_in_report_leaves_out_the_dealers_margin() {
+    let mut wb = workbench_on(AppraisalDocument::demo(SMALL_DEMO));
+    wb.apply(Command::ChoosePurpose(Purpose::TradeIn(default_trade_in())));
+    wb.apply(Command::SetCase(CaseDetails {
+        stock_number: "T-88-0017".into(),
+        customer: "Lis Avenholt (invented)".into(),
+        ..CaseDetails::default()
+    }));
+    wb.wait_for_jobs();
+    let dir = scratch("customer-report");
+    let (_, full) = wb
+        .write_report(&dir.join("full"), report::Audience::Full)
+        .unwrap();
+    let (_, customer) = wb
+        .write_report(&dir.join("customer"), report::Audience::Customer)
+        .unwrap();
+    let full = std::fs::read_to_string(full).unwrap();
+    let customer = std::fs::read_to_string(customer).unwrap();
+    let offer = {
+        let doc = wb.document();
+        let outcome = model::session::work_out(
+            &doc.purpose,
+            wb.runtime().appraisal.as_ref().unwrap(),
+            &doc.request(),
+        )
+        .unwrap();
+        outcome.bottom_line().unwrap().1
+    };
+    for html in [&full, &customer] {
+        assert!(html.contains(&cents(offer)), "the offer is in both");
+        assert!(html.contains("Lis Avenholt (invented)"));
+    }
+    for internal in ["less pack", "less target front gross", "less holding"] {
+        assert!(full.contains(internal), "{internal} in the full report");
+        assert!(
+            !customer.contains(internal),
+            "{internal} must not reach the customer"
+        );
+    }
+    assert!(customer.contains("Your trade-in"));
+    std::fs::remove_dir_all(&dir).ok();
+}

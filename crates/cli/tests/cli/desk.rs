@@ -1,0 +1,216 @@
+//! The two desks on the command line: case details and the date of loss, the appraiser's own
+//! lines with a basis in their own words, the customer's copy of a trade-in report, and words
+//! instead of codes.
+
+use crate::common::{comptrail, repo, succeeded};
+
+const SUBJECT: &str =
+    "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used";
+
+fn json(args: &[&str]) -> serde_json::Value {
+    let out = succeeded(args);
+    serde_json::from_slice(&out.stdout).expect("JSON")
+}
+
+#[test]
+fn the_date_of_loss_is_the_appraisal_date_and_the_case_is_carried() {
+    let market = repo("assets/demo-market.csv");
+    let doc = json(&[
+        "appraise",
+        &market,
+        "--subject",
+        SUBJECT,
+        "--date-of-loss",
+        "2026-10-20",
+        "--claim-number",
+        "CL-55-0101",
+        "--insured",
+        "Ilka Sorrow (invented)",
+        "--loss-type",
+        "Hail",
+        "--json",
+    ]);
+    assert_eq!(doc["as_of"], "2026-10-20");
+    assert_eq!(doc["case"]["claim_number"], "CL-55-0101");
+    assert_eq!(doc["case"]["date_of_loss"], "2026-10-20");
+    assert_eq!(doc["case"]["loss_type"], "hail");
+    // Every comparable was on the market on the date of loss.
+    for c in doc["comparables"].as_array().unwrap() {
+        let listed = c["listing"]["listed_on"].as_str().unwrap();
+        assert!(listed <= "2026-10-20", "{listed}");
+        assert!(c["days_listed"].as_i64().unwrap() >= 0);
+    }
+    // The text output names the case and says why later listings were left out, in words.
+    let out = succeeded(&[
+        "appraise",
+        &market,
+        "--subject",
+        SUBJECT,
+        "--date-of-loss",
+        "2026-10-20",
+        "--claim-number",
+        "CL-55-0101",
+    ]);
+    let shown = String::from_utf8_lossy(&out.stdout);
+    assert!(shown.contains("Claim number CL-55-0101"), "{shown}");
+    assert!(shown.contains("listed after the appraisal date"), "{shown}");
+    assert!(!shown.contains("listed_after_appraisal_date"), "{shown}");
+    assert!(!shown.contains("model_year_outside_window"), "{shown}");
+}
+
+#[test]
+fn a_date_of_loss_that_disagrees_with_the_appraisal_date_is_refused() {
+    let out = comptrail(&[
+        "appraise",
+        &repo("assets/demo-market.csv"),
+        "--subject",
+        SUBJECT,
+        "--date-of-loss",
+        "2026-10-20",
+        "--as-of",
+        "2026-11-30",
+    ]);
+    assert_eq!(out.status.code(), Some(1));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains("--date-of-loss 2026-10-20 and --as-of 2026-11-30 disagree"),
+        "{err}"
+    );
+    // The same date given twice is fine.
+    succeeded(&[
+        "appraise",
+        &repo("assets/demo-market.csv"),
+        "--subject",
+        SUBJECT,
+        "--date-of-loss",
+        "2026-11-30",
+        "--as-of",
+        "2026-11-30",
+    ]);
+    let out = comptrail(&[
+        "appraise",
+        &repo("assets/demo-market.csv"),
+        "--subject",
+        SUBJECT,
+        "--loss-type",
+        "meteor",
+    ]);
+    assert_ne!(out.status.code(), Some(0));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("\"meteor\" is not a type of loss"), "{err}");
+}
+
+#[test]
+fn an_adjustment_on_one_line_keeps_a_basis_with_colons() {
+    let market = repo("assets/demo-market.csv");
+    let plain = json(&["appraise", &market, "--subject", SUBJECT, "--json"]);
+    let line = plain["comparables"][1]["listing"]["line"].as_u64().unwrap();
+    let spec = format!("condition@{line}:-400:seat torn: driver side, 3 in");
+    let doc = json(&[
+        "appraise",
+        &market,
+        "--subject",
+        SUBJECT,
+        "--adjust",
+        &spec,
+        "--json",
+    ]);
+    let mut found = 0;
+    for c in doc["comparables"].as_array().unwrap() {
+        let mine: Vec<&serde_json::Value> = c["adjustments"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .filter(|a| a["kind"] == "condition")
+            .collect();
+        if c["listing"]["line"].as_u64() == Some(line) {
+            assert_eq!(mine.len(), 1, "{c}");
+            assert_eq!(mine[0]["amount"], -400.0);
+            assert!(
+                mine[0]["basis"]
+                    .as_str()
+                    .unwrap()
+                    .starts_with("seat torn: driver side, 3 in"),
+                "{c}"
+            );
+            found += 1;
+        } else {
+            assert!(mine.is_empty(), "only line {line} carries it: {c}");
+        }
+    }
+    assert_eq!(found, 1);
+    // Without @LINE it applies to every comparable.
+    let doc = json(&[
+        "appraise",
+        &market,
+        "--subject",
+        SUBJECT,
+        "--adjust",
+        "options:250:heated seats: front only",
+        "--json",
+    ]);
+    for c in doc["comparables"].as_array().unwrap() {
+        assert!(
+            c["adjustments"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .any(|a| a["kind"] == "options"
+                    && a["basis"]
+                        .as_str()
+                        .unwrap()
+                        .starts_with("heated seats: front only")),
+            "{c}"
+        );
+    }
+    // A kind it does not know is named with the kinds it does.
+    let out = comptrail(&[
+        "appraise",
+        &market,
+        "--subject",
+        SUBJECT,
+        "--adjust",
+        "paint:100:new paint",
+    ]);
+    assert_ne!(out.status.code(), Some(0));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("paint") && err.contains("condition"), "{err}");
+}
+
+#[test]
+fn the_customers_copy_of_a_trade_in_report_leaves_out_the_dealers_margin() {
+    let dir = std::env::temp_dir().join(format!("comptrail-cli-customer-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let session = repo("sample-sessions/dealer-trade-in.ron");
+    let full = dir.join("full.html");
+    let customer = dir.join("customer.html");
+    let customer_pdf = dir.join("customer.pdf");
+    succeeded(&["report", &session, "--html", full.to_str().unwrap()]);
+    succeeded(&[
+        "report",
+        &session,
+        "--customer",
+        "--html",
+        customer.to_str().unwrap(),
+        "--pdf",
+        customer_pdf.to_str().unwrap(),
+    ]);
+    let full = std::fs::read_to_string(full).unwrap();
+    let customer = std::fs::read_to_string(customer).unwrap();
+    assert!(std::fs::read(customer_pdf).unwrap().starts_with(b"%PDF-"));
+    for html in [&full, &customer] {
+        assert!(html.contains("ACV offer"));
+        assert!(html.contains("T-26-0412"), "the stock number is printed");
+    }
+    for internal in ["less pack", "less target front gross", "less holding"] {
+        assert!(full.contains(internal), "{internal}");
+        assert!(
+            !customer.contains(internal),
+            "{internal} reached the customer"
+        );
+    }
+    assert!(customer.contains("Your trade-in"));
+    assert!(customer.contains(model::worksheet::rows::CUSTOMER_OFFER_NOTE));
+    std::fs::remove_dir_all(&dir).ok();
+}
