@@ -448,6 +448,10 @@ fn the_finder_finds_a_session_by_its_claim_number_customer_or_vin() {
     let found: Vec<_> = shelf.matching("castell T-26").collect();
     assert_eq!(found.len(), 1);
     assert_eq!(found[0].number, "T-26-0412");
+    assert_eq!(
+        found[0].vehicle,
+        "2022 Quellmark Tessel Ambrel, 41,000 mi, used"
+    );
     assert!(found[0].bottom_line.starts_with("ACV offer $"));
 
     let trade = model::session::read_session(&dir.join("dealer-trade-in.ron")).unwrap();

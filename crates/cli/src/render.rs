@@ -441,7 +441,7 @@ pub fn gaps(doc: &GapsDocument, top: usize) -> String {
             },
             g.exclusion
                 .as_deref()
-                .map(|e| format!(" [excluded: {e}]"))
+                .map(|e| format!(" [set aside: {}]", model::clean::rule_in_words(e)))
                 .unwrap_or_default()
         );
     };

@@ -149,8 +149,12 @@ pub fn appraisal_warnings(f: &AppraisalFacts<'_>) -> Vec<Warning> {
             Warning::new(
                 WarningCode::FewComparables,
                 format!(
-                    "Only {k} comparable{} passed the filters where {} {} asked for: the value leans {} the model's estimate. Widen the model-year window, the mileage rule or the listing age, or add comparables by hand.",
-                    if k == 1 { "" } else { "s" },
+                    "{} passed the filters where {} {} asked for: the value leans {} the model's estimate. Widen the model-year window, the mileage rule or the listing age, or add comparables by hand.",
+                    match k {
+                        0 => "No comparable".to_owned(),
+                        1 => "Only 1 comparable".to_owned(),
+                        _ => format!("Only {k} comparables"),
+                    },
                     f.comparables_asked,
                     if f.comparables_asked == 1 { "was" } else { "were" },
                     if k == 0 { "entirely on" } else { "more on" }

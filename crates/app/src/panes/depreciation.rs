@@ -2,11 +2,12 @@
 //! variant premium by age, and the subject's holding-period forecast.
 
 use eframe::egui::{self, RichText, Ui};
-use egui_plot::{Legend, Line, Plot};
+use egui_plot::{Line, Plot};
 use model::depreciation::depreciation_table;
 use model::format::{money, signed_money, thousands};
 
 use super::PaneContext;
+use super::key::{Glyph, KeyEntry};
 
 /// Oldest age in the table.
 const MAX_AGE: u32 = 10;
@@ -22,11 +23,24 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
         thousands(cx.fit.model.mileage().annual_miles)
     ));
     ui.columns(2, |columns| {
+        let entries: Vec<KeyEntry> = table
+            .curves
+            .iter()
+            .map(|c| KeyEntry::new(Glyph::Line, cx.variant_color_named(&c.variant), &c.variant))
+            .collect();
+        super::key::key_ui(&mut columns[0], "depreciation_key", &entries);
         Plot::new("depreciation_curves")
-            .legend(Legend::default())
-            .height(260.0)
+            .height(240.0)
             .x_axis_label("age (model years)")
             .y_axis_label("value at typical miles")
+            .x_axis_formatter(|mark, _| {
+                if mark.value.fract().abs() < 1e-9 {
+                    format!("{:.0}", mark.value)
+                } else {
+                    String::new()
+                }
+            })
+            .y_axis_formatter(|mark, _| money(mark.value))
             .show(&mut columns[0], |plot| {
                 for curve in &table.curves {
                     let points: Vec<[f64; 2]> = curve

@@ -19,7 +19,7 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>, gaps: Option<&crate::jobs::Flag
     };
     ui.label(format!(
         "{} listings of {}. Flags against each listing's own {:.0} % prediction interval. Far below the market may be a deal, or a branded title or damage: look before relying on it.",
-        gaps.len(),
+        model::format::thousands(gaps.len() as f64),
         cx.market.segment_name(cx.fit.segment),
         100.0 * level
     ));
@@ -53,7 +53,7 @@ fn table<'a>(
                     "market",
                     "gap",
                     "against its band",
-                    "cleaning",
+                    "set aside by cleaning",
                 ] {
                     ui.label(RichText::new(h).strong());
                 }
@@ -76,7 +76,11 @@ fn table<'a>(
                         GapFlag::BelowMarket => "below band",
                         GapFlag::AboveMarket => "above band",
                     });
-                    ui.label(g.exclusion.as_deref().unwrap_or(""));
+                    ui.label(
+                        g.exclusion
+                            .as_deref()
+                            .map_or("", model::clean::rule_in_words),
+                    );
                     ui.end_row();
                 }
             });

@@ -43,11 +43,19 @@ impl KeyEntry {
     }
 }
 
-/// Draws `entries` in rows that wrap, under a fold titled "Key" (open until folded).
+/// Height below which a chart's key starts folded, so the plot keeps most of a small pane (at
+/// 1280×800 the charts are about 440 points tall).
+const OPEN_KEY_MIN_HEIGHT: f32 = 500.0;
+
+/// A key of at most this many entries takes one row and is never folded at first.
+const SHORT_KEY: usize = 4;
+
+/// Draws `entries` in rows that wrap, under a fold titled "Key" (open until folded; a long key
+/// in a short pane starts folded).
 pub fn key_ui(ui: &mut Ui, id: &str, entries: &[KeyEntry]) {
     egui::CollapsingHeader::new("Key")
         .id_salt(id)
-        .default_open(true)
+        .default_open(entries.len() <= SHORT_KEY || ui.available_height() >= OPEN_KEY_MIN_HEIGHT)
         .show(ui, |ui| {
             ui.horizontal_wrapped(|ui| {
                 ui.spacing_mut().item_spacing.x = 14.0;

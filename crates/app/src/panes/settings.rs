@@ -43,9 +43,9 @@ fn appraisal_date_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     ui.strong(APPRAISAL_DATE_LABEL);
     let claim = matches!(cx.document.purpose, Purpose::Claim { .. });
     if claim {
-        ui.label("In a claim the appraisal date is the date of loss: ages, listing ages and the 90-day window are counted back from it.");
+        ui.label("In a claim the appraisal date is the date of loss: ages and listing ages are counted back from it, and a listing first listed after it is not a comparable.");
     } else {
-        ui.label("Ages and listing ages are counted back from this date.");
+        ui.label("Ages and listing ages are counted back from this date; a listing first listed after it is not a comparable.");
     }
     let set = cx.document.fit.as_of;
     ui.horizontal(|ui| {

@@ -20,7 +20,7 @@ pub struct SessionCard {
     pub person: String,
     /// The subject's VIN (empty when none was given).
     pub vin: String,
-    /// "2021 Quellmark Brindle Durnow, 52,300 mi".
+    /// "2021 Quellmark Brindle Durnow, 52,300 mi, used".
     pub vehicle: String,
     /// Who appraised it.
     pub appraiser: String,
@@ -47,11 +47,7 @@ impl SessionCard {
             number: session.case.number(purpose).to_owned(),
             person: session.case.person(purpose).to_owned(),
             vin: subject.vin.clone().unwrap_or_default(),
-            vehicle: format!(
-                "{}, {} mi",
-                subject.describe(),
-                crate::format::thousands(subject.miles)
-            ),
+            vehicle: subject.describe(),
             appraiser: session.authorship.appraiser.clone(),
             saved: session.authorship.saved,
             bottom_line: match session.result.bottom_line() {

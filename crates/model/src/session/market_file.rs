@@ -39,6 +39,8 @@ pub fn find_market_file(
     };
     for candidate in &candidates {
         if let Ok(bytes) = std::fs::read(candidate) {
+            // Shown to people: "/cases/market.csv", not "/cases/claims/../market.csv".
+            let candidate = &std::fs::canonicalize(candidate).unwrap_or_else(|_| candidate.clone());
             let hash = content_hash(&bytes);
             return if hash == session.market.source.content_hash {
                 MarketFile::Unchanged(candidate.clone())
