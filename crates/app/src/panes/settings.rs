@@ -110,27 +110,15 @@ fn fitting_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
         cx.commands.push(Command::SetRobust(robust));
     }
     let stale = fit.cleaning.stale_after_days;
-    ui.horizontal(|ui| {
-        let mut on = stale.is_some();
-        let label = "Set aside unsold listings older than";
-        if ui.checkbox(&mut on, label).changed() {
-            cx.commands
-                .push(Command::SetStaleDays(on.then_some(stale.unwrap_or(180))));
-        }
-        let mut days = stale.unwrap_or(180);
-        let field = ui.add_enabled(
-            on,
-            egui::DragValue::new(&mut days)
-                .range(1..=3_650)
-                .suffix(" days"),
-        );
-        if field
-            .on_hover_text("Stale listings: asking prices that did not sell")
-            .changed()
-        {
-            cx.commands.push(Command::SetStaleDays(Some(days)));
-        }
-    });
+    let limit = OptionalLimit {
+        before: "Set aside unsold listings older than",
+        after: "",
+        default: 180,
+        range: 1..=3_650,
+        speed: 1.0,
+        suffix: " days",
+    };
+    limit.ui(ui, stale, cx.commands, Command::SetStaleDays);
 }
 
 fn comparables_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
@@ -271,48 +259,73 @@ fn mileage_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, current: MileageRule) {
 }
 
 fn listing_age_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, current: Option<u32>) {
-    ui.horizontal(|ui| {
-        let mut on = current.is_some();
-        if ui.checkbox(&mut on, "listed at most").changed() {
-            cx.commands
-                .push(Command::SetListingAge(on.then_some(current.unwrap_or(90))));
-        }
-        let mut days = current.unwrap_or(90);
-        if ui
-            .add_enabled(
-                on,
-                egui::DragValue::new(&mut days)
-                    .range(1..=3_650)
-                    .suffix(" days"),
-            )
-            .changed()
-        {
-            cx.commands.push(Command::SetListingAge(Some(days)));
-        }
-        ui.label("before the appraisal date");
-    });
+    let limit = OptionalLimit {
+        before: "listed at most",
+        after: "before the appraisal date",
+        default: 90,
+        range: 1..=3_650,
+        speed: 1.0,
+        suffix: " days",
+    };
+    limit.ui(ui, current, cx.commands, Command::SetListingAge);
 }
 
 fn distance_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, current: Option<f64>) {
-    ui.horizontal(|ui| {
-        let mut on = current.is_some();
-        if ui.checkbox(&mut on, "at most").changed() {
-            cx.commands
-                .push(Command::SetDistance(on.then_some(current.unwrap_or(150.0))));
+    let limit = OptionalLimit {
+        before: "at most",
+        after: "away (needs a distance column)",
+        default: 150.0,
+        range: 1.0..=25_000.0,
+        speed: 5.0,
+        suffix: " mi",
+    };
+    limit.ui(ui, current, cx.commands, Command::SetDistance);
+}
+
+/// A limit that can be switched off: a checkbox, the amount, and the words around them.
+struct OptionalLimit<T> {
+    before: &'static str,
+    after: &'static str,
+    default: T,
+    range: std::ops::RangeInclusive<T>,
+    speed: f64,
+    suffix: &'static str,
+}
+
+impl<T: egui::emath::Numeric> OptionalLimit<T> {
+    /// Draws it; a change (`None`: switched off) becomes the command `set` makes of it.
+    fn ui(
+        self,
+        ui: &mut Ui,
+        current: Option<T>,
+        commands: &mut Vec<Command>,
+        set: impl Fn(Option<T>) -> Command,
+    ) {
+        let mut change = None;
+        ui.horizontal(|ui| {
+            let mut on = current.is_some();
+            if ui.checkbox(&mut on, self.before).changed() {
+                change = Some(on.then_some(current.unwrap_or(self.default)));
+            }
+            let mut amount = current.unwrap_or(self.default);
+            if ui
+                .add_enabled(
+                    on,
+                    egui::DragValue::new(&mut amount)
+                        .range(self.range)
+                        .speed(self.speed)
+                        .suffix(self.suffix),
+                )
+                .changed()
+            {
+                change = Some(Some(amount));
+            }
+            if !self.after.is_empty() {
+                ui.label(self.after);
+            }
+        });
+        if let Some(limit) = change {
+            commands.push(set(limit));
         }
-        let mut miles = current.unwrap_or(150.0);
-        if ui
-            .add_enabled(
-                on,
-                egui::DragValue::new(&mut miles)
-                    .range(1.0..=25_000.0)
-                    .speed(5.0)
-                    .suffix(" mi"),
-            )
-            .changed()
-        {
-            cx.commands.push(Command::SetDistance(Some(miles)));
-        }
-        ui.label("away (needs a distance column)");
-    });
+    }
 }

@@ -19,6 +19,11 @@ use crate::support::{
     workbench_on,
 };
 
+/// The age form the fit on screen uses (the data's choice under `auto`).
+fn form_in_use(wb: &app::Workbench) -> AgeForm {
+    wb.runtime().fit.as_ref().unwrap().model.params().age_form
+}
+
 #[test]
 fn every_ground_rule_is_on_screen_and_a_change_is_undone_saved_and_reopened() {
     let mut wb = workbench();
@@ -37,15 +42,7 @@ fn every_ground_rule_is_on_screen_and_a_change_is_undone_saved_and_reopened() {
     }
     // The age form, chosen on screen: the fit changes to it, and undo brings the data's choice
     // back.
-    let chosen_by_data = harness
-        .state()
-        .runtime()
-        .fit
-        .as_ref()
-        .unwrap()
-        .model
-        .params()
-        .age_form;
+    let chosen_by_data = form_in_use(harness.state());
     let other = if chosen_by_data == AgeForm::Linear {
         ("A rate that changes smoothly with age", AgeForm::Quadratic)
     } else {
@@ -56,33 +53,11 @@ fn every_ground_rule_is_on_screen_and_a_change_is_undone_saved_and_reopened() {
     harness.state_mut().wait_for_jobs();
     harness.run_steps(1);
     assert_eq!(harness.state().document().fit.age_form, other.1);
-    assert_eq!(
-        harness
-            .state()
-            .runtime()
-            .fit
-            .as_ref()
-            .unwrap()
-            .model
-            .params()
-            .age_form,
-        other.1
-    );
+    assert_eq!(form_in_use(harness.state()), other.1);
     harness.state_mut().undo();
     harness.state_mut().wait_for_jobs();
     assert_eq!(harness.state().document().fit.age_form, AgeForm::Auto);
-    assert_eq!(
-        harness
-            .state()
-            .runtime()
-            .fit
-            .as_ref()
-            .unwrap()
-            .model
-            .params()
-            .age_form,
-        chosen_by_data
-    );
+    assert_eq!(form_in_use(harness.state()), chosen_by_data);
 
     // The robust fit, switched on screen.
     harness.run_steps(1);

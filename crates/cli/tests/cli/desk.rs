@@ -12,10 +12,20 @@ fn json(args: &[&str]) -> serde_json::Value {
     serde_json::from_slice(&out.stdout).expect("JSON")
 }
 
+/// The error output of appraising the demo subject on the demo market with `extra`, which must
+/// fail.
+fn refused(extra: &[&str]) -> String {
+    let market = repo("assets/demo-market.csv");
+    let args = [&["appraise", &market, "--subject", SUBJECT][..], extra].concat();
+    let out = comptrail(&args);
+    assert_ne!(out.status.code(), Some(0), "{args:?} should fail");
+    String::from_utf8_lossy(&out.stderr).into_owned()
+}
+
 #[test]
 fn the_date_of_loss_is_the_appraisal_date_and_the_case_is_carried() {
     let market = repo("assets/demo-market.csv");
-    let doc = json(&[
+    let claim = [
         "appraise",
         &market,
         "--subject",
@@ -28,8 +38,8 @@ fn the_date_of_loss_is_the_appraisal_date_and_the_case_is_carried() {
         "Ilka Sorrow (invented)",
         "--loss-type",
         "Hail",
-        "--json",
-    ]);
+    ];
+    let doc = json(&[&claim[..], &["--json"]].concat());
     assert_eq!(doc["as_of"], "2026-10-20");
     assert_eq!(doc["case"]["claim_number"], "CL-55-0101");
     assert_eq!(doc["case"]["date_of_loss"], "2026-10-20");
@@ -41,16 +51,7 @@ fn the_date_of_loss_is_the_appraisal_date_and_the_case_is_carried() {
         assert!(c["days_listed"].as_i64().unwrap() >= 0);
     }
     // The text output names the case and says why later listings were left out, in words.
-    let out = succeeded(&[
-        "appraise",
-        &market,
-        "--subject",
-        SUBJECT,
-        "--date-of-loss",
-        "2026-10-20",
-        "--claim-number",
-        "CL-55-0101",
-    ]);
+    let out = succeeded(&claim);
     let shown = String::from_utf8_lossy(&out.stdout);
     assert!(shown.contains("Claim number CL-55-0101"), "{shown}");
     assert!(shown.contains("listed after the appraisal date"), "{shown}");
@@ -87,16 +88,7 @@ fn a_date_of_loss_that_disagrees_with_the_appraisal_date_is_refused() {
         "--as-of",
         "2026-11-30",
     ]);
-    let out = comptrail(&[
-        "appraise",
-        &repo("assets/demo-market.csv"),
-        "--subject",
-        SUBJECT,
-        "--loss-type",
-        "meteor",
-    ]);
-    assert_ne!(out.status.code(), Some(0));
-    let err = String::from_utf8_lossy(&out.stderr);
+    let err = refused(&["--loss-type", "meteor"]);
     assert!(err.contains("\"meteor\" is not a type of loss"), "{err}");
 }
 
@@ -164,16 +156,7 @@ fn an_adjustment_on_one_line_keeps_a_basis_with_colons() {
         );
     }
     // A kind it does not know is named with the kinds it does.
-    let out = comptrail(&[
-        "appraise",
-        &market,
-        "--subject",
-        SUBJECT,
-        "--adjust",
-        "paint:100:new paint",
-    ]);
-    assert_ne!(out.status.code(), Some(0));
-    let err = String::from_utf8_lossy(&out.stderr);
+    let err = refused(&["--adjust", "paint:100:new paint"]);
     assert!(err.contains("paint") && err.contains("condition"), "{err}");
 }
 
