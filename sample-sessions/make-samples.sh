@@ -40,5 +40,5 @@ sample near-threshold-claim \
   --insured "Teodor Vance (invented)" --loss-type hail
 
 for s in dealer-trade-in total-loss-claim near-threshold-claim; do
-  comptrail appraise --session "sample-sessions/$s.ron" | sed -n 3p
+  comptrail appraise --session "sample-sessions/$s.ron" | grep "^reproduces\|^DOES NOT"
 done

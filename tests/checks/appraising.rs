@@ -32,7 +32,8 @@ fn comparables_pass_the_filters_and_carry_itemized_adjustments() {
                 AdjustmentKind::Mileage,
                 AdjustmentKind::ModelYear,
                 AdjustmentKind::Variant,
-                AdjustmentKind::SaleClass
+                AdjustmentKind::SaleClass,
+                AdjustmentKind::MarketConditions
             ]
         );
         let sum: f64 = c.adjustments.iter().map(|l| l.amount).sum();

@@ -42,14 +42,21 @@ fn agrees_with_linfa_linear_on_the_demo_market_design() {
     let mut x = Array2::zeros((rows.len(), p - 1));
     let mut y = Array1::zeros(rows.len());
     for (i, &r) in rows.iter().enumerate() {
-        let design_row = fit
+        let mut design_row = fit
             .model
             .design_row(&fit.model.attributes_of_row(&market, r));
+        // The market-conditions column at the listing's own date (a prediction row leaves it
+        // at the appraisal date), so linfa fits the same design, time term included.
+        if let Some(c) = fit.model.design().time_column() {
+            design_row[c] =
+                model::hedonic::market_time::months_before(fit.as_of, market.listed_on[r].unwrap());
+        }
         for j in 1..p {
             x[[i, j - 1]] = design_row[j];
         }
         y[i] = market.asking_price[r].ln();
     }
+    assert!(fit.model.design().time_column().is_some());
     let theirs = LinearRegression::new().fit(&Dataset::new(x, y)).unwrap();
     assert!((fit.model.coefficients()[0] - theirs.intercept()).abs() < 1e-9);
     for (k, b) in theirs.params().iter().enumerate() {

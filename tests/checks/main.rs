@@ -9,6 +9,7 @@ mod crosscheck;
 mod fuzz;
 mod guards;
 mod import;
+mod market_time;
 mod nist;
 mod profiles;
 mod properties;

@@ -281,6 +281,27 @@ fn format_2_sessions_are_migrated_and_still_reproduce() {
         let again = parse_session(&session_to_ron(&session).unwrap(), "again.ron").unwrap();
         assert_eq!(again, session, "{name}");
     }
+    // Format 4 (before the market-conditions term) reads with the term off and no drift, and
+    // replays its four fitted lines per comparable unchanged.
+    for name in ["format-4-dealer-trade-in", "format-4-total-loss-claim"] {
+        let path = data_path(&format!("sessions/{name}.ron"));
+        let text = std::fs::read_to_string(&path).unwrap();
+        assert_eq!(format_version_of(&text), Some(4), "{name}");
+        let session = read_session(&path).unwrap();
+        assert!(!session.fit.settings.market_time, "{name}");
+        assert_eq!(session.fit.rates.market_drift, None);
+        assert_eq!(session.fit.market_time, None);
+        assert!(!session.case.number(&session.purpose).is_empty(), "{name}");
+        let r = reproduce(&session).unwrap();
+        assert!(r.reproduces(), "{name}: {:?}", r.differences);
+        for c in &session.appraisal.comparables {
+            assert!(
+                c.adjustments
+                    .iter()
+                    .all(|l| l.kind != AdjustmentKind::MarketConditions)
+            );
+        }
+    }
     // The same text, declared as the current format, is refused for its fraction of a cent:
     // only older formats are rounded on reading.
     let text = std::fs::read_to_string(data_path("sessions/format-2-dealer-trade-in.ron")).unwrap();

@@ -61,6 +61,8 @@ pub enum Command {
     SetAgeForm(model::hedonic::AgeForm),
     /// Use the robust fit or least squares (refits the market).
     SetRobust(bool),
+    /// Let the market-conditions term enter the fit, or keep it out (refits the market).
+    SetMarketTime(bool),
     /// Set aside unsold listings older than this many days (`None` keeps them; refits).
     SetStaleDays(Option<u32>),
     /// Model years either side of the subject's a comparable may be.
@@ -178,6 +180,7 @@ pub fn apply(document: &mut AppraisalDocument, command: Command) -> bool {
         }
         Command::SetAgeForm(form) => document.fit.age_form = form,
         Command::SetRobust(robust) => document.fit.robust = robust,
+        Command::SetMarketTime(on) => document.fit.market_time = on,
         Command::SetStaleDays(days) => {
             document.fit.cleaning.stale_after_days = days.map(|d| d.clamp(1, 3_650));
         }

@@ -164,6 +164,10 @@ pub struct MarketArgs {
     /// Huber robust fit instead of least squares.
     #[arg(long)]
     pub robust: bool,
+    /// Leave the market-conditions term out of the fit (it enters when every listing is dated
+    /// and the dates span at least 90 days over 3 calendar months).
+    #[arg(long)]
+    pub no_market_time: bool,
     /// Appraisal date, YYYY-MM-DD (default: the market's latest listing or sale date).
     #[arg(long)]
     pub as_of: Option<String>,

@@ -201,6 +201,7 @@ fn default_market_args() -> MarketArgs {
         model: None,
         age_form: args::AgeFormArg::Auto,
         robust: false,
+        no_market_time: false,
         as_of: None,
         delimiter: None,
         odometer: args::OdometerArg::Miles,

@@ -61,6 +61,7 @@ pub fn fit_settings(args: &MarketArgs) -> Result<FitSettings> {
         },
         robust: args.robust,
         as_of: parse_as_of(args)?,
+        market_time: !args.no_market_time,
         ..FitSettings::default()
     };
     settings.cleaning.stale_after_days = (args.stale_days > 0).then_some(args.stale_days);

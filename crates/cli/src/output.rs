@@ -84,6 +84,28 @@ pub struct FitSummary {
     pub annual_depreciation: AnnualDepreciation,
     pub typical_annual_miles: f64,
     pub cleaning: CleaningSummary,
+    /// Whether the market-conditions term is in the fit, and why not.
+    pub market_time: model::hedonic::MarketTimeTerm,
+    /// The fitted drift, when the term is in the fit.
+    pub market_drift: Option<MarketDriftDoc>,
+    /// The market's monthly index, when the term is in the fit and every month has enough
+    /// listings.
+    pub market_index: Option<model::hedonic::market_time::MonthlyIndex>,
+    /// Why there is no monthly index although the term is in the fit.
+    pub market_index_missing: Option<String>,
+    /// The term in words.
+    pub market_conditions: String,
+}
+
+/// The fitted market drift.
+#[derive(Debug, Serialize)]
+pub struct MarketDriftDoc {
+    /// Coefficient on ln price per month before the appraisal date.
+    pub per_month_before: f64,
+    pub std_error: f64,
+    pub p_value: f64,
+    /// The market's change per month going forward, in percent.
+    pub monthly_change_pct: f64,
 }
 
 impl FitSummary {
@@ -111,6 +133,24 @@ impl FitSummary {
                 excluded_by_rule: fit.cleaning.counts(),
                 outlier_check_skipped: fit.cleaning.outlier_check_skipped.clone(),
             },
+            market_time: m.market_time().clone(),
+            market_drift: m.market_drift().map(|d| MarketDriftDoc {
+                per_month_before: d.per_month_before,
+                std_error: d.std_error,
+                p_value: d.p_value,
+                monthly_change_pct: d.monthly_change_pct(),
+            }),
+            market_index: fit.market_index.clone().and_then(Result::ok),
+            market_index_missing: fit
+                .market_index
+                .as_ref()
+                .and_then(|r| r.as_ref().err())
+                .map(ToString::to_string),
+            market_conditions: model::hedonic::market_time::summary(
+                m.market_time(),
+                m.market_drift()
+                    .map(|d| (d.per_month_before, d.is_distinguishable())),
+            ),
         }
     }
 }

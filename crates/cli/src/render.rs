@@ -119,6 +119,7 @@ pub fn fit(f: &FitSummary) -> String {
         f.smearing_factor
     );
     let _ = writeln!(o, "  age form: {}", f.age_form_reason);
+    let _ = writeln!(o, "  market conditions: {}", f.market_conditions);
     let _ = writeln!(
         o,
         "  {:<26} {:>12} {:>11} {:>9} {:>10}",
@@ -354,6 +355,44 @@ fn comparable(o: &mut String, number: usize, c: &model::appraisal::AdjustedCompa
     );
 }
 
+/// The market's monthly index, or why there is none.
+fn market_index(o: &mut String, f: &FitSummary) {
+    let _ = writeln!(
+        o,
+        "\nThe market's level by month (latest month = 100, attributes held fixed):"
+    );
+    match (&f.market_index, &f.market_index_missing) {
+        (Some(index), _) => {
+            let last = index.months.len().saturating_sub(1);
+            for (i, m) in index.months.iter().enumerate() {
+                let band = if i == last {
+                    "the base".to_owned()
+                } else {
+                    format!(
+                        "{:.0} % band {:.1} to {:.1}",
+                        100.0 * index.level,
+                        m.lower,
+                        m.upper
+                    )
+                };
+                let _ = writeln!(
+                    o,
+                    "  {:<18} {:>6.1}  ({band}; {} listings)",
+                    m.month,
+                    m.index,
+                    thousands(m.listings as f64)
+                );
+            }
+        }
+        (None, Some(why)) => {
+            let _ = writeln!(o, "  no monthly index: {why}");
+        }
+        (None, None) => {
+            let _ = writeln!(o, "  no monthly index: {}", f.market_conditions);
+        }
+    }
+}
+
 pub fn depreciation(doc: &DepreciationDocument) -> String {
     let mut o = import(&doc.import);
     o.push_str(&fit(&doc.fit));
@@ -396,6 +435,7 @@ pub fn depreciation(doc: &DepreciationDocument) -> String {
             );
         }
     }
+    market_index(&mut o, &doc.fit);
     let _ = writeln!(
         o,
         "\nModels in the file by fitted annual decline (linear age, 5 years):"

@@ -28,6 +28,9 @@ pub enum AdjustmentKind {
     /// Sale-class difference (new, used, certified pre-owned), from the fitted terms. Sessions
     /// before format 4 called it `condition`; reading one renames it.
     SaleClass,
+    /// The market's change between the comparable's listing date and the appraisal date, from
+    /// the fitted market-conditions term (a time adjustment).
+    MarketConditions,
     /// The vehicle's physical condition (wear, damage beyond the usual for its age), entered
     /// by the appraiser.
     Condition,
@@ -60,6 +63,7 @@ impl AdjustmentKind {
             Self::ModelYear => "model year",
             Self::Variant => "variant",
             Self::SaleClass => "sold as",
+            Self::MarketConditions => "market conditions",
             Self::Condition => "condition",
             Self::Options => "options",
             Self::PriorDamage => "prior damage",
@@ -134,6 +138,12 @@ pub fn model_lines(
         condition: (subject.condition, market.condition[row]),
         condition_log_change: model.condition_effect(subject.condition)
             - model.condition_effect(market.condition[row]),
+        market: model.market_drift().map(|d| MarketConditions {
+            per_month_before: d.per_month_before,
+            distinguishable: d.is_distinguishable(),
+            months_before: market.listed_on[row]
+                .map(|date| crate::hedonic::market_time::months_before(model.params().as_of, date)),
+        }),
     })
 }
 
@@ -160,10 +170,25 @@ pub struct GridInputs<'a> {
     pub condition: (Condition, Condition),
     /// Fitted condition effect difference.
     pub condition_log_change: f64,
+    /// The market's fitted drift and the comparable's listing date, when the fit has the
+    /// market-conditions term.
+    pub market: Option<MarketConditions>,
 }
 
-/// The four model lines (mileage, model year, variant, sale class) from their inputs; the one
-/// place the grid's arithmetic and wording live, used for a live fit and for a saved session.
+/// What a comparable's market-conditions line is computed from.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct MarketConditions {
+    /// Fitted coefficient on ln price per month before the appraisal date.
+    pub per_month_before: f64,
+    /// Whether the drift is distinguishable from none (5 % level).
+    pub distinguishable: bool,
+    /// Months from the comparable's listing date back to the appraisal date (`None`: undated).
+    pub months_before: Option<f64>,
+}
+
+/// The model lines (mileage, model year, variant, sale class, and market conditions when the
+/// fit has the term) from their inputs; the one place the grid's arithmetic and wording live,
+/// used for a live fit and for a saved session.
 #[must_use]
 pub fn grid_lines(g: &GridInputs<'_>) -> Vec<AdjustmentLine> {
     let line = |kind, log_change: f64, basis: String| AdjustmentLine {
@@ -172,7 +197,7 @@ pub fn grid_lines(g: &GridInputs<'_>) -> Vec<AdjustmentLine> {
         basis,
     };
     let d_miles = g.miles.0 - g.miles.1;
-    vec![
+    let mut lines = vec![
         line(
             AdjustmentKind::Mileage,
             g.miles_slope * d_miles,
@@ -213,7 +238,30 @@ pub fn grid_lines(g: &GridInputs<'_>) -> Vec<AdjustmentLine> {
                 100.0 * (g.condition_log_change.exp() - 1.0)
             ),
         ),
-    ]
+    ];
+    if let Some(m) = g.market {
+        let pct = crate::hedonic::market_time::monthly_change_pct(m.per_month_before);
+        let trend = format!(
+            "market {} {:.2} % a month (fitted{})",
+            if pct < 0.0 { "fell" } else { "rose" },
+            pct.abs(),
+            if m.distinguishable {
+                ""
+            } else {
+                "; not distinguishable from no drift"
+            }
+        );
+        // Brought to the appraisal date: 0 months before it.
+        let (log_change, basis) = match m.months_before {
+            Some(months) => (
+                -m.per_month_before * months,
+                format!("{trend}; listed {months:.1} months before the appraisal date"),
+            ),
+            None => (0.0, format!("{trend}; no listing date, so not adjusted")),
+        };
+        lines.push(line(AdjustmentKind::MarketConditions, log_change, basis));
+    }
+    lines
 }
 
 fn variant_label(market: &Market, variant: NameId) -> &str {

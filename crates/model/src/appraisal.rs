@@ -13,6 +13,7 @@ use crate::clean::{CleaningRules, Overrides, SegmentCleaning, clean_segment};
 use crate::comparables::{
     CandidateIndex, ComparableChoices, ComparableRules, RuleBreak, SubjectKey, choose_comparables,
 };
+use crate::hedonic::market_time::{IndexError, MonthlyIndex, monthly_index};
 use crate::hedonic::{
     AgeForm, AgeFormChoice, Attributes, FitError, HedonicModel, HedonicParams, ValueEstimate,
     age_years, choose_age_form,
@@ -71,7 +72,7 @@ pub enum AppraisalError {
 }
 
 /// Settings of the market fit.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize, Default)]
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct FitSettings {
     /// Age form.
     pub age_form: AgeForm,
@@ -81,6 +82,23 @@ pub struct FitSettings {
     pub as_of: Option<NaiveDate>,
     /// Cleaning rules.
     pub cleaning: CleaningRules,
+    /// Whether the market-conditions term may enter the fit (it does when the listing dates
+    /// allow; see [`crate::hedonic::market_time`]). Sessions before format 5 had no such term
+    /// and read as `false`, so they replay as they were saved.
+    #[serde(default)]
+    pub market_time: bool,
+}
+
+impl Default for FitSettings {
+    fn default() -> Self {
+        Self {
+            age_form: AgeForm::default(),
+            robust: false,
+            as_of: None,
+            cleaning: CleaningRules::default(),
+            market_time: true,
+        }
+    }
 }
 
 impl FitSettings {
@@ -138,7 +156,13 @@ pub struct MarketFit {
     pub segment_dated: bool,
     /// The age form the data chose, when the settings asked for `auto`.
     pub age_form_choice: Option<AgeFormChoice>,
+    /// The market's monthly index (80 % band), when the fit has the market-conditions term,
+    /// or why none could be made.
+    pub market_index: Option<Result<MonthlyIndex, IndexError>>,
 }
+
+/// Band level of the market's monthly index.
+pub const MARKET_INDEX_LEVEL: f64 = 0.8;
 
 impl MarketFit {
     /// What the fitted market cannot vouch for, whatever the subject (empty when nothing is
@@ -195,13 +219,14 @@ pub fn fit_market(
     );
     let included_rows = cleaning.included_rows();
     let age_form_choice = (settings.age_form == AgeForm::Auto)
-        .then(|| choose_age_form(market, &included_rows, as_of));
+        .then(|| choose_age_form(market, &included_rows, as_of, settings.market_time));
     let age_form = age_form_choice
         .as_ref()
         .map_or(settings.age_form, |c| c.chosen);
     let params = HedonicParams::new(as_of)
         .age_form(age_form)
         .robust(settings.robust)
+        .market_time(settings.market_time)
         .check()?;
     let segment_dated = cleaning
         .rows
@@ -217,16 +242,22 @@ pub fn fit_market(
             .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
         (model, candidates)
     });
+    let model = model?;
+    let market_index = model
+        .market_time()
+        .in_fit()
+        .then(|| monthly_index(&model, market, &included_rows, MARKET_INDEX_LEVEL));
     Ok(MarketFit {
         segment,
         as_of,
-        candidates,
         cleaning,
-        model: model?,
+        model,
         included_rows,
+        candidates,
         as_of_source,
         segment_dated,
         age_form_choice,
+        market_index,
     })
 }
 

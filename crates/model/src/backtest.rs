@@ -70,6 +70,14 @@ pub struct Backtest {
     pub not_valued: usize,
 }
 
+/// The factor that carries an estimate of the appraisal date's market back to the listing date
+/// of `row`: a held-out listing was priced on its own date.
+fn on_listing_date(fit: &MarketFit, market: &Market, row: usize) -> f64 {
+    fit.model
+        .market_conditions_effect(market.listed_on[row])
+        .exp()
+}
+
 /// Runs the backtest over the fit's included listings.
 pub fn backtest(
     market: &Market,
@@ -86,6 +94,7 @@ pub fn backtest(
     let params = HedonicParams::new(fit.as_of)
         .age_form(fit.model.params().age_form)
         .robust(fit.model.params().robust)
+        .market_time(fit.model.params().market_time)
         .check()?;
     let mut model_errors = Vec::new();
     let mut model_inside = 0usize;
@@ -113,7 +122,9 @@ pub fn backtest(
             as_of_source: fit.as_of_source,
             segment_dated: fit.segment_dated,
             age_form_choice: fit.age_form_choice.clone(),
+            market_index: None,
         };
+        let then = |row: usize| on_listing_date(&fold_fit, market, row);
         for &row in &held {
             let a = fold_fit.model.attributes_of_row(market, row);
             if !fold_fit.model.design().knows_variant(a.variant)
@@ -124,8 +135,10 @@ pub fn backtest(
             }
             let e = fold_fit.model.estimate(&a, settings.level);
             let price = market.asking_price[row];
-            model_errors.push(100.0 * (e.median - price).abs() / price);
-            if (e.prediction_interval.lower..=e.prediction_interval.upper).contains(&price) {
+            let shift = then(row);
+            model_errors.push(100.0 * (shift * e.median - price).abs() / price);
+            let band = e.prediction_interval;
+            if (shift * band.lower..=shift * band.upper).contains(&price) {
                 model_inside += 1;
             }
         }
@@ -140,10 +153,11 @@ pub fn backtest(
             match appraise_among(market, &fold_fit, &fold_fit.candidates, &request) {
                 Ok(a) if !a.comparables.is_empty() => {
                     let price = market.asking_price[row];
-                    let v = a.reconciliation.indicated_value;
+                    let shift = then(row);
+                    let v = shift * a.reconciliation.indicated_value;
                     comp_errors.push(100.0 * (v - price).abs() / price);
                     let band = a.reconciliation.value_band;
-                    if (band.lower..=band.upper).contains(&price) {
+                    if (shift * band.lower..=shift * band.upper).contains(&price) {
                         comp_inside += 1;
                     }
                 }

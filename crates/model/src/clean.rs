@@ -461,16 +461,24 @@ fn mark_outliers(
     // The automatic form is chosen after cleaning; this first fit takes the quadratic only
     // when the listings can carry it.
     let age_form = if age_form == AgeForm::Auto {
-        let width =
-            crate::hedonic::Design::for_rows(market, &sample, AgeForm::Quadratic, as_of.year())
-                .width();
+        let width = crate::hedonic::Design::for_rows(
+            market,
+            &sample,
+            AgeForm::Quadratic,
+            as_of.year(),
+            false,
+        )
+        .width();
         crate::hedonic::cleaning_form(clean.len(), width)
     } else {
         age_form
     };
+    // Without the market-conditions term: listings are scored against the market's level over
+    // the whole pull, which a drift of a few percent does not turn into outliers.
     let params = match HedonicParams::new(as_of)
         .age_form(age_form)
         .robust(true)
+        .market_time(false)
         .check()
     {
         Ok(p) => p,

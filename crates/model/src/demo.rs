@@ -94,6 +94,9 @@ pub struct DemoTruth {
     pub noise_sd: f64,
     /// Average miles driven a year.
     pub annual_miles: f64,
+    /// ln-price shift per month a listing was dated before the appraisal date: the market's
+    /// drift (positive: asking prices have been falling).
+    pub per_month_before: f64,
 }
 
 /// The demo market's truth.
@@ -134,6 +137,8 @@ pub fn demo_truth() -> DemoTruth {
         new: 0.06,
         noise_sd: 0.06,
         annual_miles: 12_500.0,
+        // The market fell about 0.3 % a month over the pull (invented).
+        per_month_before: 0.003,
     }
 }
 
@@ -294,13 +299,16 @@ fn demo_row(
     } else if defect < 0.010 {
         log_price += (1.4f64).ln();
     }
-    let price = (log_price.exp() / 50.0).round() * 50.0;
     let days_listed = if rng.random::<f64>() < 0.08 {
         rng.random_range(150..400)
     } else {
         rng.random_range(0..120)
     };
     let listed_on = as_of - TimeDelta::days(days_listed);
+    // The market drifts: a listing dated earlier was priced in a higher market.
+    log_price +=
+        truth.per_month_before * crate::hedonic::market_time::months_before(as_of, listed_on);
+    let price = (log_price.exp() / 50.0).round() * 50.0;
     let (sold_on, sale_price) = if rng.random::<f64>() < 0.35 {
         let days_to_sell = (-35.0 * (1.0 - rng.random::<f64>()).ln()).round() as i64;
         let sold = listed_on + TimeDelta::days(days_to_sell);

@@ -51,10 +51,17 @@ pub fn price_gaps(market: &Market, fit: &MarketFit, level: f64) -> Vec<PriceGap>
         .map(|&row| {
             let attributes = fit.model.attributes_of_row(market, row);
             let estimate = fit.model.estimate(&attributes, level);
+            // The market on the listing's own date (the fitted drift carries today's back).
+            let shift = fit
+                .model
+                .market_conditions_effect(market.listed_on[row])
+                .exp();
+            let expected = shift * estimate.median;
+            let band = estimate.prediction_interval;
             let price = market.asking_price[row];
-            let flag = if price < estimate.prediction_interval.lower {
+            let flag = if price < shift * band.lower {
                 GapFlag::BelowMarket
-            } else if price > estimate.prediction_interval.upper {
+            } else if price > shift * band.upper {
                 GapFlag::AboveMarket
             } else {
                 GapFlag::Within
@@ -70,9 +77,9 @@ pub fn price_gaps(market: &Market, fit: &MarketFit, level: f64) -> Vec<PriceGap>
                     market.condition[row]
                 ),
                 asking_price: price,
-                expected: estimate.median,
-                gap: price - estimate.median,
-                gap_pct: 100.0 * (price / estimate.median - 1.0),
+                expected,
+                gap: price - expected,
+                gap_pct: 100.0 * (price / expected - 1.0),
                 flag,
                 exclusion: fit
                     .cleaning

@@ -28,6 +28,21 @@ pub struct FittedRates {
     pub condition_effects: BTreeMap<Condition, f64>,
     /// Residual degrees of freedom of the fit (the model band's t quantile uses them).
     pub df_residual: f64,
+    /// The fitted market drift, when the fit had the market-conditions term (sessions before
+    /// format 5 have none).
+    #[serde(default)]
+    pub market_drift: Option<SavedDrift>,
+}
+
+/// The market-conditions term as a session keeps it.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct SavedDrift {
+    /// Coefficient on ln price per month before the appraisal date.
+    pub per_month_before: f64,
+    /// Whether it was distinguishable from no drift (5 % level).
+    pub distinguishable: bool,
+    /// The appraisal date the months are counted back from.
+    pub as_of: chrono::NaiveDate,
 }
 
 /// Why the stored rates cannot adjust a comparable.
@@ -77,6 +92,11 @@ impl FittedRates {
             variant_effects,
             condition_effects,
             df_residual: model.df_residual() as f64,
+            market_drift: model.market_drift().map(|d| SavedDrift {
+                per_month_before: d.per_month_before,
+                distinguishable: d.is_distinguishable(),
+                as_of: model.params().as_of,
+            }),
         }
     }
 
@@ -135,6 +155,15 @@ impl FittedRates {
             condition: (subject.condition, comparable.condition),
             condition_log_change: self.condition(subject.condition)?
                 - self.condition(comparable.condition)?,
+            market: self
+                .market_drift
+                .map(|d| crate::adjustment::MarketConditions {
+                    per_month_before: d.per_month_before,
+                    distinguishable: d.distinguishable,
+                    months_before: comparable
+                        .listed_on
+                        .map(|date| crate::hedonic::market_time::months_before(d.as_of, date)),
+                }),
         }))
     }
 }
@@ -153,6 +182,7 @@ mod tests {
                 .collect(),
             condition_effects: BTreeMap::new(),
             df_residual: 10.0,
+            market_drift: None,
         }
     }
 

@@ -48,11 +48,13 @@ pub enum WarningCode {
     SubjectVinNotValid,
     /// A comparable's VIN fails its check digit or disagrees with its model year.
     ComparableVinNotValid,
+    /// The market-conditions term cannot be told from no drift at all.
+    MarketTrendUncertain,
 }
 
 impl WarningCode {
     /// Every code, in the order the README lists them.
-    pub const ALL: [WarningCode; 17] = [
+    pub const ALL: [WarningCode; 18] = [
         Self::SubjectYearOutsideMarket,
         Self::SubjectMileageOutsideMarket,
         Self::AgeCurveNotFalling,
@@ -68,6 +70,7 @@ impl WarningCode {
         Self::ComparableNotAdjustable,
         Self::SubjectVinNotValid,
         Self::ComparableVinNotValid,
+        Self::MarketTrendUncertain,
         Self::ForecastBeyondMarket,
         Self::BacktestErrorExceedsBand,
     ];
@@ -93,6 +96,7 @@ impl WarningCode {
             Self::BacktestErrorExceedsBand => "backtest_error_exceeds_band",
             Self::SubjectVinNotValid => "subject_vin_not_valid",
             Self::ComparableVinNotValid => "comparable_vin_not_valid",
+            Self::MarketTrendUncertain => "market_trend_uncertain",
         }
     }
 }

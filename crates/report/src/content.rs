@@ -308,6 +308,20 @@ fn market_facts(session: &Session) -> Vec<(String, String)> {
             ),
         ),
         (
+            "Market conditions".into(),
+            f.market_time.as_ref().map_or_else(
+                || "no term for the market's drift (a session before format 5)".to_owned(),
+                |t| {
+                    model::hedonic::market_time::summary(
+                        t,
+                        f.rates
+                            .market_drift
+                            .map(|d| (d.per_month_before, d.distinguishable)),
+                    )
+                },
+            ),
+        ),
+        (
             "Model's own estimate".into(),
             format!(
                 "{} (median); {:.0} % prediction interval {} to {}",

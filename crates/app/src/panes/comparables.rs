@@ -29,12 +29,12 @@ pub enum SortBy {
 const GROUPS: [(&str, usize); 4] = [
     ("", 1),
     ("The listing", 8),
-    ("Adjustments to the subject", 7),
+    ("Adjustments to the subject", 8),
     ("Result", 3),
 ];
 
 /// The columns after the row's button, with the sort each heading offers.
-const COLUMNS: [(&str, Option<SortBy>); 18] = [
+const COLUMNS: [(&str, Option<SortBy>); 19] = [
     ("line", None),
     ("vehicle", None),
     ("miles", Some(SortBy::Miles)),
@@ -47,6 +47,7 @@ const COLUMNS: [(&str, Option<SortBy>); 18] = [
     ("model year", None),
     ("variant", None),
     ("sold as", None),
+    ("market", None),
     ("your lines", None),
     ("net", None),
     ("gross", Some(SortBy::Gross)),
@@ -206,6 +207,7 @@ fn row_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, c: &AdjustedComparable) -> egui
         &[AdjustmentKind::ModelYear],
         &[AdjustmentKind::Variant],
         &[AdjustmentKind::SaleClass],
+        &[AdjustmentKind::MarketConditions],
         &[
             AdjustmentKind::Condition,
             AdjustmentKind::Options,

@@ -12,8 +12,14 @@ use super::key::{Glyph, KeyEntry};
 /// Oldest age in the table.
 const MAX_AGE: u32 = 10;
 
-/// Draws the pane.
+/// Draws the pane (scrolling as a whole on a short screen).
 pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
+    egui::ScrollArea::vertical()
+        .id_salt("depreciation_scroll")
+        .show(ui, |ui| pane_ui(ui, cx));
+}
+
+fn pane_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     let table = depreciation_table(&cx.fit.model, cx.market, MAX_AGE);
     let annual = cx.fit.model.annual_depreciation(5);
     ui.label(format!(
@@ -90,6 +96,76 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
             by_age.join(", ")
         ));
     }
+    ui.separator();
+    market_index_ui(ui, cx);
+}
+
+/// The market's level by month (the time-dummy index) with its band, or why there is none.
+fn market_index_ui(ui: &mut Ui, cx: &PaneContext<'_>) {
+    ui.label(
+        RichText::new("The market's level by month (latest month = 100, attributes held fixed)")
+            .strong(),
+    );
+    let model = &cx.fit.model;
+    ui.label(format!(
+        "Market conditions: {}.",
+        model::hedonic::market_time::summary(
+            model.market_time(),
+            model
+                .market_drift()
+                .map(|d| (d.per_month_before, d.is_distinguishable())),
+        )
+    ));
+    let index = match &cx.fit.market_index {
+        None => return,
+        Some(Err(why)) => {
+            ui.label(format!("No monthly index: {why}."));
+            return;
+        }
+        Some(Ok(index)) => index,
+    };
+    let labels: Vec<String> = index.months.iter().map(|m| m.month.clone()).collect();
+    let point = |f: fn(&model::hedonic::market_time::MonthLevel) -> f64| -> Vec<[f64; 2]> {
+        index
+            .months
+            .iter()
+            .enumerate()
+            .map(|(i, m)| [i as f64, f(m)])
+            .collect()
+    };
+    let ink = ui.visuals().text_color();
+    let entries = [
+        KeyEntry::new(Glyph::Line, ink, "the market's level"),
+        KeyEntry::new(
+            Glyph::Dashed,
+            ink,
+            format!("{:.0} % band", 100.0 * index.level),
+        ),
+    ];
+    super::key::key_ui(ui, "market_index_key", &entries);
+    Plot::new("market_index")
+        .height(180.0)
+        .y_axis_label("level (latest = 100)")
+        .x_axis_formatter(move |mark, _| {
+            let i = mark.value.round();
+            if (mark.value - i).abs() > 1e-9 || i < 0.0 {
+                return String::new();
+            }
+            labels.get(i as usize).cloned().unwrap_or_default()
+        })
+        .show(ui, |plot| {
+            plot.line(Line::new("level", point(|m| m.index)).color(ink).width(2.0));
+            for (name, edge) in [
+                ("band, low", point(|m| m.lower)),
+                ("band, high", point(|m| m.upper)),
+            ] {
+                plot.line(
+                    Line::new(name, edge)
+                        .color(ink)
+                        .style(egui_plot::LineStyle::dashed_loose()),
+                );
+            }
+        });
 }
 
 /// One variant's value, loss and cumulative loss by age.

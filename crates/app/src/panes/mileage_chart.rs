@@ -109,7 +109,12 @@ fn below_band(cx: &PaneContext<'_>, data: &MileageChartData, view: &View) -> Vec
                 &fit.model.attributes_of_row(cx.market, p.row),
                 cx.document.level,
             );
-            cx.market.asking_price[p.row] < own.prediction_interval.lower
+            // Against the market on the listing's own date.
+            let shift = fit
+                .model
+                .market_conditions_effect(cx.market.listed_on[p.row])
+                .exp();
+            cx.market.asking_price[p.row] < shift * own.prediction_interval.lower
         })
         .map(|p| p.at)
         .collect()

@@ -109,6 +109,31 @@ fn fitting_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     {
         cx.commands.push(Command::SetRobust(robust));
     }
+    let mut market_time = fit.market_time;
+    if ui
+        .checkbox(
+            &mut market_time,
+            "Adjust for market conditions: a term for the market's drift over the listing dates",
+        )
+        .on_hover_text(format!(
+            "It enters when every listing is dated and the dates span at least {} days over {} calendar months",
+            model::hedonic::market_time::MIN_SPAN_DAYS,
+            model::hedonic::market_time::MIN_MONTHS
+        ))
+        .changed()
+    {
+        cx.commands.push(Command::SetMarketTime(market_time));
+    }
+    ui.small(format!(
+        "In use: {}",
+        model::hedonic::market_time::summary(
+            cx.fit.model.market_time(),
+            cx.fit
+                .model
+                .market_drift()
+                .map(|d| (d.per_month_before, d.is_distinguishable())),
+        )
+    ));
     let stale = fit.cleaning.stale_after_days;
     let limit = OptionalLimit {
         before: "Set aside unsold listings older than",

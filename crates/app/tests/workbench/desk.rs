@@ -287,3 +287,59 @@ fn the_customers_trade_in_report_leaves_out_the_dealers_margin() {
     assert!(customer.contains("Your trade-in"));
     std::fs::remove_dir_all(&dir).ok();
 }
+
+#[test]
+fn the_market_conditions_term_is_switched_on_screen_and_its_lines_follow() {
+    let mut wb = workbench();
+    wb.show_view(CentralView::Settings);
+    let has_market_lines = |wb: &app::Workbench| {
+        wb.runtime()
+            .appraisal
+            .as_ref()
+            .unwrap()
+            .comparables
+            .iter()
+            .all(|c| {
+                c.adjustments
+                    .iter()
+                    .any(|l| l.kind == model::adjustment::AdjustmentKind::MarketConditions)
+            })
+    };
+    assert!(has_market_lines(&wb), "the demo's dates carry the term");
+    let mut harness = harness_on(wb);
+    harness.get_by_label_contains("In use: the market fell");
+    harness
+        .get_by_label_contains("Adjust for market conditions")
+        .click();
+    harness.run_steps(2);
+    harness.state_mut().wait_for_jobs();
+    harness.run_steps(2);
+    let wb = harness.state();
+    assert!(!wb.document().fit.market_time);
+    assert!(
+        wb.runtime()
+            .fit
+            .as_ref()
+            .unwrap()
+            .model
+            .market_drift()
+            .is_none()
+    );
+    assert!(
+        !wb.runtime()
+            .appraisal
+            .as_ref()
+            .unwrap()
+            .comparables
+            .iter()
+            .any(|c| c
+                .adjustments
+                .iter()
+                .any(|l| l.kind == model::adjustment::AdjustmentKind::MarketConditions))
+    );
+    harness.get_by_label_contains("switched off in the fit settings");
+    let mut wb = harness.into_state();
+    wb.undo();
+    wb.wait_for_jobs();
+    assert!(has_market_lines(&wb));
+}

@@ -197,3 +197,57 @@ fn the_customers_copy_of_a_trade_in_report_leaves_out_the_dealers_margin() {
     assert!(customer.contains(model::worksheet::rows::CUSTOMER_OFFER_NOTE));
     std::fs::remove_dir_all(&dir).ok();
 }
+
+#[test]
+fn market_conditions_are_a_term_a_grid_line_and_an_index_and_can_be_switched_off() {
+    let market = repo("assets/demo-market.csv");
+    let doc = json(&["appraise", &market, "--subject", SUBJECT, "--json"]);
+    let fit = &doc["fit"];
+    assert_eq!(fit["market_time"]["status"], "in_fit");
+    assert!(
+        fit["terms"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|t| t["name"] == "months_before_as_of")
+    );
+    assert!(fit["market_drift"]["per_month_before"].is_f64());
+    assert!(fit["market_index"]["months"].as_array().unwrap().len() >= 3);
+    for c in doc["comparables"].as_array().unwrap() {
+        assert!(
+            c["adjustments"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .any(|a| a["kind"] == "market_conditions"),
+            "{c}"
+        );
+    }
+    let off = json(&[
+        "appraise",
+        &market,
+        "--subject",
+        SUBJECT,
+        "--no-market-time",
+        "--json",
+    ]);
+    assert_eq!(off["fit"]["market_time"]["status"], "not_in_fit");
+    assert_eq!(
+        off["fit"]["market_time"]["reason"],
+        "switched off in the fit settings"
+    );
+    assert!(off["fit"]["market_drift"].is_null());
+    assert!(off["fit"]["market_index"].is_null());
+    // The depreciation view prints the market's level by month.
+    let out = succeeded(&[
+        "depreciation",
+        &market,
+        "--make",
+        "Quellmark",
+        "--model",
+        "Tessel",
+    ]);
+    let shown = String::from_utf8_lossy(&out.stdout);
+    assert!(shown.contains("The market's level by month"), "{shown}");
+    assert!(shown.contains("(the base;"), "{shown}");
+}

@@ -73,15 +73,26 @@ pub struct Design {
     pub variants: Vec<NameId>,
     /// Conditions in the fit; the first is the base (no indicator).
     pub conditions: Vec<Condition>,
+    /// Whether the last column is the market-conditions term (months before the appraisal
+    /// date; see `market_time`). [`Self::fill_row`] leaves it 0, the appraisal date: a
+    /// prediction is of today's market, and the fit sets each listing's own.
+    pub time: bool,
     /// Column names, intercept first.
     pub names: Vec<String>,
 }
 
 impl Design {
     /// Builds the design for the given rows: levels present in the data, bases chosen as the
-    /// youngest age, the variant with the lowest median asking price, and `used` when present.
+    /// youngest age, the variant with the lowest median asking price, and `used` when present;
+    /// with the market-conditions term last when `time`.
     #[must_use]
-    pub fn for_rows(market: &Market, rows: &[usize], age_form: AgeForm, as_of_year: i32) -> Self {
+    pub fn for_rows(
+        market: &Market,
+        rows: &[usize],
+        age_form: AgeForm,
+        as_of_year: i32,
+        time: bool,
+    ) -> Self {
         let ages = distinct_ages(market, rows, as_of_year);
 
         let mut by_variant: std::collections::HashMap<NameId, Vec<f64>> =
@@ -130,11 +141,15 @@ impl Design {
         for c in conditions.iter().skip(1) {
             names.push(format!("condition={c}"));
         }
+        if time {
+            names.push(super::market_time::TERM_NAME.into());
+        }
         Self {
             age_form,
             age_levels: ages,
             variants,
             conditions,
+            time,
             names,
         }
     }
@@ -143,6 +158,12 @@ impl Design {
     #[must_use]
     pub fn width(&self) -> usize {
         self.names.len()
+    }
+
+    /// Index of the market-conditions column, when the design has one (always the last).
+    #[must_use]
+    pub fn time_column(&self) -> Option<usize> {
+        self.time.then(|| self.names.len() - 1)
     }
 
     /// Index of the mileage column.

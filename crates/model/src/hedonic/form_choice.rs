@@ -66,12 +66,17 @@ pub fn cleaning_form(listings: usize, quadratic_terms: usize) -> AgeForm {
 
 /// Chooses the age form for `rows` of `market` (the cleaned rows) as of `as_of`.
 #[must_use]
-pub fn choose_age_form(market: &Market, rows: &[usize], as_of: NaiveDate) -> AgeFormChoice {
+pub fn choose_age_form(
+    market: &Market,
+    rows: &[usize],
+    as_of: NaiveDate,
+    market_time: bool,
+) -> AgeFormChoice {
     let step = rows.len().div_ceil(CHOICE_SAMPLE).max(1);
     let sample: Vec<usize> = rows.iter().copied().step_by(step).collect();
     let candidates: Vec<AgeFormCandidate> = AgeForm::FITTED
         .iter()
-        .map(|&form| judge(market, &sample, as_of, form))
+        .map(|&form| judge(market, &sample, as_of, form, market_time))
         .collect();
     let best = candidates
         .iter()
@@ -138,9 +143,16 @@ fn bic_text(bic: f64) -> String {
 }
 
 /// Fits one form and says whether it can stand.
-fn judge(market: &Market, rows: &[usize], as_of: NaiveDate, form: AgeForm) -> AgeFormCandidate {
+fn judge(
+    market: &Market,
+    rows: &[usize],
+    as_of: NaiveDate,
+    form: AgeForm,
+    market_time: bool,
+) -> AgeFormCandidate {
     let fitted = HedonicParams::new(as_of)
         .age_form(form)
+        .market_time(market_time)
         .check()
         .and_then(|p| p.fit(market, rows));
     match fitted {

@@ -9,6 +9,7 @@
 mod design;
 mod extrapolation;
 mod form_choice;
+pub mod market_time;
 mod mileage;
 mod robust;
 
@@ -29,6 +30,7 @@ pub use form_choice::{
     AgeFormCandidate, AgeFormChoice, CHOICE_SAMPLE, LISTINGS_PER_TERM, choose_age_form,
     cleaning_form,
 };
+pub use market_time::{MarketDrift, MarketTimeTerm};
 pub use mileage::MileageProfile;
 
 /// Why a market fit could not be made.
@@ -79,6 +81,14 @@ pub struct ValidHedonicParams {
     pub huber_k: f64,
     /// Iteration limit for the robust fit.
     pub max_iterations: u32,
+    /// Whether the market-conditions term may enter (it does when the listing dates allow;
+    /// see [`market_time`]).
+    #[serde(default = "market_time_default")]
+    pub market_time: bool,
+}
+
+fn market_time_default() -> bool {
+    true
 }
 
 impl HedonicParams {
@@ -91,7 +101,16 @@ impl HedonicParams {
             as_of,
             huber_k: 1.345,
             max_iterations: 50,
+            market_time: true,
         })
+    }
+
+    /// Lets the market-conditions term enter when the listing dates allow (`true`, the default)
+    /// or keeps it out.
+    #[must_use]
+    pub fn market_time(mut self, on: bool) -> Self {
+        self.0.market_time = on;
+        self
     }
 
     /// Sets the age form.
@@ -237,6 +256,8 @@ pub struct HedonicModel {
     mileage: MileageProfile,
     /// Lowest and highest odometer among the fitted listings.
     miles_range: (f64, f64),
+    /// Whether the market-conditions term is in the fit, and why not.
+    market_time: MarketTimeTerm,
 }
 
 /// How the robust fit went.
@@ -257,7 +278,14 @@ impl ValidHedonicParams {
     /// Fits the market over `rows` of `market` (normally one segment's clean rows).
     pub fn fit(&self, market: &Market, rows: &[usize]) -> Result<HedonicModel, FitError> {
         let as_of_year = self.as_of.year();
-        let design = Design::for_rows(market, rows, self.age_form, as_of_year);
+        let market_time = MarketTimeTerm::decide(market, rows, self.market_time);
+        let design = Design::for_rows(
+            market,
+            rows,
+            self.age_form,
+            as_of_year,
+            market_time.in_fit(),
+        );
         let p = design.width();
         if rows.len() <= p {
             return Err(FitError::TooFewRows {
@@ -268,10 +296,18 @@ impl ValidHedonicParams {
         }
         // ln(price) once per fit: the robust fit's passes reuse it.
         let ln_price: Vec<f64> = rows.iter().map(|&r| market.asking_price[r].ln()).collect();
+        let months: Option<Vec<f64>> = market_time.in_fit().then(|| {
+            rows.iter()
+                .map(|&r| {
+                    market.listed_on[r].map_or(0.0, |d| market_time::months_before(self.as_of, d))
+                })
+                .collect()
+        });
         let fit_rows = FitRows {
             market,
             rows,
             ln_price: &ln_price,
+            months: months.as_deref(),
             design: &design,
             as_of_year,
         };
@@ -333,6 +369,7 @@ impl ValidHedonicParams {
             rss,
             smearing,
             robust_report,
+            market_time,
         })
     }
 }
@@ -369,6 +406,8 @@ pub(crate) struct FitRows<'a> {
     pub rows: &'a [usize],
     /// ln(asking price) of each row, in the order of `rows`.
     pub ln_price: &'a [f64],
+    /// Months before the appraisal date of each row's listing, when the design has the term.
+    pub months: Option<&'a [f64]>,
     pub design: &'a Design,
     pub as_of_year: i32,
 }
@@ -384,6 +423,9 @@ impl FitRows<'_> {
             self.market.condition[r],
             x,
         );
+        if let (Some(c), Some(months)) = (self.design.time_column(), self.months) {
+            x[c] = months[i];
+        }
     }
 
     /// The row ranges, one per core, for a pass over many rows (one range for a few rows).
@@ -543,6 +585,22 @@ impl HedonicModel {
     #[must_use]
     pub fn warnings(&self) -> Vec<Warning> {
         let mut out = Vec::new();
+        if let Some(d) = self.market_drift().filter(|d| !d.is_distinguishable()) {
+            out.push(
+                Warning::new(
+                    WarningCode::MarketTrendUncertain,
+                    format!(
+                        "The market's drift over the listing dates ({:+.2} % a month, standard error {:.2} points) cannot be told from no drift at all (p = {:.2}). Each comparable's market-conditions line is still shown at the fitted rate; read those lines as within the noise, or switch the term off and compare.",
+                        d.monthly_change_pct(),
+                        100.0 * d.std_error,
+                        d.p_value
+                    ),
+                )
+                .with("monthly_change_pct", d.monthly_change_pct())
+                .with("std_error", d.std_error)
+                .with("p_value", d.p_value),
+            );
+        }
         if let Some(r) = self.robust_report {
             if r.scale_collapsed {
                 out.push(
@@ -623,10 +681,43 @@ impl HedonicModel {
         dot(&self.prediction_row(a), &self.coefficients)
     }
 
-    /// Fitted ln price of market row `row`.
+    /// Fitted ln price of market row `row`, at its own listing date when the fit has the
+    /// market-conditions term.
     #[must_use]
     pub fn log_price_of_row(&self, market: &Market, row: usize) -> f64 {
         self.log_price(&self.attributes_of_row(market, row))
+            + self.market_conditions_effect(market.listed_on[row])
+    }
+
+    /// Whether the market-conditions term is in the fit, and why not.
+    #[must_use]
+    pub fn market_time(&self) -> &MarketTimeTerm {
+        &self.market_time
+    }
+
+    /// The fitted market drift, when the term is in the fit.
+    #[must_use]
+    pub fn market_drift(&self) -> Option<MarketDrift> {
+        let c = self.design.time_column()?;
+        let df = self.df_residual() as f64;
+        let (b, se) = (self.coefficients[c], self.std_errors[c]);
+        Some(MarketDrift {
+            per_month_before: b,
+            std_error: se,
+            p_value: stats::t_p_value(b / se, df),
+        })
+    }
+
+    /// The ln-price effect of a listing dated `listed_on` relative to the appraisal date (0
+    /// without the term or without a date).
+    #[must_use]
+    pub fn market_conditions_effect(&self, listed_on: Option<NaiveDate>) -> f64 {
+        match (self.market_drift(), listed_on) {
+            (Some(d), Some(date)) => {
+                d.per_month_before * market_time::months_before(self.params.as_of, date)
+            }
+            _ => 0.0,
+        }
     }
 
     /// The attributes of market row `row`.

@@ -9,7 +9,7 @@ use super::Session;
 
 /// Format version this build writes. Files with a higher number are refused; lower numbers are
 /// migrated on reading.
-pub const SESSION_FORMAT_VERSION: u32 = 4;
+pub const SESSION_FORMAT_VERSION: u32 = 5;
 
 const HEADER: &str = "\
 // comptrail appraisal session. Human-readable on purpose: every comparable, every adjustment

@@ -97,6 +97,9 @@ pub struct FitRecord {
     /// The age form the data chose and why, when the settings asked for `auto` (format 3 on).
     #[serde(default)]
     pub age_form_choice: Option<crate::hedonic::AgeFormChoice>,
+    /// Whether the market-conditions term was in the fit, and why not (format 5 on).
+    #[serde(default)]
+    pub market_time: Option<crate::hedonic::MarketTimeTerm>,
 }
 
 /// Who made the appraisal and when.
@@ -203,6 +206,7 @@ impl Session {
                 annual_depreciation: c.fit.model.annual_depreciation(5),
                 rates,
                 age_form_choice: c.fit.age_form_choice.clone(),
+                market_time: Some(c.fit.model.market_time().clone()),
             },
             request: c.request.clone(),
             appraisal: c.appraisal.clone(),
