@@ -34,7 +34,7 @@ sample total-loss-claim \
 sample near-threshold-claim \
   "year=2023,make=Orvane,model=Kestrel,variant=Halvet,miles=30500,condition=used,vin=0RK9TD239P2P00773" \
   "Rowan Ilse, claims adjuster (invented)" \
-  "Repair estimate is 74.6 % of ACV, under the profile's 75 %: repair, not a total loss. A supplement over about \$70 would cross the threshold; re-run the total-loss test if one arrives." \
+  "Repair estimate is 74.7 % of ACV, under the profile's 75 %: repair, not a total loss. A supplement over about \$50 would cross the threshold; re-run the total-loss test if one arrives." \
   --claim sample-sessions/worksheets/near-threshold-claim.ron \
   --claim-number "CL-2026-118977" --date-of-loss 2026-11-30 \
   --insured "Teodor Vance (invented)" --loss-type hail

@@ -116,3 +116,76 @@ fn the_information_criterion_matches_a_general_purpose_library() {
     // ln(25) charge, as the automatic age form would decide.
     assert!(linear.bic() < quadratic.bic());
 }
+
+#[test]
+fn the_nested_f_test_and_an_interaction_fit_match_a_general_purpose_library() {
+    // Computed with statsmodels 0.15.0 (`OLS.compare_f_test`, `.params`) from the NIST StRD
+    // Longley data; the script and its output are kept in
+    // tests/data/library/f_test_reference.{py,txt}. Not printed in any source. The premium-fade
+    // test is this F test with the variant slopes as the added columns.
+    let expected =
+        std::fs::read_to_string(acceptance::data_path("library/f_test_reference.txt")).unwrap();
+    let field = |line: &str, key: &str| -> f64 {
+        let line = expected.lines().find(|l| l.starts_with(line)).unwrap();
+        line.split_whitespace()
+            .find_map(|w| w.strip_prefix(&format!("{key}=")))
+            .unwrap()
+            .parse()
+            .unwrap()
+    };
+    let (x, y) = read_reference("longley.csv");
+    let n = x.nrows();
+    // Columns of x are x1..x6; the models use x2, x3, x5 (+ x6, or + the product x2·x5 / 10⁶).
+    let design = |extra: Option<&dyn Fn(usize) -> f64>| {
+        let width = 3 + usize::from(extra.is_some());
+        let mut d = Array2::zeros((n, width));
+        for i in 0..n {
+            d[[i, 0]] = x[[i, 1]];
+            d[[i, 1]] = x[[i, 2]];
+            d[[i, 2]] = x[[i, 4]];
+            if let Some(e) = extra {
+                d[[i, 3]] = e(i);
+            }
+        }
+        d
+    };
+    let fit = |d: Array2<f64>| {
+        OlsParams::new()
+            .check()
+            .unwrap()
+            .fit(&Dataset::new(d, y.clone()))
+            .unwrap()
+    };
+    let reduced = fit(design(None));
+    let x6 = |i: usize| x[[i, 5]];
+    let product = |i: usize| (x[[i, 1]] / 1000.0) * (x[[i, 4]] / 1000.0);
+    for (name, full) in [
+        ("full_vs_reduced", fit(design(Some(&x6)))),
+        ("interaction_vs_reduced", fit(design(Some(&product)))),
+    ] {
+        let (f, p) = model::hedonic::premium_fade::nested_f(
+            reduced.rss(),
+            full.rss(),
+            1,
+            full.df_residual(),
+        );
+        assert_eq!(full.df_residual() as f64, field(name, "df2"));
+        println!(
+            "{name}: F ours {f:.10e}, statsmodels {:.10e}",
+            field(name, "f")
+        );
+        assert!(lre(f, field(name, "f")) >= 8.0, "{name}: F {f}");
+        assert!(lre(p, field(name, "p")) >= 8.0, "{name}: p {p}");
+    }
+    let interaction = fit(design(Some(&product)));
+    let theirs: Vec<f64> = expected
+        .lines()
+        .find_map(|l| l.strip_prefix("interaction_coefficients "))
+        .unwrap()
+        .split_whitespace()
+        .map(|v| v.parse().unwrap())
+        .collect();
+    for (k, (ours, theirs)) in interaction.coefficients().iter().zip(&theirs).enumerate() {
+        assert!(lre(*ours, *theirs) >= 8.0, "b{k}: {ours} vs {theirs}");
+    }
+}

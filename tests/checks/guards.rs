@@ -110,6 +110,16 @@ fn the_small_undated_misspelled_export_is_one_model_and_says_what_it_cannot_supp
     println!("{}", choice.reason);
     assert_eq!(choice.chosen, AgeForm::Linear);
     assert!(fit.model.rising_steps().is_empty());
+    // The F test alone would keep variant slopes here, which make the base curve rise with
+    // age: 16 listings are too few for them, and `auto` says so.
+    assert!(!fit.model.design().variant_slopes);
+    let test = fit.premium_fade.clone().unwrap().unwrap();
+    assert!(
+        test.set_aside
+            .as_deref()
+            .is_some_and(|w| w.contains("too few")),
+        "{test:?}"
+    );
     assert!(fit.model.coefficients()[1] < 0.0, "value falls with age");
     let warnings = fit.warnings();
     for code in [WarningCode::FewListings, WarningCode::NoListingDates] {

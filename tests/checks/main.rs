@@ -11,6 +11,7 @@ mod guards;
 mod import;
 mod market_time;
 mod nist;
+mod premium_fade;
 mod profiles;
 mod properties;
 mod published;

@@ -64,7 +64,13 @@ proptest! {
             let j = ((seed.wrapping_mul(6_364_136_223_846_793_005).wrapping_add((i as u64).wrapping_mul(1_442_695_040_888_963_407))) % (i as u64 + 1)) as usize;
             rows.swap(i, j);
         }
-        let params = HedonicParams::new(fit.as_of).check().unwrap();
+        let used = fit.model.params();
+        let params = HedonicParams::new(fit.as_of)
+            .age_form(used.age_form)
+            .market_time(used.market_time)
+            .variant_slopes(used.variant_slopes)
+            .check()
+            .unwrap();
         let refit = params.fit(market, &rows).unwrap();
         for (a, b) in refit.coefficients().iter().zip(fit.model.coefficients()) {
             prop_assert!((a - b).abs() <= 1e-9 * (1.0 + b.abs()), "{} vs {}", a, b);

@@ -63,6 +63,8 @@ pub enum Command {
     SetRobust(bool),
     /// Let the market-conditions term enter the fit, or keep it out (refits the market).
     SetMarketTime(bool),
+    /// Whether each variant gets its own age slope (refits the market).
+    SetVariantSlopes(model::hedonic::VariantSlopes),
     /// Set aside unsold listings older than this many days (`None` keeps them; refits).
     SetStaleDays(Option<u32>),
     /// Model years either side of the subject's a comparable may be.
@@ -102,6 +104,38 @@ impl Command {
                 | Command::SetListingAge(_)
                 | Command::SetDistance(_)
         )
+    }
+}
+
+/// Applies one of the ground rules' commands (the appraisal date, the fit and the comparable
+/// rules); any other command is left alone.
+fn apply_ground_rule(document: &mut AppraisalDocument, command: &Command) {
+    match *command {
+        Command::SetAppraisalDate(date) => {
+            document.fit.as_of = date;
+            if matches!(document.purpose, Purpose::Claim { .. }) {
+                document.case.date_of_loss = date;
+            }
+        }
+        Command::SetAgeForm(form) => document.fit.age_form = form,
+        Command::SetRobust(robust) => document.fit.robust = robust,
+        Command::SetMarketTime(on) => document.fit.market_time = on,
+        Command::SetVariantSlopes(slopes) => document.fit.variant_slopes = slopes,
+        Command::SetStaleDays(days) => {
+            document.fit.cleaning.stale_after_days = days.map(|d| d.clamp(1, 3_650));
+        }
+        Command::SetYearWindow(years) => document.rules.model_year_window = years.clamp(0, 30),
+        Command::SetMileageRule(rule) => document.rules.mileage = rule,
+        Command::SetListingAge(days) => {
+            document.rules.max_listing_age_days = days.map(|d| d.clamp(1, 3_650));
+        }
+        Command::SetDistance(miles) => {
+            document.rules.max_distance_miles = miles
+                .filter(|m| m.is_finite())
+                .map(|m| m.clamp(1.0, 25_000.0));
+        }
+        Command::SetSameVariant(only) => document.rules.same_variant_only = only,
+        _ => {}
     }
 }
 
@@ -172,29 +206,17 @@ pub fn apply(document: &mut AppraisalDocument, command: Command) -> bool {
                 .map(|v| v.trim().to_ascii_uppercase())
                 .filter(|v| !v.is_empty());
         }
-        Command::SetAppraisalDate(date) => {
-            document.fit.as_of = date;
-            if matches!(document.purpose, Purpose::Claim { .. }) {
-                document.case.date_of_loss = date;
-            }
-        }
-        Command::SetAgeForm(form) => document.fit.age_form = form,
-        Command::SetRobust(robust) => document.fit.robust = robust,
-        Command::SetMarketTime(on) => document.fit.market_time = on,
-        Command::SetStaleDays(days) => {
-            document.fit.cleaning.stale_after_days = days.map(|d| d.clamp(1, 3_650));
-        }
-        Command::SetYearWindow(years) => document.rules.model_year_window = years.clamp(0, 30),
-        Command::SetMileageRule(rule) => document.rules.mileage = rule,
-        Command::SetListingAge(days) => {
-            document.rules.max_listing_age_days = days.map(|d| d.clamp(1, 3_650));
-        }
-        Command::SetDistance(miles) => {
-            document.rules.max_distance_miles = miles
-                .filter(|m| m.is_finite())
-                .map(|m| m.clamp(1.0, 25_000.0));
-        }
-        Command::SetSameVariant(only) => document.rules.same_variant_only = only,
+        rule @ (Command::SetAppraisalDate(_)
+        | Command::SetAgeForm(_)
+        | Command::SetRobust(_)
+        | Command::SetMarketTime(_)
+        | Command::SetVariantSlopes(_)
+        | Command::SetStaleDays(_)
+        | Command::SetYearWindow(_)
+        | Command::SetMileageRule(_)
+        | Command::SetListingAge(_)
+        | Command::SetDistance(_)
+        | Command::SetSameVariant(_)) => apply_ground_rule(document, &rule),
         Command::ReplaceDocument(replacement) => *document = *replacement,
         Command::RevertOpen(before) => {
             document.market = before.market;

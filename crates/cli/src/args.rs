@@ -138,6 +138,17 @@ pub enum AgeFormArg {
     PerYear,
 }
 
+/// Whether each variant gets its own age slope.
+#[derive(Debug, Clone, Copy, ValueEnum)]
+pub enum VariantSlopesArg {
+    /// When the F test against one premium at every age supports them (p < 0.05).
+    Auto,
+    /// Never: each variant's premium is the same percentage at every age.
+    Never,
+    /// Always, whatever the test says.
+    Always,
+}
+
 /// Odometer unit of a column named only "mileage" or "odometer".
 #[derive(Debug, Clone, Copy, ValueEnum)]
 pub enum OdometerArg {
@@ -168,6 +179,9 @@ pub struct MarketArgs {
     /// and the dates span at least 90 days over 3 calendar months).
     #[arg(long)]
     pub no_market_time: bool,
+    /// Whether each variant's premium may fade (or grow) with age: its own age slope.
+    #[arg(long, value_enum, default_value = "auto")]
+    pub variant_slopes: VariantSlopesArg,
     /// Appraisal date, YYYY-MM-DD (default: the market's latest listing or sale date).
     #[arg(long)]
     pub as_of: Option<String>,

@@ -4,11 +4,11 @@ use anyhow::{Context, Result, anyhow, bail};
 use chrono::NaiveDate;
 use model::appraisal::{FitSettings, MarketFit, find_segment, fit_market, segment_list};
 use model::clean::{Override, Overrides};
-use model::hedonic::AgeForm;
+use model::hedonic::{AgeForm, VariantSlopes};
 use model::import::{ImportOptions, ImportReport, OdometerUnit, import_csv_file};
 use model::market::{Market, Segment};
 
-use crate::args::{AgeFormArg, MarketArgs, OdometerArg};
+use crate::args::{AgeFormArg, MarketArgs, OdometerArg, VariantSlopesArg};
 
 /// A loaded market with its import report.
 pub struct Loaded {
@@ -62,6 +62,11 @@ pub fn fit_settings(args: &MarketArgs) -> Result<FitSettings> {
         robust: args.robust,
         as_of: parse_as_of(args)?,
         market_time: !args.no_market_time,
+        variant_slopes: match args.variant_slopes {
+            VariantSlopesArg::Auto => VariantSlopes::Auto,
+            VariantSlopesArg::Never => VariantSlopes::Never,
+            VariantSlopesArg::Always => VariantSlopes::Always,
+        },
         ..FitSettings::default()
     };
     settings.cleaning.stale_after_days = (args.stale_days > 0).then_some(args.stale_days);

@@ -95,6 +95,14 @@ pub struct FitSummary {
     pub market_index_missing: Option<String>,
     /// The term in words.
     pub market_conditions: String,
+    /// Whether each variant has its own age slope in the fit.
+    pub variant_slopes: bool,
+    /// The F test of the variant slopes against one premium at every age, when made.
+    pub premium_fade_test: Option<model::hedonic::PremiumFadeTest>,
+    /// Why the test could not be made, when it was tried.
+    pub premium_fade_test_missing: Option<String>,
+    /// Each variant's premium over the base, in words.
+    pub premiums: Vec<String>,
 }
 
 /// The fitted market drift.
@@ -146,6 +154,15 @@ impl FitSummary {
                 .as_ref()
                 .and_then(|r| r.as_ref().err())
                 .map(ToString::to_string),
+            variant_slopes: m.design().variant_slopes,
+            premium_fade_test: fit.premium_fade.clone().and_then(Result::ok),
+            premium_fade_test_missing: fit.premium_fade.clone().and_then(Result::err),
+            premiums: model::hedonic::premium_fade::summary(
+                m,
+                market,
+                fit.premium_fade.as_ref(),
+                model::depreciation::PREMIUM_MAX_AGE,
+            ),
             market_conditions: model::hedonic::market_time::summary(
                 m.market_time(),
                 m.market_drift()

@@ -120,6 +120,13 @@ pub fn fit(f: &FitSummary) -> String {
     );
     let _ = writeln!(o, "  age form: {}", f.age_form_reason);
     let _ = writeln!(o, "  market conditions: {}", f.market_conditions);
+    for (i, words) in f.premiums.iter().enumerate() {
+        let _ = writeln!(
+            o,
+            "  {}{words}",
+            if i == 0 { "variant premiums: " } else { "    " }
+        );
+    }
     let _ = writeln!(
         o,
         "  {:<26} {:>12} {:>11} {:>9} {:>10}",
@@ -428,10 +435,12 @@ pub fn depreciation(doc: &DepreciationDocument) -> String {
         for r in &p.by_age {
             let _ = writeln!(
                 o,
-                "  age {:>2}: {:>9} ({:.1} %)",
+                "  age {:>2}: {:>9} ({:.1} %; 80 % band {:.1} % to {:.1} %)",
                 r.age_years,
                 money(r.premium),
-                r.premium_pct
+                r.premium_pct,
+                r.lower_pct,
+                r.upper_pct
             );
         }
     }

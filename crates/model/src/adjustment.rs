@@ -123,18 +123,24 @@ pub fn model_lines(
         age_years(subject.model_year, as_of_year),
         age_years(market.model_year[row], as_of_year),
     );
+    // With variant age slopes, the model-year line follows the comparable's own variant curve
+    // across the age difference, and the variant line compares the variants at the subject's
+    // age: the two add up to the whole difference.
+    let (vs, vc) = (subject.variant, market.variant[row]);
+    let slope = |v, age| model.variant_slope_effect(v, age);
     grid_lines(&GridInputs {
         price: market.asking_price[row],
         miles_slope: model.miles_slope(),
         miles: (subject.miles, market.miles[row]),
         model_year: (subject.model_year, market.model_year[row]),
-        age_log_change: model.age_effect(age_s) - model.age_effect(age_c),
+        age_log_change: model.age_effect(age_s) - model.age_effect(age_c) + slope(vc, age_s)
+            - slope(vc, age_c),
         variant: (
             variant_label(market, subject.variant),
             market.variant_name(row),
         ),
-        variant_log_change: model.variant_effect(subject.variant)
-            - model.variant_effect(market.variant[row]),
+        variant_log_change: model.variant_effect(vs) - model.variant_effect(vc) + slope(vs, age_s)
+            - slope(vc, age_s),
         condition: (subject.condition, market.condition[row]),
         condition_log_change: model.condition_effect(subject.condition)
             - model.condition_effect(market.condition[row]),

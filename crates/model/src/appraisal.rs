@@ -14,6 +14,7 @@ use crate::comparables::{
     CandidateIndex, ComparableChoices, ComparableRules, RuleBreak, SubjectKey, choose_comparables,
 };
 use crate::hedonic::market_time::{IndexError, MonthlyIndex, monthly_index};
+use crate::hedonic::premium_fade::{PremiumFadeTest, VariantSlopes, test_premium_fade};
 use crate::hedonic::{
     AgeForm, AgeFormChoice, Attributes, FitError, HedonicModel, HedonicParams, ValueEstimate,
     age_years, choose_age_form,
@@ -87,6 +88,10 @@ pub struct FitSettings {
     /// and read as `false`, so they replay as they were saved.
     #[serde(default)]
     pub market_time: bool,
+    /// Whether each variant gets its own age slope (see
+    /// [`crate::hedonic::premium_fade`]). Sessions before format 5 read as `never`.
+    #[serde(default = "VariantSlopes::never")]
+    pub variant_slopes: VariantSlopes,
 }
 
 impl Default for FitSettings {
@@ -97,6 +102,7 @@ impl Default for FitSettings {
             as_of: None,
             cleaning: CleaningRules::default(),
             market_time: true,
+            variant_slopes: VariantSlopes::Auto,
         }
     }
 }
@@ -159,6 +165,9 @@ pub struct MarketFit {
     /// The market's monthly index (80 % band), when the fit has the market-conditions term,
     /// or why none could be made.
     pub market_index: Option<Result<MonthlyIndex, IndexError>>,
+    /// The F test of variant age slopes (not made when they are switched off), or why it could
+    /// not be made.
+    pub premium_fade: Option<Result<PremiumFadeTest, String>>,
 }
 
 /// Band level of the market's monthly index.
@@ -223,10 +232,27 @@ pub fn fit_market(
     let age_form = age_form_choice
         .as_ref()
         .map_or(settings.age_form, |c| c.chosen);
+    let premium_fade = (settings.variant_slopes != VariantSlopes::Never).then(|| {
+        test_premium_fade(
+            market,
+            &included_rows,
+            as_of,
+            age_form,
+            settings.market_time,
+        )
+    });
+    let variant_slopes = match settings.variant_slopes {
+        VariantSlopes::Never => false,
+        VariantSlopes::Always => true,
+        VariantSlopes::Auto => premium_fade
+            .as_ref()
+            .is_some_and(|t| t.as_ref().is_ok_and(PremiumFadeTest::supported)),
+    };
     let params = HedonicParams::new(as_of)
         .age_form(age_form)
         .robust(settings.robust)
         .market_time(settings.market_time)
+        .variant_slopes(variant_slopes)
         .check()?;
     let segment_dated = cleaning
         .rows
@@ -258,6 +284,7 @@ pub fn fit_market(
         segment_dated,
         age_form_choice,
         market_index,
+        premium_fade,
     })
 }
 

@@ -95,6 +95,7 @@ pub fn backtest(
         .age_form(fit.model.params().age_form)
         .robust(fit.model.params().robust)
         .market_time(fit.model.params().market_time)
+        .variant_slopes(fit.model.params().variant_slopes)
         .check()?;
     let mut model_errors = Vec::new();
     let mut model_inside = 0usize;
@@ -123,6 +124,7 @@ pub fn backtest(
             segment_dated: fit.segment_dated,
             age_form_choice: fit.age_form_choice.clone(),
             market_index: None,
+            premium_fade: None,
         };
         let then = |row: usize| on_listing_date(&fold_fit, market, row);
         for &row in &held {

@@ -97,6 +97,9 @@ pub struct DemoTruth {
     /// ln-price shift per month a listing was dated before the appraisal date: the market's
     /// drift (positive: asking prices have been falling).
     pub per_month_before: f64,
+    /// ln-price change per year of age of the top variant's premium (its third variant): the
+    /// premium fades when negative.
+    pub top_variant_fade: f64,
 }
 
 /// The demo market's truth.
@@ -139,6 +142,8 @@ pub fn demo_truth() -> DemoTruth {
         annual_miles: 12_500.0,
         // The market fell about 0.3 % a month over the pull (invented).
         per_month_before: 0.003,
+        // The top variant's premium fades by 1.2 points of ln price a year (invented).
+        top_variant_fade: -0.012,
     }
 }
 
@@ -234,6 +239,26 @@ fn pick_model<'a>(truth: &'a DemoTruth, rng: &mut ChaCha8Rng) -> &'a ModelTruth 
     &truth.models[0]
 }
 
+/// A listing's date (most within four months, some stale ones up to 400 days old) and its
+/// asking price in the market of that date, rounded to $50: the market drifts, so a listing
+/// dated earlier was priced in a higher market.
+fn listing_date_and_price(
+    truth: &DemoTruth,
+    as_of: NaiveDate,
+    rng: &mut ChaCha8Rng,
+    log_price: f64,
+) -> (NaiveDate, f64) {
+    let days_listed = if rng.random::<f64>() < 0.08 {
+        rng.random_range(150..400)
+    } else {
+        rng.random_range(0..120)
+    };
+    let listed_on = as_of - TimeDelta::days(days_listed);
+    let log_price = log_price
+        + truth.per_month_before * crate::hedonic::market_time::months_before(as_of, listed_on);
+    (listed_on, (log_price.exp() / 50.0).round() * 50.0)
+}
+
 fn demo_row(
     truth: &DemoTruth,
     as_of: NaiveDate,
@@ -242,11 +267,12 @@ fn demo_row(
     spread: &Normal<f64>,
 ) -> String {
     let m = pick_model(truth, rng);
-    let (variant, premium) = m.variants[match rng.random::<f64>() {
+    let variant_index = match rng.random::<f64>() {
         u if u < 0.45 => 0,
         u if u < 0.8 => 1,
         _ => 2,
-    }];
+    };
+    let (variant, premium) = m.variants[variant_index];
     let as_of_year = as_of.year();
     let class: f64 = rng.random();
     let (condition, model_year, miles, mut log_price) = if class < 0.12 {
@@ -286,6 +312,9 @@ fn demo_row(
         )
     };
     log_price += premium + noise.sample(rng);
+    if variant_index == 2 && condition != "new" {
+        log_price += truth.top_variant_fade * f64::from(as_of_year - model_year);
+    }
     let mut title = "clean";
     let defect: f64 = rng.random();
     if condition != "new" && defect < 0.006 {
@@ -299,16 +328,7 @@ fn demo_row(
     } else if defect < 0.010 {
         log_price += (1.4f64).ln();
     }
-    let days_listed = if rng.random::<f64>() < 0.08 {
-        rng.random_range(150..400)
-    } else {
-        rng.random_range(0..120)
-    };
-    let listed_on = as_of - TimeDelta::days(days_listed);
-    // The market drifts: a listing dated earlier was priced in a higher market.
-    log_price +=
-        truth.per_month_before * crate::hedonic::market_time::months_before(as_of, listed_on);
-    let price = (log_price.exp() / 50.0).round() * 50.0;
+    let (listed_on, price) = listing_date_and_price(truth, as_of, rng, log_price);
     let (sold_on, sale_price) = if rng.random::<f64>() < 0.35 {
         let days_to_sell = (-35.0 * (1.0 - rng.random::<f64>()).ln()).round() as i64;
         let sold = listed_on + TimeDelta::days(days_to_sell);

@@ -47,7 +47,18 @@ pub struct PremiumRow {
     pub premium: f64,
     /// Premium as a percentage of the base variant's value.
     pub premium_pct: f64,
+    /// Lower end of the premium's 80 % band, percent (from the standard error of the fitted
+    /// premium at this age).
+    pub lower_pct: f64,
+    /// Upper end of the band, percent.
+    pub upper_pct: f64,
 }
+
+/// Oldest age the premium words describe (the depreciation view's last age).
+pub const PREMIUM_MAX_AGE: u32 = 10;
+
+/// Level of the premium-by-age band.
+pub const PREMIUM_BAND_LEVEL: f64 = 0.8;
 
 /// A variant's premium by age.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -117,6 +128,7 @@ pub fn depreciation_table(
         })
         .collect();
     let base = design.variants[0];
+    let t = crate::stats::t_two_sided(PREMIUM_BAND_LEVEL, model.df_residual() as f64);
     let premiums = design
         .variants
         .iter()
@@ -129,10 +141,13 @@ pub fn depreciation_table(
                     let miles = model.mileage().typical_miles(f64::from(age));
                     let v = value(variant, age, used, miles);
                     let b = value(base, age, used, miles);
+                    let (effect, se) = model.premium(variant, f64::from(age));
                     PremiumRow {
                         age_years: age,
                         premium: v - b,
                         premium_pct: 100.0 * (v / b - 1.0),
+                        lower_pct: 100.0 * ((effect - t * se).exp() - 1.0),
+                        upper_pct: 100.0 * ((effect + t * se).exp() - 1.0),
                     }
                 })
                 .collect(),

@@ -32,6 +32,14 @@ pub struct FittedRates {
     /// format 5 have none).
     #[serde(default)]
     pub market_drift: Option<SavedDrift>,
+    /// Each variant's own age slope over the base's, when the fit had variant slopes (format 5
+    /// on; empty otherwise).
+    #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
+    pub variant_age_slopes: BTreeMap<String, f64>,
+    /// The age each model year the grid needs is at, held at the edge of the fitted ages, for
+    /// the variant slopes (empty without them).
+    #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
+    pub slope_ages: BTreeMap<i32, f64>,
 }
 
 /// The market-conditions term as a session keeps it.
@@ -67,8 +75,10 @@ impl FittedRates {
         let as_of_year = model.as_of_year();
         let years = std::iter::once(appraisal.subject.model_year)
             .chain(appraisal.comparables.iter().map(|c| c.listing.model_year));
+        let years: Vec<i32> = years.collect();
         let model_year_effects = years
-            .map(|y| (y, model.age_effect(age_years(y, as_of_year))))
+            .iter()
+            .map(|&y| (y, model.age_effect(age_years(y, as_of_year))))
             .collect();
         let design = model.design();
         let variant_effects = design
@@ -97,7 +107,52 @@ impl FittedRates {
                 distinguishable: d.is_distinguishable(),
                 as_of: model.params().as_of,
             }),
+            variant_age_slopes: design
+                .variants
+                .iter()
+                .filter(|&&v| design.slope_column(v).is_some())
+                .map(|&v| {
+                    (
+                        market.names.variant_name(v).to_owned(),
+                        model.variant_age_slope(v),
+                    )
+                })
+                .collect(),
+            slope_ages: if design.variant_slopes {
+                years
+                    .iter()
+                    .map(|&y| (y, model.age_edge(age_years(y, as_of_year)).0))
+                    .collect()
+            } else {
+                BTreeMap::new()
+            },
         }
+    }
+
+    /// The part of `label`'s premium that changes with age, at model year `year` (0 without
+    /// variant slopes or for the base variant).
+    fn slope_effect(&self, label: &str, year: i32) -> Result<f64, RatesError> {
+        if self.variant_age_slopes.is_empty() {
+            return Ok(0.0);
+        }
+        let key = name_key(label);
+        let slope = self.variant_age_slopes.get(label).copied().or_else(|| {
+            let mut found = self
+                .variant_age_slopes
+                .iter()
+                .filter(|(k, _)| name_key(k) == key);
+            match (found.next(), found.next()) {
+                (Some((_, v)), None) => Some(*v),
+                _ => None,
+            }
+        });
+        let Some(slope) = slope else { return Ok(0.0) };
+        let age = self
+            .slope_ages
+            .get(&year)
+            .copied()
+            .ok_or(RatesError::ModelYear(year))?;
+        Ok(slope * age)
     }
 
     fn year(&self, year: i32) -> Result<f64, RatesError> {
@@ -149,9 +204,13 @@ impl FittedRates {
             miles_slope: self.miles_slope,
             miles: (subject.miles, comparable.miles),
             model_year: (subject.model_year, comparable.model_year),
-            age_log_change: self.year(subject.model_year)? - self.year(comparable.model_year)?,
+            age_log_change: self.year(subject.model_year)? - self.year(comparable.model_year)?
+                + self.slope_effect(vc, subject.model_year)?
+                - self.slope_effect(vc, comparable.model_year)?,
             variant: (vs, vc),
-            variant_log_change: self.variant(vs)? - self.variant(vc)?,
+            variant_log_change: self.variant(vs)? - self.variant(vc)?
+                + self.slope_effect(vs, subject.model_year)?
+                - self.slope_effect(vc, subject.model_year)?,
             condition: (subject.condition, comparable.condition),
             condition_log_change: self.condition(subject.condition)?
                 - self.condition(comparable.condition)?,
@@ -183,6 +242,8 @@ mod tests {
             condition_effects: BTreeMap::new(),
             df_residual: 10.0,
             market_drift: None,
+            variant_age_slopes: BTreeMap::new(),
+            slope_ages: BTreeMap::new(),
         }
     }
 

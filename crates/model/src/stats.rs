@@ -53,6 +53,22 @@ pub fn t_p_value(t: f64, df: f64) -> f64 {
     }
 }
 
+/// Upper-tail p-value of an F statistic with (`df1`, `df2`) degrees of freedom: NaN for a NaN or
+/// negative F or degrees of freedom below [`MIN_DF`]; 0 for an infinite F.
+#[must_use]
+pub fn f_p_value(f: f64, df1: f64, df2: f64) -> f64 {
+    if f.is_nan() || f < 0.0 || df1.is_nan() || df2.is_nan() || df1 < MIN_DF || df2 < MIN_DF {
+        return f64::NAN;
+    }
+    if f.is_infinite() {
+        return 0.0;
+    }
+    match statrs::distribution::FisherSnedecor::new(df1, df2) {
+        Ok(dist) => 1.0 - statrs::distribution::ContinuousCDF::cdf(&dist, f),
+        Err(_) => f64::NAN,
+    }
+}
+
 /// Standard normal distribution function; NaN for NaN.
 #[must_use]
 pub fn normal_cdf(x: f64) -> f64 {

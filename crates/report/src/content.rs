@@ -322,6 +322,14 @@ fn market_facts(session: &Session) -> Vec<(String, String)> {
             ),
         ),
         (
+            "Variant premiums".into(),
+            if f.premiums.is_empty() {
+                "one premium per variant at every age".to_owned()
+            } else {
+                f.premiums.join("; ")
+            },
+        ),
+        (
             "Model's own estimate".into(),
             format!(
                 "{} (median); {:.0} % prediction interval {} to {}",

@@ -75,29 +75,50 @@ fn pane_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     ui.label(RichText::new(format!("{} by age (used at typical miles; the first row is new where the market has new listings)", curve.variant)).strong());
     age_table_ui(ui, curve);
     ranking_ui(ui, cx);
-    for p in &table.premiums {
+    premiums_ui(ui, cx, &table.premiums);
+    ui.separator();
+    market_index_ui(ui, cx);
+}
+
+/// Each variant's premium over the base by age, with its band, and what the data say about
+/// whether it fades.
+fn premiums_ui(
+    ui: &mut Ui,
+    cx: &PaneContext<'_>,
+    premiums: &[model::depreciation::VariantPremium],
+) {
+    ui.label(RichText::new("Variant premiums by age (80 % band)").strong());
+    for words in model::hedonic::premium_fade::summary(
+        &cx.fit.model,
+        cx.market,
+        cx.fit.premium_fade.as_ref(),
+        MAX_AGE,
+    ) {
+        ui.label(words);
+    }
+    for p in premiums {
         let by_age: Vec<String> = p
             .by_age
             .iter()
             .step_by(2)
             .map(|r| {
                 format!(
-                    "age {}: {} ({:.0} %)",
+                    "age {}: {} ({:.0} %, {:.0} to {:.0} %)",
                     r.age_years,
                     money(r.premium),
-                    r.premium_pct
+                    r.premium_pct,
+                    r.lower_pct,
+                    r.upper_pct
                 )
             })
             .collect();
-        ui.label(format!(
-            "Premium of {} over {}: {}",
+        ui.small(format!(
+            "{} over {}: {}",
             p.variant,
             p.base,
-            by_age.join(", ")
+            by_age.join("; ")
         ));
     }
-    ui.separator();
-    market_index_ui(ui, cx);
 }
 
 /// The market's level by month (the time-dummy index) with its band, or why there is none.

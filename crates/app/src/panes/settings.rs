@@ -6,7 +6,7 @@
 use eframe::egui::{self, RichText, Ui};
 use model::appraisal::AsOfSource;
 use model::comparables::{ComparableRules, MileageRule};
-use model::hedonic::AgeForm;
+use model::hedonic::{AgeForm, VariantSlopes};
 use model::session::Purpose;
 
 use super::PaneContext;
@@ -134,6 +134,33 @@ fn fitting_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
                 .map(|d| (d.per_month_before, d.is_distinguishable())),
         )
     ));
+    ui.label("Variant premiums by age:");
+    let choices = [
+        (
+            VariantSlopes::Auto,
+            "A premium that fades or grows with age when the data support it (F test)",
+        ),
+        (VariantSlopes::Never, "One premium per variant at every age"),
+        (
+            VariantSlopes::Always,
+            "Each variant its own age slope, always",
+        ),
+    ];
+    for (choice, words) in choices {
+        if ui.radio(fit.variant_slopes == choice, words).clicked() && fit.variant_slopes != choice {
+            cx.commands.push(Command::SetVariantSlopes(choice));
+        }
+    }
+    if let Some(verdict) = model::hedonic::premium_fade::summary(
+        &cx.fit.model,
+        cx.market,
+        cx.fit.premium_fade.as_ref(),
+        model::depreciation::PREMIUM_MAX_AGE,
+    )
+    .first()
+    {
+        ui.small(format!("In use: {verdict}"));
+    }
     let stale = fit.cleaning.stale_after_days;
     let limit = OptionalLimit {
         before: "Set aside unsold listings older than",

@@ -343,3 +343,47 @@ fn the_market_conditions_term_is_switched_on_screen_and_its_lines_follow() {
     wb.wait_for_jobs();
     assert!(has_market_lines(&wb));
 }
+
+#[test]
+fn variant_slopes_are_chosen_on_screen_and_the_depreciation_view_says_what_the_data_support() {
+    let slopes_in_fit = |wb: &app::Workbench| {
+        wb.runtime()
+            .fit
+            .as_ref()
+            .unwrap()
+            .model
+            .design()
+            .variant_slopes
+    };
+    let mut wb = workbench();
+    wb.show_view(CentralView::Settings);
+    let mut harness = harness_on(wb);
+    harness.get_by_label_contains("In use: one premium per variant at every age");
+    harness
+        .get_by_label("Each variant its own age slope, always")
+        .click();
+    harness.run_steps(2);
+    harness.state_mut().wait_for_jobs();
+    harness.run_steps(1);
+    assert_eq!(
+        harness.state().document().fit.variant_slopes,
+        model::hedonic::VariantSlopes::Always
+    );
+    assert!(slopes_in_fit(harness.state()));
+    harness
+        .get_by_label("One premium per variant at every age")
+        .click();
+    harness.run_steps(2);
+    harness.state_mut().wait_for_jobs();
+    harness.run_steps(1);
+    assert!(!slopes_in_fit(harness.state()));
+    let mut wb = harness.into_state();
+    wb.undo();
+    wb.wait_for_jobs();
+    assert!(slopes_in_fit(&wb));
+    // The demo's top variant's premium fades (invented): the view says so, with the index.
+    wb.show_view(CentralView::Depreciation);
+    let harness = harness_on(wb);
+    harness.get_by_label_contains("Tolvane's premium over Veskel falls");
+    harness.get_by_label_contains("The market's level by month");
+}

@@ -251,3 +251,47 @@ fn market_conditions_are_a_term_a_grid_line_and_an_index_and_can_be_switched_off
     assert!(shown.contains("The market's level by month"), "{shown}");
     assert!(shown.contains("(the base;"), "{shown}");
 }
+
+#[test]
+fn a_fading_premium_is_tested_named_and_can_be_switched_off() {
+    // The demo's top variant's premium fades (invented data).
+    let doc = json(&["fit", "--make", "Quellmark", "--model", "Tessel", "--json"]);
+    let fit = &doc["fit"];
+    assert_eq!(fit["variant_slopes"], true);
+    assert!(fit["premium_fade_test"]["p_value"].as_f64().unwrap() < 0.05);
+    assert_eq!(fit["premium_fade_test"]["df1"], 2);
+    assert!(
+        fit["terms"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|t| t["name"] == "variant=Tolvane:age_years")
+    );
+    let words = fit["premiums"].as_array().unwrap();
+    assert!(
+        words.iter().any(|w| w
+            .as_str()
+            .unwrap()
+            .starts_with("Tolvane's premium over Veskel falls")),
+        "{words:?}"
+    );
+    let never = json(&[
+        "fit",
+        "--make",
+        "Quellmark",
+        "--model",
+        "Tessel",
+        "--variant-slopes",
+        "never",
+        "--json",
+    ]);
+    assert_eq!(never["fit"]["variant_slopes"], false);
+    assert!(never["fit"]["premium_fade_test"].is_null());
+    assert!(
+        !never["fit"]["terms"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|t| t["name"].as_str().unwrap().ends_with(":age_years"))
+    );
+}

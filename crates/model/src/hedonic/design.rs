@@ -73,6 +73,9 @@ pub struct Design {
     pub variants: Vec<NameId>,
     /// Conditions in the fit; the first is the base (no indicator).
     pub conditions: Vec<Condition>,
+    /// Whether each variant but the base has its own age slope (a `variant=<name>:age_years`
+    /// column after the condition indicators): its premium may fade or grow with age.
+    pub variant_slopes: bool,
     /// Whether the last column is the market-conditions term (months before the appraisal
     /// date; see `market_time`). [`Self::fill_row`] leaves it 0, the appraisal date: a
     /// prediction is of today's market, and the fit sets each listing's own.
@@ -84,13 +87,15 @@ pub struct Design {
 impl Design {
     /// Builds the design for the given rows: levels present in the data, bases chosen as the
     /// youngest age, the variant with the lowest median asking price, and `used` when present;
-    /// with the market-conditions term last when `time`.
+    /// with a variant × age slope per variant when `variant_slopes`, and the market-conditions
+    /// term last when `time`.
     #[must_use]
     pub fn for_rows(
         market: &Market,
         rows: &[usize],
         age_form: AgeForm,
         as_of_year: i32,
+        variant_slopes: bool,
         time: bool,
     ) -> Self {
         let ages = distinct_ages(market, rows, as_of_year);
@@ -141,6 +146,14 @@ impl Design {
         for c in conditions.iter().skip(1) {
             names.push(format!("condition={c}"));
         }
+        if variant_slopes {
+            for &v in variants.iter().skip(1) {
+                names.push(format!(
+                    "variant={}:age_years",
+                    market.names.variant_name(v)
+                ));
+            }
+        }
         if time {
             names.push(super::market_time::TERM_NAME.into());
         }
@@ -149,6 +162,7 @@ impl Design {
             age_levels: ages,
             variants,
             conditions,
+            variant_slopes,
             time,
             names,
         }
@@ -158,6 +172,24 @@ impl Design {
     #[must_use]
     pub fn width(&self) -> usize {
         self.names.len()
+    }
+
+    /// Index of the age-slope column of `variant`, when the design has variant slopes and it is
+    /// not the base.
+    #[must_use]
+    pub fn slope_column(&self, variant: NameId) -> Option<usize> {
+        if !self.variant_slopes {
+            return None;
+        }
+        let pos = self.variants.iter().position(|v| *v == variant)?;
+        (pos > 0).then(|| {
+            // After the intercept, age, mileage, variant and condition columns; the first
+            // slope belongs to the second variant.
+            self.miles_column()
+                + (self.variants.len() - 1)
+                + self.conditions.len().saturating_sub(1)
+                + pos
+        })
     }
 
     /// Index of the market-conditions column, when the design has one (always the last).
@@ -237,6 +269,9 @@ impl Design {
             if pos > 0 {
                 out[next + pos - 1] = 1.0;
             }
+        }
+        if let Some(c) = self.slope_column(variant) {
+            out[c] = age;
         }
     }
 

@@ -120,7 +120,7 @@ impl HedonicModel {
     }
 
     /// The nearest age inside the data, and whether `age` was outside it.
-    fn age_edge(&self, age: f64) -> (f64, bool) {
+    pub(crate) fn age_edge(&self, age: f64) -> (f64, bool) {
         let (lo, hi) = self.design.age_range();
         if age.is_nan() {
             return (lo, true);

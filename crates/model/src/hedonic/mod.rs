@@ -11,6 +11,7 @@ mod extrapolation;
 mod form_choice;
 pub mod market_time;
 mod mileage;
+pub mod premium_fade;
 mod robust;
 
 use chrono::{Datelike, NaiveDate};
@@ -32,6 +33,7 @@ pub use form_choice::{
 };
 pub use market_time::{MarketDrift, MarketTimeTerm};
 pub use mileage::MileageProfile;
+pub use premium_fade::{PremiumFadeTest, VariantSlopes};
 
 /// Why a market fit could not be made.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -85,6 +87,9 @@ pub struct ValidHedonicParams {
     /// see [`market_time`]).
     #[serde(default = "market_time_default")]
     pub market_time: bool,
+    /// Whether each variant has its own age slope (its premium may fade with age).
+    #[serde(default)]
+    pub variant_slopes: bool,
 }
 
 fn market_time_default() -> bool {
@@ -102,7 +107,16 @@ impl HedonicParams {
             huber_k: 1.345,
             max_iterations: 50,
             market_time: true,
+            variant_slopes: false,
         })
+    }
+
+    /// Gives each variant its own age slope (`true`) or one slope for all (`false`, the
+    /// default).
+    #[must_use]
+    pub fn variant_slopes(mut self, on: bool) -> Self {
+        self.0.variant_slopes = on;
+        self
     }
 
     /// Lets the market-conditions term enter when the listing dates allow (`true`, the default)
@@ -284,6 +298,7 @@ impl ValidHedonicParams {
             rows,
             self.age_form,
             as_of_year,
+            self.variant_slopes,
             market_time.in_fit(),
         );
         let p = design.width();
@@ -706,6 +721,53 @@ impl HedonicModel {
             std_error: se,
             p_value: stats::t_p_value(b / se, df),
         })
+    }
+
+    /// The age slope of `variant` over the base variant's, per year (0 without variant slopes,
+    /// for the base or an unknown variant).
+    #[must_use]
+    pub fn variant_age_slope(&self, variant: NameId) -> f64 {
+        self.design
+            .slope_column(variant)
+            .map_or(0.0, |c| self.coefficients[c])
+    }
+
+    /// The part of `variant`'s premium that changes with age, at `age`: its age slope times the
+    /// age, held at the nearest edge of the fitted ages beyond them (as the prediction row).
+    #[must_use]
+    pub fn variant_slope_effect(&self, variant: NameId, age: f64) -> f64 {
+        let slope = self.variant_age_slope(variant);
+        if slope == 0.0 {
+            return 0.0;
+        }
+        slope * self.age_edge(age).0
+    }
+
+    /// `variant`'s premium over the base at `age` in ln price, with its standard error (0 and
+    /// 0 for the base).
+    #[must_use]
+    pub fn premium(&self, variant: NameId, age: f64) -> (f64, f64) {
+        let first = self.design.miles_column() + 1;
+        let Some(pos) = self.design.variants.iter().position(|v| *v == variant) else {
+            return (0.0, 0.0);
+        };
+        if pos == 0 {
+            return (0.0, 0.0);
+        }
+        let mut c = vec![0.0; self.design.width()];
+        c[first + pos - 1] = 1.0;
+        if let Some(col) = self.design.slope_column(variant) {
+            c[col] = self.age_edge(age).0;
+        }
+        let effect = dot(&c, &self.coefficients);
+        let se = self.coefficient_sd * self.factor.leverage_of(&c).sqrt();
+        (effect, se)
+    }
+
+    /// Residual sum of squares of ln price.
+    #[must_use]
+    pub fn rss(&self) -> f64 {
+        self.rss
     }
 
     /// The ln-price effect of a listing dated `listed_on` relative to the appraisal date (0

@@ -100,6 +100,9 @@ pub struct FitRecord {
     /// Whether the market-conditions term was in the fit, and why not (format 5 on).
     #[serde(default)]
     pub market_time: Option<crate::hedonic::MarketTimeTerm>,
+    /// What the fit said about each variant's premium by age, in words (format 5 on).
+    #[serde(default)]
+    pub premiums: Vec<String>,
 }
 
 /// Who made the appraisal and when.
@@ -207,6 +210,12 @@ impl Session {
                 rates,
                 age_form_choice: c.fit.age_form_choice.clone(),
                 market_time: Some(c.fit.model.market_time().clone()),
+                premiums: crate::hedonic::premium_fade::summary(
+                    &c.fit.model,
+                    c.market,
+                    c.fit.premium_fade.as_ref(),
+                    crate::depreciation::PREMIUM_MAX_AGE,
+                ),
             },
             request: c.request.clone(),
             appraisal: c.appraisal.clone(),
