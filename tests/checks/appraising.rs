@@ -27,8 +27,8 @@ fn comparables_pass_the_filters_and_carry_itemized_adjustments() {
         assert!(fit.cleaning.is_included(c.listing.row));
         let kinds: Vec<AdjustmentKind> = c.adjustments.iter().map(|l| l.kind).collect();
         assert_eq!(
-            kinds,
-            vec![
+            kinds[..5],
+            [
                 AdjustmentKind::Mileage,
                 AdjustmentKind::ModelYear,
                 AdjustmentKind::Variant,
@@ -36,6 +36,15 @@ fn comparables_pass_the_filters_and_carry_itemized_adjustments() {
                 AdjustmentKind::MarketConditions
             ]
         );
+        // Then one equipment line per fitted option the comparable states (the subject states
+        // none).
+        let stated = fit
+            .model
+            .design()
+            .option_columns(c.listing.options.as_deref().unwrap_or(""))
+            .len();
+        assert_eq!(kinds[5..].len(), stated);
+        assert!(kinds[5..].iter().all(|k| *k == AdjustmentKind::Equipment));
         let sum: f64 = c.adjustments.iter().map(|l| l.amount).sum();
         assert!((c.adjusted_price - (c.listing.asking_price + sum)).abs() < 1e-6);
         // A comparable with more miles than the subject is worse, so it is adjusted up.

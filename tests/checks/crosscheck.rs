@@ -47,6 +47,13 @@ fn agrees_with_linfa_linear_on_the_demo_market_design() {
             .design_row(&fit.model.attributes_of_row(&market, r));
         // The market-conditions column at the listing's own date (a prediction row leaves it
         // at the appraisal date), so linfa fits the same design, time term included.
+        for c in fit
+            .model
+            .design()
+            .option_columns(market.names.name(market.options[r]))
+        {
+            design_row[c] = 1.0;
+        }
         if let Some(c) = fit.model.design().time_column() {
             design_row[c] =
                 model::hedonic::market_time::months_before(fit.as_of, market.listed_on[r].unwrap());

@@ -6,6 +6,7 @@
 
 mod appraising;
 mod crosscheck;
+mod equipment;
 mod fuzz;
 mod guards;
 mod import;

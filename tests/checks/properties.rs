@@ -30,7 +30,8 @@ proptest! {
         let months = market.listed_on[row]
             .map_or(0.0, |d| model::hedonic::market_time::months_before(fit.as_of, d));
         let drift = fit.model.market_drift().map_or(0.0, |d| d.per_month_before);
-        for line in model_lines(&fit.model, market, row, &subject) {
+        let options = market.names.name(market.options[row]);
+        for line in model_lines(&fit.model, market, row, &subject, options) {
             let expected = if line.kind == model::adjustment::AdjustmentKind::MarketConditions {
                 market.asking_price[row] * ((-drift * months).exp() - 1.0)
             } else {

@@ -65,6 +65,10 @@ pub enum Command {
     SetMarketTime(bool),
     /// Whether each variant gets its own age slope (refits the market).
     SetVariantSlopes(model::hedonic::VariantSlopes),
+    /// Whether options stated on enough listings get their own terms (refits the market).
+    SetEquipment(bool),
+    /// Set the subject's options, names separated by ";" (typing settles into one undo step).
+    SetSubjectOptions(Option<String>),
     /// Set aside unsold listings older than this many days (`None` keeps them; refits).
     SetStaleDays(Option<u32>),
     /// Model years either side of the subject's a comparable may be.
@@ -100,6 +104,7 @@ impl Command {
                 | Command::SetNotes(_)
                 | Command::SetCase(_)
                 | Command::SetSubjectVin(_)
+                | Command::SetSubjectOptions(_)
                 | Command::SetYearWindow(_)
                 | Command::SetListingAge(_)
                 | Command::SetDistance(_)
@@ -121,6 +126,7 @@ fn apply_ground_rule(document: &mut AppraisalDocument, command: &Command) {
         Command::SetRobust(robust) => document.fit.robust = robust,
         Command::SetMarketTime(on) => document.fit.market_time = on,
         Command::SetVariantSlopes(slopes) => document.fit.variant_slopes = slopes,
+        Command::SetEquipment(on) => document.fit.equipment = on,
         Command::SetStaleDays(days) => {
             document.fit.cleaning.stale_after_days = days.map(|d| d.clamp(1, 3_650));
         }
@@ -201,6 +207,11 @@ pub fn apply(document: &mut AppraisalDocument, command: Command) -> bool {
                 ..case
             };
         }
+        Command::SetSubjectOptions(options) => {
+            document.subject.options = options
+                .map(|o| o.trim().to_owned())
+                .filter(|o| !o.is_empty());
+        }
         Command::SetSubjectVin(vin) => {
             document.subject.vin = vin
                 .map(|v| v.trim().to_ascii_uppercase())
@@ -211,6 +222,7 @@ pub fn apply(document: &mut AppraisalDocument, command: Command) -> bool {
         | Command::SetRobust(_)
         | Command::SetMarketTime(_)
         | Command::SetVariantSlopes(_)
+        | Command::SetEquipment(_)
         | Command::SetStaleDays(_)
         | Command::SetYearWindow(_)
         | Command::SetMileageRule(_)

@@ -179,6 +179,10 @@ pub struct MarketArgs {
     /// and the dates span at least 90 days over 3 calendar months).
     #[arg(long)]
     pub no_market_time: bool,
+    /// Leave the options out of the fit (by default each option stated on at least 20 fitted
+    /// listings, and missing from as many, gets its own term).
+    #[arg(long)]
+    pub no_equipment: bool,
     /// Whether each variant's premium may fade (or grow) with age: its own age slope.
     #[arg(long, value_enum, default_value = "auto")]
     pub variant_slopes: VariantSlopesArg,

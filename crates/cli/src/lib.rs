@@ -202,6 +202,7 @@ fn default_market_args() -> MarketArgs {
         age_form: args::AgeFormArg::Auto,
         robust: false,
         no_market_time: false,
+        no_equipment: false,
         variant_slopes: args::VariantSlopesArg::Auto,
         as_of: None,
         delimiter: None,

@@ -62,6 +62,7 @@ pub fn fit_settings(args: &MarketArgs) -> Result<FitSettings> {
         robust: args.robust,
         as_of: parse_as_of(args)?,
         market_time: !args.no_market_time,
+        equipment: !args.no_equipment,
         variant_slopes: match args.variant_slopes {
             VariantSlopesArg::Auto => VariantSlopes::Auto,
             VariantSlopesArg::Never => VariantSlopes::Never,

@@ -34,6 +34,8 @@ pub struct ImportSummary {
     pub blank_lines: usize,
     /// Makes, models and variants written in several spellings and read as one.
     pub merged_spellings: Vec<model::market::MergedSpelling>,
+    /// The options stated in the file, commonest first.
+    pub options_found: Vec<model::equipment::OptionCount>,
 }
 
 impl ImportSummary {
@@ -54,6 +56,7 @@ impl ImportSummary {
             condition_inferred: r.condition_inferred,
             blank_lines: r.blank_lines,
             merged_spellings: r.merged_spellings.clone(),
+            options_found: r.options_found.clone(),
         }
     }
 }

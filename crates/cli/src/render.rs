@@ -80,6 +80,29 @@ pub fn import(s: &ImportSummary) -> String {
     if !s.ignored_columns.is_empty() {
         let _ = writeln!(o, "  ignored columns: {}", s.ignored_columns.join(", "));
     }
+    if !s.options_found.is_empty() {
+        let found = s
+            .options_found
+            .iter()
+            .map(|f| {
+                let spellings = if f.spellings.is_empty() {
+                    String::new()
+                } else {
+                    format!(
+                        ", spelled {}",
+                        f.spellings
+                            .iter()
+                            .map(|(t, n)| format!("\"{t}\" ({n})"))
+                            .collect::<Vec<_>>()
+                            .join(", ")
+                    )
+                };
+                format!("{} ({}{spellings})", f.name, thousands(f.listings as f64))
+            })
+            .collect::<Vec<_>>()
+            .join("; ");
+        let _ = writeln!(o, "  options stated: {found}");
+    }
     o
 }
 

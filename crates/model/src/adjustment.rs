@@ -31,6 +31,8 @@ pub enum AdjustmentKind {
     /// The market's change between the comparable's listing date and the appraisal date, from
     /// the fitted market-conditions term (a time adjustment).
     MarketConditions,
+    /// An option the subject and the comparable differ in, from its fitted term.
+    Equipment,
     /// The vehicle's physical condition (wear, damage beyond the usual for its age), entered
     /// by the appraiser.
     Condition,
@@ -64,6 +66,7 @@ impl AdjustmentKind {
             Self::Variant => "variant",
             Self::SaleClass => "sold as",
             Self::MarketConditions => "market conditions",
+            Self::Equipment => "equipment",
             Self::Condition => "condition",
             Self::Options => "options",
             Self::PriorDamage => "prior damage",
@@ -117,7 +120,13 @@ pub fn model_lines(
     market: &Market,
     row: usize,
     subject: &SubjectTerms,
+    subject_options: &str,
 ) -> Vec<AdjustmentLine> {
+    let equipment = option_differences(
+        &model.option_effects(),
+        subject_options,
+        market.names.name(market.options[row]),
+    );
     let as_of_year = model.as_of_year();
     let (age_s, age_c) = (
         age_years(subject.model_year, as_of_year),
@@ -150,6 +159,7 @@ pub fn model_lines(
             months_before: market.listed_on[row]
                 .map(|date| crate::hedonic::market_time::months_before(model.params().as_of, date)),
         }),
+        equipment: &equipment,
     })
 }
 
@@ -179,6 +189,48 @@ pub struct GridInputs<'a> {
     /// The market's fitted drift and the comparable's listing date, when the fit has the
     /// market-conditions term.
     pub market: Option<MarketConditions>,
+    /// Each fitted option the subject and the comparable differ in.
+    pub equipment: &'a [OptionDifference],
+}
+
+/// A fitted option the subject and a comparable differ in.
+#[derive(Debug, Clone, PartialEq)]
+pub struct OptionDifference {
+    /// The option's name.
+    pub name: String,
+    /// Its fitted effect on ln price.
+    pub effect: f64,
+    /// The effect's standard error.
+    pub std_error: f64,
+    /// Whether the subject has it (else the comparable has it).
+    pub subject_has: bool,
+}
+
+/// The fitted options (name, effect, standard error) that the subject's options cell and the
+/// comparable's differ in.
+#[must_use]
+pub fn option_differences(
+    fitted: &[(String, f64, f64)],
+    subject_options: &str,
+    comparable_options: &str,
+) -> Vec<OptionDifference> {
+    let (s, c) = (
+        crate::equipment::keys(subject_options),
+        crate::equipment::keys(comparable_options),
+    );
+    fitted
+        .iter()
+        .filter_map(|(name, effect, std_error)| {
+            let key = crate::vocabulary::name_key(name);
+            let (in_s, in_c) = (s.contains(&key), c.contains(&key));
+            (in_s != in_c).then(|| OptionDifference {
+                name: name.clone(),
+                effect: *effect,
+                std_error: *std_error,
+                subject_has: in_s,
+            })
+        })
+        .collect()
 }
 
 /// What a comparable's market-conditions line is computed from.
@@ -266,6 +318,24 @@ pub fn grid_lines(g: &GridInputs<'_>) -> Vec<AdjustmentLine> {
             None => (0.0, format!("{trend}; no listing date, so not adjusted")),
         };
         lines.push(line(AdjustmentKind::MarketConditions, log_change, basis));
+    }
+    for d in g.equipment {
+        let sign = if d.subject_has { 1.0 } else { -1.0 };
+        lines.push(line(
+            AdjustmentKind::Equipment,
+            sign * d.effect,
+            format!(
+                "fitted option {}: {:+.1} % (standard error {:.1} points); {}",
+                d.name,
+                100.0 * d.effect.exp_m1(),
+                100.0 * d.std_error,
+                if d.subject_has {
+                    "the subject has it, the comparable does not"
+                } else {
+                    "the comparable has it, the subject does not"
+                }
+            ),
+        ));
     }
     lines
 }

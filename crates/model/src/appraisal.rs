@@ -92,6 +92,10 @@ pub struct FitSettings {
     /// [`crate::hedonic::premium_fade`]). Sessions before format 5 read as `never`.
     #[serde(default = "VariantSlopes::never")]
     pub variant_slopes: VariantSlopes,
+    /// Whether options stated on enough listings get their own terms (see
+    /// [`crate::equipment`]). Sessions before format 5 read as `false`.
+    #[serde(default)]
+    pub equipment: bool,
 }
 
 impl Default for FitSettings {
@@ -103,6 +107,7 @@ impl Default for FitSettings {
             cleaning: CleaningRules::default(),
             market_time: true,
             variant_slopes: VariantSlopes::Auto,
+            equipment: true,
         }
     }
 }
@@ -253,6 +258,7 @@ pub fn fit_market(
         .robust(settings.robust)
         .market_time(settings.market_time)
         .variant_slopes(variant_slopes)
+        .equipment(settings.equipment)
         .check()?;
     let segment_dated = cleaning
         .rows
@@ -553,7 +559,11 @@ pub fn appraise_among(
         variant: terms.variant,
         condition: terms.condition,
     };
-    let model_estimate = fit.model.estimate(&attributes, request.level);
+    let model_estimate = fit.model.estimate_equipped(
+        &attributes,
+        request.subject.options.as_deref().unwrap_or(""),
+        request.level,
+    );
     let key = SubjectKey {
         model_year: terms.model_year,
         miles: terms.miles,
@@ -586,7 +596,13 @@ pub fn appraise_among(
     let mut comparables: Vec<AdjustedComparable> = chosen
         .into_iter()
         .map(|(c, _)| {
-            let mut adjustments = model_lines(&fit.model, market, c.row, &terms);
+            let mut adjustments = model_lines(
+                &fit.model,
+                market,
+                c.row,
+                &terms,
+                request.subject.options.as_deref().unwrap_or(""),
+            );
             adjustments.extend(user_lines(&request.user_adjustments, market.line[c.row]));
             AdjustedComparable::new(
                 market.listing(c.row),

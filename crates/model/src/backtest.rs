@@ -73,9 +73,7 @@ pub struct Backtest {
 /// The factor that carries an estimate of the appraisal date's market back to the listing date
 /// of `row`: a held-out listing was priced on its own date.
 fn on_listing_date(fit: &MarketFit, market: &Market, row: usize) -> f64 {
-    fit.model
-        .market_conditions_effect(market.listed_on[row])
-        .exp()
+    fit.model.row_shift(market, row).exp()
 }
 
 /// Runs the backtest over the fit's included listings.
@@ -96,6 +94,7 @@ pub fn backtest(
         .robust(fit.model.params().robust)
         .market_time(fit.model.params().market_time)
         .variant_slopes(fit.model.params().variant_slopes)
+        .equipment(fit.model.params().equipment)
         .check()?;
     let mut model_errors = Vec::new();
     let mut model_inside = 0usize;

@@ -467,6 +467,7 @@ fn mark_outliers(
             AgeForm::Quadratic,
             as_of.year(),
             false,
+            Vec::new(),
             false,
         )
         .width();

@@ -100,6 +100,8 @@ pub struct DemoTruth {
     /// ln-price change per year of age of the top variant's premium (its third variant): the
     /// premium fades when negative.
     pub top_variant_fade: f64,
+    /// ln-price effect of each option a listing states.
+    pub option_premiums: [(&'static str, f64); 5],
 }
 
 /// The demo market's truth.
@@ -144,6 +146,14 @@ pub fn demo_truth() -> DemoTruth {
         per_month_before: 0.003,
         // The top variant's premium fades by 1.2 points of ln price a year (invented).
         top_variant_fade: -0.012,
+        // Invented: what each option adds to the asking price (cold weather: nothing).
+        option_premiums: [
+            ("sunroof", 0.015),
+            ("tow package", 0.01),
+            ("premium audio", 0.012),
+            ("driver assist", 0.025),
+            ("cold weather", 0.0),
+        ],
     }
 }
 
@@ -239,10 +249,34 @@ fn pick_model<'a>(truth: &'a DemoTruth, rng: &mut ChaCha8Rng) -> &'a ModelTruth 
     &truth.models[0]
 }
 
-/// A listing's date (most within four months, some stale ones up to 400 days old) and its
-/// asking price in the market of that date, rounded to $50: the market drifts, so a listing
-/// dated earlier was priced in a higher market.
-fn listing_date_and_price(
+/// The options a listing states (each with probability 0.3) and its asking price with their
+/// premiums, rounded to $50.
+fn options_and_price(
+    truth: &DemoTruth,
+    rng: &mut ChaCha8Rng,
+    log_price: f64,
+) -> (Vec<&'static str>, f64) {
+    let options: Vec<&'static str> = OPTIONS
+        .iter()
+        .copied()
+        .filter(|_| rng.random::<f64>() < 0.3)
+        .collect();
+    let equipped: f64 = truth
+        .option_premiums
+        .iter()
+        .filter(|(name, _)| options.contains(name))
+        .map(|(_, premium)| premium)
+        .sum();
+    (
+        options,
+        ((log_price + equipped).exp() / 50.0).round() * 50.0,
+    )
+}
+
+/// A listing's date (most within four months, some stale ones up to 400 days old) and its ln
+/// asking price in the market of that date: the market drifts, so a listing dated earlier was
+/// priced in a higher market.
+fn listing_date_and_log_price(
     truth: &DemoTruth,
     as_of: NaiveDate,
     rng: &mut ChaCha8Rng,
@@ -254,9 +288,11 @@ fn listing_date_and_price(
         rng.random_range(0..120)
     };
     let listed_on = as_of - TimeDelta::days(days_listed);
-    let log_price = log_price
-        + truth.per_month_before * crate::hedonic::market_time::months_before(as_of, listed_on);
-    (listed_on, (log_price.exp() / 50.0).round() * 50.0)
+    (
+        listed_on,
+        log_price
+            + truth.per_month_before * crate::hedonic::market_time::months_before(as_of, listed_on),
+    )
 }
 
 fn demo_row(
@@ -328,31 +364,28 @@ fn demo_row(
     } else if defect < 0.010 {
         log_price += (1.4f64).ln();
     }
-    let (listed_on, price) = listing_date_and_price(truth, as_of, rng, log_price);
-    let (sold_on, sale_price) = if rng.random::<f64>() < 0.35 {
+    let (listed_on, log_price) = listing_date_and_log_price(truth, as_of, rng, log_price);
+    let sale = if rng.random::<f64>() < 0.35 {
         let days_to_sell = (-35.0 * (1.0 - rng.random::<f64>()).ln()).round() as i64;
         let sold = listed_on + TimeDelta::days(days_to_sell);
-        if sold <= as_of {
-            let ratio = rng.random_range(0.94..0.99);
-            (
-                sold.to_string(),
-                format!("{:.0}", (price * ratio / 50.0).round() * 50.0),
-            )
-        } else {
-            (String::new(), String::new())
-        }
+        (sold <= as_of).then(|| (sold, rng.random_range(0.94..0.99)))
     } else {
-        (String::new(), String::new())
+        None
     };
     let drawn: Vec<char> = (0..14)
         .map(|_| VIN_CHARS[rng.random_range(0..VIN_CHARS.len())] as char)
         .collect();
     let vin = demo_vin(m.make, m.model, model_year, &drawn);
-    let options: Vec<&str> = OPTIONS
-        .iter()
-        .copied()
-        .filter(|_| rng.random::<f64>() < 0.3)
-        .collect();
+    let (options, price) = options_and_price(truth, rng, log_price);
+    let (sold_on, sale_price) = sale.map_or_else(
+        || (String::new(), String::new()),
+        |(sold, ratio)| {
+            (
+                sold.to_string(),
+                format!("{:.0}", (price * ratio / 50.0).round() * 50.0),
+            )
+        },
+    );
     format!(
         "{model_year},{},{},{variant},{price:.0},{miles:.0},{condition},{listed_on},{sold_on},{sale_price},{vin},Seller {:03},{},{:.1},{title},{}",
         m.make,

@@ -52,10 +52,7 @@ pub fn price_gaps(market: &Market, fit: &MarketFit, level: f64) -> Vec<PriceGap>
             let attributes = fit.model.attributes_of_row(market, row);
             let estimate = fit.model.estimate(&attributes, level);
             // The market on the listing's own date (the fitted drift carries today's back).
-            let shift = fit
-                .model
-                .market_conditions_effect(market.listed_on[row])
-                .exp();
+            let shift = fit.model.row_shift(market, row).exp();
             let expected = shift * estimate.median;
             let band = estimate.prediction_interval;
             let price = market.asking_price[row];

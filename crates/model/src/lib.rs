@@ -16,6 +16,7 @@ pub mod comparables;
 pub mod condition;
 pub mod demo;
 pub mod depreciation;
+pub mod equipment;
 pub mod forecast;
 pub mod format;
 pub mod gaps;

@@ -40,6 +40,10 @@ pub struct FittedRates {
     /// the variant slopes (empty without them).
     #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
     pub slope_ages: BTreeMap<i32, f64>,
+    /// Each option with a term: (name, fitted effect on ln price, standard error) (format 5
+    /// on; empty otherwise).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub option_effects: Vec<(String, f64, f64)>,
 }
 
 /// The market-conditions term as a session keeps it.
@@ -118,6 +122,7 @@ impl FittedRates {
                     )
                 })
                 .collect(),
+            option_effects: model.option_effects(),
             slope_ages: if design.variant_slopes {
                 years
                     .iter()
@@ -197,6 +202,11 @@ impl FittedRates {
             crate::vocabulary::variant_text(subject.variant.as_deref()),
             crate::vocabulary::variant_text(comparable.variant.as_deref()),
         );
+        let equipment = crate::adjustment::option_differences(
+            &self.option_effects,
+            subject.options.as_deref().unwrap_or(""),
+            comparable.options.as_deref().unwrap_or(""),
+        );
         // Labels as the live grid writes them: the market's spelling for the comparable and
         // the subject's own when it has one.
         Ok(grid_lines(&GridInputs {
@@ -223,6 +233,7 @@ impl FittedRates {
                         .listed_on
                         .map(|date| crate::hedonic::market_time::months_before(d.as_of, date)),
                 }),
+            equipment: &equipment,
         }))
     }
 }
@@ -244,6 +255,7 @@ mod tests {
             market_drift: None,
             variant_age_slopes: BTreeMap::new(),
             slope_ages: BTreeMap::new(),
+            option_effects: Vec::new(),
         }
     }
 

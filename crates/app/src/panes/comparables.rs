@@ -29,12 +29,12 @@ pub enum SortBy {
 const GROUPS: [(&str, usize); 4] = [
     ("", 1),
     ("The listing", 8),
-    ("Adjustments to the subject", 8),
+    ("Adjustments to the subject", 9),
     ("Result", 3),
 ];
 
 /// The columns after the row's button, with the sort each heading offers.
-const COLUMNS: [(&str, Option<SortBy>); 19] = [
+const COLUMNS: [(&str, Option<SortBy>); 20] = [
     ("line", None),
     ("vehicle", None),
     ("miles", Some(SortBy::Miles)),
@@ -48,6 +48,7 @@ const COLUMNS: [(&str, Option<SortBy>); 19] = [
     ("variant", None),
     ("sold as", None),
     ("market", None),
+    ("equipment", None),
     ("your lines", None),
     ("net", None),
     ("gross", Some(SortBy::Gross)),
@@ -208,6 +209,7 @@ fn row_ui(ui: &mut Ui, cx: &mut PaneContext<'_>, c: &AdjustedComparable) -> egui
         &[AdjustmentKind::Variant],
         &[AdjustmentKind::SaleClass],
         &[AdjustmentKind::MarketConditions],
+        &[AdjustmentKind::Equipment],
         &[
             AdjustmentKind::Condition,
             AdjustmentKind::Options,

@@ -110,10 +110,7 @@ fn below_band(cx: &PaneContext<'_>, data: &MileageChartData, view: &View) -> Vec
                 cx.document.level,
             );
             // Against the market on the listing's own date.
-            let shift = fit
-                .model
-                .market_conditions_effect(cx.market.listed_on[p.row])
-                .exp();
+            let shift = fit.model.row_shift(cx.market, p.row).exp();
             cx.market.asking_price[p.row] < shift * own.prediction_interval.lower
         })
         .map(|p| p.at)

@@ -109,6 +109,23 @@ fn fitting_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     {
         cx.commands.push(Command::SetRobust(robust));
     }
+    terms_ui(ui, cx);
+    let stale = fit.cleaning.stale_after_days;
+    let limit = OptionalLimit {
+        before: "Set aside unsold listings older than",
+        after: "",
+        default: 180,
+        range: 1..=3_650,
+        speed: 1.0,
+        suffix: " days",
+    };
+    limit.ui(ui, stale, cx.commands, Command::SetStaleDays);
+}
+
+/// The terms that enter the fit when the data allow: market conditions, equipment and variant
+/// slopes, each with what is in use.
+fn terms_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
+    let fit = cx.document.fit;
     let mut market_time = fit.market_time;
     if ui
         .checkbox(
@@ -134,6 +151,16 @@ fn fitting_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
                 .map(|d| (d.per_month_before, d.is_distinguishable())),
         )
     ));
+    let mut equipment = fit.equipment;
+    if ui
+        .checkbox(
+            &mut equipment,
+            "Price the options stated on enough listings (an equipment line per option the subject and a comparable differ in)",
+        )
+        .changed()
+    {
+        cx.commands.push(Command::SetEquipment(equipment));
+    }
     ui.label("Variant premiums by age:");
     let choices = [
         (
@@ -161,16 +188,6 @@ fn fitting_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
     {
         ui.small(format!("In use: {verdict}"));
     }
-    let stale = fit.cleaning.stale_after_days;
-    let limit = OptionalLimit {
-        before: "Set aside unsold listings older than",
-        after: "",
-        default: 180,
-        range: 1..=3_650,
-        speed: 1.0,
-        suffix: " days",
-    };
-    limit.ui(ui, stale, cx.commands, Command::SetStaleDays);
 }
 
 fn comparables_ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {

@@ -80,10 +80,40 @@ pub fn ui(ui: &mut Ui, cx: &mut PaneContext<'_>) {
             });
             ui.end_row();
 
+            options_row(ui, cx, &subject);
             vin_row(ui, cx, &subject);
         });
     ui.separator();
     selected_listing_ui(ui, cx);
+}
+
+/// Accessible label of the subject's options field.
+pub const OPTIONS_LABEL: &str = "Options";
+
+/// The subject's options, typed as names separated by ";", and which of them the fit prices.
+fn options_row(ui: &mut Ui, cx: &mut PaneContext<'_>, subject: &Subject) {
+    let label = ui.label(OPTIONS_LABEL);
+    ui.vertical(|ui| {
+        let mut options = subject.options.clone().unwrap_or_default();
+        if ui
+            .add(
+                egui::TextEdit::singleline(&mut options)
+                    .hint_text("e.g. sunroof; tow package")
+                    .desired_width(190.0),
+            )
+            .labelled_by(label.id)
+            .changed()
+        {
+            cx.commands.push(Command::SetSubjectOptions(Some(options)));
+        }
+        let fitted = &cx.fit.model.design().options;
+        if !fitted.is_empty() {
+            let names: Vec<&str> = fitted.iter().map(|(_, n)| n.as_str()).collect();
+            ui.small(format!("Priced by the market: {}", names.join(", ")))
+                .on_hover_text("Options stated on at least 20 listings, and missing from as many, have their own term; others are for your own lines");
+        }
+    });
+    ui.end_row();
 }
 
 /// Accessible label of the subject's VIN field.

@@ -387,3 +387,40 @@ fn variant_slopes_are_chosen_on_screen_and_the_depreciation_view_says_what_the_d
     harness.get_by_label_contains("Tolvane's premium over Veskel falls");
     harness.get_by_label_contains("The market's level by month");
 }
+
+#[test]
+fn the_subjects_options_are_typed_and_priced_by_the_market() {
+    let mut wb = workbench();
+    let before = indicated(&wb);
+    let harness = harness_on(wb);
+    harness.get_by_label(app::panes::subject::OPTIONS_LABEL);
+    harness.get_by_label_contains("Priced by the market: ");
+    wb = harness.into_state();
+    wb.apply(Command::SetSubjectOptions(Some(
+        "driver assist; sunroof ".into(),
+    )));
+    wb.wait_for_jobs();
+    assert_eq!(
+        wb.document().subject.options.as_deref(),
+        Some("driver assist; sunroof")
+    );
+    assert!(
+        indicated(&wb) > before,
+        "options the market prices raise the value"
+    );
+    assert!(!comparables(&wb).is_empty());
+    let lines = wb
+        .runtime()
+        .appraisal
+        .as_ref()
+        .unwrap()
+        .comparables
+        .iter()
+        .flat_map(|c| c.adjustments.iter())
+        .filter(|l| l.kind == model::adjustment::AdjustmentKind::Equipment)
+        .count();
+    assert!(lines > 0);
+    wb.undo();
+    wb.wait_for_jobs();
+    assert_eq!(wb.document().subject.options, None);
+}

@@ -295,3 +295,45 @@ fn a_fading_premium_is_tested_named_and_can_be_switched_off() {
             .any(|t| t["name"].as_str().unwrap().ends_with(":age_years"))
     );
 }
+
+#[test]
+fn options_are_counted_priced_and_lined_and_can_be_left_out() {
+    let market = repo("assets/demo-market.csv");
+    let subject = format!("{SUBJECT},options=Driver Assist;sunroof");
+    let doc = json(&["appraise", &market, "--subject", &subject, "--json"]);
+    let found = doc["import"]["options_found"].as_array().unwrap();
+    assert_eq!(found.len(), 5, "{found:?}");
+    assert!(
+        doc["fit"]["terms"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|t| t["name"] == "option=driver assist")
+    );
+    assert!(doc["comparables"].as_array().unwrap().iter().any(|c| {
+        c["adjustments"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|a| a["kind"] == "equipment")
+    }));
+    let off = json(&[
+        "appraise",
+        &market,
+        "--subject",
+        &subject,
+        "--no-equipment",
+        "--json",
+    ]);
+    assert!(
+        !off["fit"]["terms"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|t| t["name"].as_str().unwrap().starts_with("option="))
+    );
+    let out = succeeded(&["appraise", &market, "--subject", &subject]);
+    let shown = String::from_utf8_lossy(&out.stdout);
+    assert!(shown.contains("options stated: "), "{shown}");
+    assert!(shown.contains("equipment: fitted option"), "{shown}");
+}

@@ -76,6 +76,9 @@ pub struct Design {
     /// Whether each variant but the base has its own age slope (a `variant=<name>:age_years`
     /// column after the condition indicators): its premium may fade or grow with age.
     pub variant_slopes: bool,
+    /// Options with their own indicator (`option=<name>`, after the variant slopes): (matching
+    /// key, name shown).
+    pub options: Vec<(String, String)>,
     /// Whether the last column is the market-conditions term (months before the appraisal
     /// date; see `market_time`). [`Self::fill_row`] leaves it 0, the appraisal date: a
     /// prediction is of today's market, and the fit sets each listing's own.
@@ -96,6 +99,7 @@ impl Design {
         age_form: AgeForm,
         as_of_year: i32,
         variant_slopes: bool,
+        options: Vec<(String, String)>,
         time: bool,
     ) -> Self {
         let ages = distinct_ages(market, rows, as_of_year);
@@ -154,6 +158,9 @@ impl Design {
                 ));
             }
         }
+        for (_, name) in &options {
+            names.push(format!("option={name}"));
+        }
         if time {
             names.push(super::market_time::TERM_NAME.into());
         }
@@ -163,6 +170,7 @@ impl Design {
             variants,
             conditions,
             variant_slopes,
+            options,
             time,
             names,
         }
@@ -190,6 +198,35 @@ impl Design {
                 + self.conditions.len().saturating_sub(1)
                 + pos
         })
+    }
+
+    /// Index of the column of the design's `index`-th option.
+    #[must_use]
+    pub fn option_column(&self, index: usize) -> usize {
+        let slopes = if self.variant_slopes {
+            self.variants.len().saturating_sub(1)
+        } else {
+            0
+        };
+        self.miles_column()
+            + self.variants.len().saturating_sub(1)
+            + self.conditions.len().saturating_sub(1)
+            + slopes
+            + 1
+            + index
+    }
+
+    /// The option columns a listing or subject stating `cell` sets (its options that have a
+    /// term).
+    #[must_use]
+    pub fn option_columns(&self, cell: &str) -> Vec<usize> {
+        let keys = crate::equipment::keys(cell);
+        self.options
+            .iter()
+            .enumerate()
+            .filter(|(_, (key, _))| keys.contains(key))
+            .map(|(i, _)| self.option_column(i))
+            .collect()
     }
 
     /// Index of the market-conditions column, when the design has one (always the last).

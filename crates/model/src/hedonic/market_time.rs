@@ -49,6 +49,14 @@ pub fn months_before(as_of: NaiveDate, date: NaiveDate) -> f64 {
     (as_of - date).num_days() as f64 / DAYS_PER_MONTH
 }
 
+/// Months before `as_of` of each of `rows`' listing dates (0 for an undated one).
+#[must_use]
+pub fn months_of(market: &Market, rows: &[usize], as_of: NaiveDate) -> Vec<f64> {
+    rows.iter()
+        .map(|&r| market.listed_on[r].map_or(0.0, |d| months_before(as_of, d)))
+        .collect()
+}
+
 /// Whether the fit has the market-conditions term, and why not when it does not.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case", tag = "status")]
@@ -286,6 +294,9 @@ pub fn monthly_index(
             market.condition[r],
             &mut row,
         );
+        for c in design.option_columns(market.names.name(market.options[r])) {
+            row[c] = 1.0;
+        }
         x.fill(0.0);
         x[..time_column].copy_from_slice(&row[..time_column]);
         let key = month_key(market.listed_on[r].ok_or(IndexError::NoTimeTerm)?);

@@ -90,6 +90,10 @@ pub struct ValidHedonicParams {
     /// Whether each variant has its own age slope (its premium may fade with age).
     #[serde(default)]
     pub variant_slopes: bool,
+    /// Whether options stated on enough listings get their own terms (see
+    /// [`crate::equipment`]).
+    #[serde(default)]
+    pub equipment: bool,
 }
 
 fn market_time_default() -> bool {
@@ -108,7 +112,15 @@ impl HedonicParams {
             max_iterations: 50,
             market_time: true,
             variant_slopes: false,
+            equipment: true,
         })
+    }
+
+    /// Gives options stated on enough listings their own terms (`true`, the default).
+    #[must_use]
+    pub fn equipment(mut self, on: bool) -> Self {
+        self.0.equipment = on;
+        self
     }
 
     /// Gives each variant its own age slope (`true`) or one slope for all (`false`, the
@@ -299,6 +311,11 @@ impl ValidHedonicParams {
             self.age_form,
             as_of_year,
             self.variant_slopes,
+            if self.equipment {
+                crate::equipment::fitted_options(market, rows)
+            } else {
+                Vec::new()
+            },
             market_time.in_fit(),
         );
         let p = design.width();
@@ -311,18 +328,16 @@ impl ValidHedonicParams {
         }
         // ln(price) once per fit: the robust fit's passes reuse it.
         let ln_price: Vec<f64> = rows.iter().map(|&r| market.asking_price[r].ln()).collect();
-        let months: Option<Vec<f64>> = market_time.in_fit().then(|| {
-            rows.iter()
-                .map(|&r| {
-                    market.listed_on[r].map_or(0.0, |d| market_time::months_before(self.as_of, d))
-                })
-                .collect()
-        });
+        let months = market_time
+            .in_fit()
+            .then(|| market_time::months_of(market, rows, self.as_of));
+        let option_columns = option_columns_of(market, rows, &design);
         let fit_rows = FitRows {
             market,
             rows,
             ln_price: &ln_price,
             months: months.as_deref(),
+            option_columns: &option_columns,
             design: &design,
             as_of_year,
         };
@@ -389,6 +404,23 @@ impl ValidHedonicParams {
     }
 }
 
+/// The option columns of each distinct options cell of `rows` (a market has few).
+fn option_columns_of(
+    market: &Market,
+    rows: &[usize],
+    design: &Design,
+) -> std::collections::HashMap<NameId, Vec<usize>> {
+    if design.options.is_empty() {
+        return std::collections::HashMap::new();
+    }
+    rows.iter()
+        .map(|&r| market.options[r])
+        .collect::<std::collections::BTreeSet<_>>()
+        .into_iter()
+        .map(|cell| (cell, design.option_columns(market.names.name(cell))))
+        .collect()
+}
+
 fn fit_error(e: OlsError, design: &Design) -> FitError {
     match e {
         OlsError::Collinear { column } => FitError::Collinear {
@@ -423,6 +455,8 @@ pub(crate) struct FitRows<'a> {
     pub ln_price: &'a [f64],
     /// Months before the appraisal date of each row's listing, when the design has the term.
     pub months: Option<&'a [f64]>,
+    /// The option columns each distinct options cell sets (empty without option terms).
+    pub option_columns: &'a std::collections::HashMap<NameId, Vec<usize>>,
     pub design: &'a Design,
     pub as_of_year: i32,
 }
@@ -440,6 +474,11 @@ impl FitRows<'_> {
         );
         if let (Some(c), Some(months)) = (self.design.time_column(), self.months) {
             x[c] = months[i];
+        }
+        if let Some(columns) = self.option_columns.get(&self.market.options[r]) {
+            for &c in columns {
+                x[c] = 1.0;
+            }
         }
     }
 
@@ -700,8 +739,7 @@ impl HedonicModel {
     /// market-conditions term.
     #[must_use]
     pub fn log_price_of_row(&self, market: &Market, row: usize) -> f64 {
-        self.log_price(&self.attributes_of_row(market, row))
-            + self.market_conditions_effect(market.listed_on[row])
+        self.log_price(&self.attributes_of_row(market, row)) + self.row_shift(market, row)
     }
 
     /// Whether the market-conditions term is in the fit, and why not.
@@ -764,6 +802,34 @@ impl HedonicModel {
         (effect, se)
     }
 
+    /// The fitted ln-price effect and standard error of each option with a term: (name shown,
+    /// effect, standard error), by name.
+    #[must_use]
+    pub fn option_effects(&self) -> Vec<(String, f64, f64)> {
+        self.design
+            .options
+            .iter()
+            .enumerate()
+            .map(|(i, (_, name))| {
+                let c = self.design.option_column(i);
+                (name.clone(), self.coefficients[c], self.std_errors[c])
+            })
+            .collect()
+    }
+
+    /// The ln-price effect of market row `row`'s own date and options, which a prediction from
+    /// its attributes alone (of the appraisal date, without options) leaves out.
+    #[must_use]
+    pub fn row_shift(&self, market: &Market, row: usize) -> f64 {
+        let options: f64 = self
+            .design
+            .option_columns(market.names.name(market.options[row]))
+            .into_iter()
+            .map(|c| self.coefficients[c])
+            .sum();
+        self.market_conditions_effect(market.listed_on[row]) + options
+    }
+
     /// Residual sum of squares of ln price.
     #[must_use]
     pub fn rss(&self) -> f64 {
@@ -800,11 +866,25 @@ impl HedonicModel {
         self.factor.leverage_of(&self.spread_row(a))
     }
 
-    /// Market value in currency with both intervals at `level` (e.g. 0.8).
+    /// Market value in currency with both intervals at `level` (e.g. 0.8), without options.
     #[must_use]
     pub fn estimate(&self, a: &Attributes, level: f64) -> ValueEstimate {
-        let log_fitted = dot(&self.prediction_row(a), &self.coefficients);
-        let h = self.leverage(a);
+        self.estimate_equipped(a, "", level)
+    }
+
+    /// As [`Self::estimate`], for a vehicle with the options of `options` (a cell of names
+    /// separated by [`crate::equipment::SEPARATOR`]; those without a term count for nothing).
+    #[must_use]
+    pub fn estimate_equipped(&self, a: &Attributes, options: &str, level: f64) -> ValueEstimate {
+        let columns = self.design.option_columns(options);
+        let with_options = |mut x: Vec<f64>| {
+            for &c in &columns {
+                x[c] = 1.0;
+            }
+            x
+        };
+        let log_fitted = dot(&with_options(self.prediction_row(a)), &self.coefficients);
+        let h = self.factor.leverage_of(&with_options(self.spread_row(a)));
         let log_se_fit = self.coefficient_sd * h.sqrt();
         let log_se_prediction = (self.residual_sd.powi(2) + self.coefficient_sd.powi(2) * h).sqrt();
         let t = stats::t_two_sided(level, self.df_residual() as f64);

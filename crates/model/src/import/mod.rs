@@ -286,6 +286,7 @@ fn import_planned(
         report.reject(line, reason);
     }
     report.rows_used = market.len();
+    report.options_found = crate::equipment::count(&market, None);
     if market.is_empty() {
         return Err(ImportError::NoUsableRows {
             file,

@@ -142,6 +142,9 @@ pub struct ImportReport {
     /// Makes, models and variants written in several spellings (case, spaces) and read as one.
     #[serde(default)]
     pub merged_spellings: Vec<crate::market::MergedSpelling>,
+    /// The options stated in the file, commonest first, with the spellings read as one.
+    #[serde(default)]
+    pub options_found: Vec<crate::equipment::OptionCount>,
 }
 
 impl ImportReport {
