@@ -68,17 +68,51 @@ fn main() {
         t.elapsed(),
         cleaning.rows.len()
     );
-    let t = Instant::now();
     let included = cleaning.included_rows();
+    let t = Instant::now();
+    let choice = model::hedonic::choose_age_form(&market, &included, as_of, settings.market_time);
+    println!(
+        "  age form      {:>9.1?}  ({})",
+        t.elapsed(),
+        choice.chosen
+    );
+    let t = Instant::now();
+    let fade = model::hedonic::premium_fade::test_premium_fade(
+        &market,
+        &included,
+        as_of,
+        choice.chosen,
+        settings.market_time,
+    );
+    println!(
+        "  premium test  {:>9.1?}  (kept: {})",
+        t.elapsed(),
+        fade.as_ref().is_ok_and(model::hedonic::PremiumFadeTest::supported)
+    );
+    let t = Instant::now();
+    // The fit as `fit_market` makes it (its own age form, slopes, time and option terms).
+    let used = fit.model.params();
     let params = HedonicParams::new(as_of)
-        .age_form(settings.age_form)
+        .age_form(used.age_form)
+        .robust(used.robust)
+        .market_time(used.market_time)
+        .variant_slopes(used.variant_slopes)
+        .equipment(used.equipment)
         .check()
         .expect("the settings are valid");
     let model = params.fit(&market, &included).expect("the fit runs");
     println!(
-        "  fit alone     {:>9.1?}  ({} rows)",
+        "  fit alone     {:>9.1?}  ({} rows, {} terms)",
         t.elapsed(),
-        model.rows()
+        model.rows(),
+        model.coefficients().len()
+    );
+    let t = Instant::now();
+    let index = model::hedonic::market_time::monthly_index(&model, &market, &included, 0.8);
+    println!(
+        "  month index   {:>9.1?}  ({})",
+        t.elapsed(),
+        index.map_or_else(|e| e.to_string(), |i| format!("{} periods", i.months.len()))
     );
     let t = Instant::now();
     let index = CandidateIndex::new(&market, &cleaning.rows, &cleaning);

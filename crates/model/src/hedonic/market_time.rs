@@ -250,16 +250,26 @@ fn month_key(d: NaiveDate) -> Month {
     (d.year(), d.month())
 }
 
-/// The monthly index of the listings `rows` the model was fitted on, at band `level`: the same
-/// attributes as the model, with one indicator per calendar month in place of the linear term
-/// (least squares; the latest month is the base).
+/// Most listings the monthly index is fitted on: a larger market is indexed on an evenly spaced
+/// sample of this many (the same bound as the age form's choice), so the index costs a bounded
+/// fit at a million listings.
+pub const INDEX_SAMPLE: usize = super::CHOICE_SAMPLE;
+
+/// The monthly index of the listings `rows` the model was fitted on (an evenly spaced sample of
+/// at most [`INDEX_SAMPLE`]), at band `level`: the same attributes as the model, with one
+/// indicator per calendar month in place of the linear term (least squares; the latest month
+/// is the base).
 pub fn monthly_index(
     model: &HedonicModel,
     market: &Market,
     rows: &[usize],
     level: f64,
 ) -> Result<MonthlyIndex, IndexError> {
+    let step = rows.len().div_ceil(INDEX_SAMPLE).max(1);
+    let sample: Vec<usize> = rows.iter().copied().step_by(step).collect();
+    let rows = &sample[..];
     let design: &Design = model.design();
+    let option_columns = super::option_columns_of(market, rows, design);
     let Some(time_column) = design.time_column() else {
         return Err(IndexError::NoTimeTerm);
     };
@@ -294,7 +304,7 @@ pub fn monthly_index(
             market.condition[r],
             &mut row,
         );
-        for c in design.option_columns(market.names.name(market.options[r])) {
+        for &c in option_columns.get(&market.options[r]).into_iter().flatten() {
             row[c] = 1.0;
         }
         x.fill(0.0);

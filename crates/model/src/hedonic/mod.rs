@@ -405,7 +405,7 @@ impl ValidHedonicParams {
 }
 
 /// The option columns of each distinct options cell of `rows` (a market has few).
-fn option_columns_of(
+pub(crate) fn option_columns_of(
     market: &Market,
     rows: &[usize],
     design: &Design,
