@@ -205,3 +205,44 @@ fn an_appraisal_with_equipment_lines_is_saved_and_reproduces() {
     edited.fit.rates.option_effects[0].1 += 0.05;
     assert!(!model::session::reproduce(&edited).unwrap().reproduces());
 }
+
+#[test]
+fn equipment_lines_the_market_cannot_support_are_warned_of() {
+    // Invented data: on 300 demo listings (143 of the model) no option's effect can be told
+    // from none, and the lines come to more than 1 % of some comparables' prices.
+    let market = demo_market(300, 1);
+    let segment = find_segment(&market, "Quellmark", "Tessel").unwrap();
+    let settings = FitSettings {
+        as_of: Some(model::demo::demo_as_of()),
+        ..FitSettings::default()
+    };
+    let fit = fit_market(&market, segment, &settings, &Overrides::new()).unwrap();
+    let mut subject = tessel(2022, 41_000.0);
+    subject.options = Some("sunroof".into());
+    let a = appraise(&market, &fit, &AppraisalRequest::new(subject.clone())).unwrap();
+    let warning = a
+        .warnings
+        .iter()
+        .find(|w| w.code == model::warnings::WarningCode::EquipmentUncertain)
+        .expect("the warning");
+    assert!(
+        warning.message.contains("--no-equipment"),
+        "{}",
+        warning.message
+    );
+    assert!(a.comparables.iter().any(|c| {
+        c.adjustments
+            .iter()
+            .any(|l| l.basis.contains(model::adjustment::OPTION_UNCERTAIN))
+    }));
+    // On 20,000 listings the options the subject and comparables differ in are priced well
+    // enough (the one without an effect, cold weather, moves prices by about 0.1 %).
+    let market = demo_market(20_000, 1);
+    let (_, fit) = shared_tessel_fit(20_000, 1, AgeForm::Auto);
+    let a = appraise(&market, fit, &AppraisalRequest::new(subject)).unwrap();
+    assert!(
+        !a.warnings
+            .iter()
+            .any(|w| w.code == model::warnings::WarningCode::EquipmentUncertain)
+    );
+}

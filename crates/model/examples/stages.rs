@@ -71,11 +71,7 @@ fn main() {
     let included = cleaning.included_rows();
     let t = Instant::now();
     let choice = model::hedonic::choose_age_form(&market, &included, as_of, settings.market_time);
-    println!(
-        "  age form      {:>9.1?}  ({})",
-        t.elapsed(),
-        choice.chosen
-    );
+    println!("  age form      {:>9.1?}  ({})", t.elapsed(), choice.chosen);
     let t = Instant::now();
     let fade = model::hedonic::premium_fade::test_premium_fade(
         &market,
@@ -87,7 +83,8 @@ fn main() {
     println!(
         "  premium test  {:>9.1?}  (kept: {})",
         t.elapsed(),
-        fade.as_ref().is_ok_and(model::hedonic::PremiumFadeTest::supported)
+        fade.as_ref()
+            .is_ok_and(model::hedonic::PremiumFadeTest::supported)
     );
     let t = Instant::now();
     // The fit as `fit_market` makes it (its own age form, slopes, time and option terms).

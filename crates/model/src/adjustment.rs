@@ -193,6 +193,10 @@ pub struct GridInputs<'a> {
     pub equipment: &'a [OptionDifference],
 }
 
+/// Said in an equipment line's basis when its option's fitted effect cannot be told from none
+/// (|estimate / standard error| below 1.96, the normal 5 % two-sided point).
+pub const OPTION_UNCERTAIN: &str = "not distinguishable from none";
+
 /// A fitted option the subject and a comparable differ in.
 #[derive(Debug, Clone, PartialEq)]
 pub struct OptionDifference {
@@ -325,10 +329,15 @@ pub fn grid_lines(g: &GridInputs<'_>) -> Vec<AdjustmentLine> {
             AdjustmentKind::Equipment,
             sign * d.effect,
             format!(
-                "fitted option {}: {:+.1} % (standard error {:.1} points); {}",
+                "fitted option {}: {:+.1} % (standard error {:.1} points{}); {}",
                 d.name,
                 100.0 * d.effect.exp_m1(),
                 100.0 * d.std_error,
+                if (d.effect / d.std_error).abs() < 1.96 {
+                    format!("; {OPTION_UNCERTAIN}")
+                } else {
+                    String::new()
+                },
                 if d.subject_has {
                     "the subject has it, the comparable does not"
                 } else {

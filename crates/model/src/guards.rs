@@ -19,6 +19,11 @@ pub const QUICK_BACKTEST_LISTINGS: usize = 2_000;
 /// rule of thumb of sales-comparison practice (common practice, no source).
 pub const LARGE_GROSS_ADJUSTMENT_PCT: f64 = 25.0;
 
+/// Uncertain equipment lines adding up to at least this percent of a comparable's price are
+/// warned of (smaller ones only carry their caveat in the basis; our threshold, common
+/// practice, no source).
+pub const UNCERTAIN_EQUIPMENT_PCT: f64 = 1.0;
+
 /// What the fitted market cannot vouch for, whatever the subject.
 #[must_use]
 pub fn fit_warnings(fit: &MarketFit) -> Vec<Warning> {
@@ -189,8 +194,45 @@ pub fn appraisal_warnings(f: &AppraisalFacts<'_>) -> Vec<Warning> {
         );
     }
     out.extend(disagreement_warning(f));
+    out.extend(uncertain_equipment_warning(f));
     out.extend(vin_warnings(f));
     out
+}
+
+/// Equipment lines at fitted effects the market cannot tell from none, where they add up to a
+/// noticeable part of a comparable's price.
+fn uncertain_equipment_warning(f: &AppraisalFacts<'_>) -> Option<Warning> {
+    let affected: Vec<String> = f
+        .comparables
+        .iter()
+        .filter_map(|c| {
+            let sum: f64 = c
+                .adjustments
+                .iter()
+                .filter(|l| {
+                    l.kind == crate::adjustment::AdjustmentKind::Equipment
+                        && l.basis.contains(crate::adjustment::OPTION_UNCERTAIN)
+                })
+                .map(|l| l.amount.abs())
+                .sum();
+            let pct = 100.0 * sum / c.listing.asking_price;
+            (pct >= UNCERTAIN_EQUIPMENT_PCT)
+                .then(|| format!("line {} ({pct:.1} %)", c.listing.line))
+        })
+        .collect();
+    if affected.is_empty() {
+        return None;
+    }
+    Some(
+        Warning::new(
+            WarningCode::EquipmentUncertain,
+            format!(
+                "Equipment lines for options whose fitted effect cannot be told from none come to {UNCERTAIN_EQUIPMENT_PCT:.0} % or more of a comparable's price ({}): the market does not show it pays for those options. Read those lines as within the noise; enter your own line with its evidence, or leave the options out of the fit (--no-equipment, or Ground rules).",
+                affected.join(", ")
+            ),
+        )
+        .with("comparables", affected.len() as f64),
+    )
 }
 
 /// A subject or comparable VIN that fails its check digit or names another model year: the

@@ -50,11 +50,14 @@ pub enum WarningCode {
     ComparableVinNotValid,
     /// The market-conditions term cannot be told from no drift at all.
     MarketTrendUncertain,
+    /// Equipment lines of options whose fitted effect cannot be told from none add up to a
+    /// noticeable part of a comparable's price.
+    EquipmentUncertain,
 }
 
 impl WarningCode {
     /// Every code, in the order the README lists them.
-    pub const ALL: [WarningCode; 18] = [
+    pub const ALL: [WarningCode; 19] = [
         Self::SubjectYearOutsideMarket,
         Self::SubjectMileageOutsideMarket,
         Self::AgeCurveNotFalling,
@@ -71,6 +74,7 @@ impl WarningCode {
         Self::SubjectVinNotValid,
         Self::ComparableVinNotValid,
         Self::MarketTrendUncertain,
+        Self::EquipmentUncertain,
         Self::ForecastBeyondMarket,
         Self::BacktestErrorExceedsBand,
     ];
@@ -97,6 +101,7 @@ impl WarningCode {
             Self::SubjectVinNotValid => "subject_vin_not_valid",
             Self::ComparableVinNotValid => "comparable_vin_not_valid",
             Self::MarketTrendUncertain => "market_trend_uncertain",
+            Self::EquipmentUncertain => "equipment_uncertain",
         }
     }
 }
