@@ -240,3 +240,44 @@ pub fn test_session(capture: &model::session::Capture<'_>) -> model::session::Se
     )
     .expect("session")
 }
+
+/// The 4,000-listing demo market (seed 1), its Quellmark Tessel fitted with `settings` as of
+/// the demo's date, `subject` appraised on it with `request`'s rules, and the appraisal saved
+/// as a value session, written to text and read back; checks that it reproduces.
+///
+/// # Panics
+/// If any step fails or the session read back does not reproduce.
+#[must_use]
+#[allow(clippy::expect_used, clippy::needless_pass_by_value)]
+pub fn saved_and_read_back(
+    settings: model::appraisal::FitSettings,
+    request: model::appraisal::AppraisalRequest,
+) -> model::session::Session {
+    let market = demo_market(4_000, 1);
+    let settings = model::appraisal::FitSettings {
+        as_of: Some(model::demo::demo_as_of()),
+        ..settings
+    };
+    let segment = model::appraisal::find_segment(&market, "Quellmark", "Tessel").expect("segment");
+    let overrides = model::clean::Overrides::new();
+    let fit =
+        model::appraisal::fit_market(&market, segment, &settings, &overrides).expect("the fit");
+    let appraisal = model::appraisal::appraise(&market, &fit, &request).expect("the appraisal");
+    let session = test_session(&model::session::Capture {
+        market: &market,
+        market_path: None,
+        fit: &fit,
+        settings: &settings,
+        overrides: &overrides,
+        request: &request,
+        appraisal: &appraisal,
+        purpose: &model::session::Purpose::Value,
+        case: &model::session::CaseDetails::default(),
+        keep_segment: false,
+    });
+    let text = model::session::session_to_ron(&session).expect("written");
+    let again = model::session::parse_session(&text, "again.ron").expect("read back");
+    let replay = model::session::reproduce(&again).expect("replayed");
+    assert!(replay.reproduces(), "{:?}", replay.differences);
+    again
+}

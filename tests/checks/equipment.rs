@@ -167,40 +167,16 @@ fn the_grid_has_an_equipment_line_for_each_option_the_subject_and_a_comparable_d
 
 #[test]
 fn an_appraisal_with_equipment_lines_is_saved_and_reproduces() {
-    let market = demo_market(4_000, 1);
-    let settings = FitSettings {
-        as_of: Some(model::demo::demo_as_of()),
-        ..FitSettings::default()
-    };
-    let segment = find_segment(&market, "Quellmark", "Tessel").unwrap();
-    let fit = fit_market(&market, segment, &settings, &Overrides::new()).unwrap();
     let mut subject = tessel(2022, 41_000.0);
     subject.options = Some("tow package".into());
-    let request = AppraisalRequest::new(subject);
-    let appraisal = appraise(&market, &fit, &request).unwrap();
-    assert!(appraisal.comparables.iter().any(|c| {
+    let again =
+        acceptance::saved_and_read_back(FitSettings::default(), AppraisalRequest::new(subject));
+    assert!(!again.fit.rates.option_effects.is_empty());
+    assert!(again.appraisal.comparables.iter().any(|c| {
         c.adjustments
             .iter()
             .any(|l| l.kind == AdjustmentKind::Equipment)
     }));
-    let purpose = model::session::Purpose::Value;
-    let session = acceptance::test_session(&model::session::Capture {
-        market: &market,
-        market_path: None,
-        fit: &fit,
-        settings: &settings,
-        overrides: &Overrides::new(),
-        request: &request,
-        appraisal: &appraisal,
-        purpose: &purpose,
-        case: &model::session::CaseDetails::default(),
-        keep_segment: false,
-    });
-    assert!(!session.fit.rates.option_effects.is_empty());
-    let text = model::session::session_to_ron(&session).unwrap();
-    let again = model::session::parse_session(&text, "again.ron").unwrap();
-    let r = model::session::reproduce(&again).unwrap();
-    assert!(r.reproduces(), "{:?}", r.differences);
     let mut edited = again.clone();
     edited.fit.rates.option_effects[0].1 += 0.05;
     assert!(!model::session::reproduce(&edited).unwrap().reproduces());

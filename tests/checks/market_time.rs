@@ -9,8 +9,7 @@ use acceptance::{demo_market, shared_tessel_fit, tessel};
 use chrono::{Datelike, NaiveDate};
 use linfa::ParamGuard;
 use model::adjustment::AdjustmentKind;
-use model::appraisal::{AppraisalRequest, FitSettings, appraise, find_segment, fit_market};
-use model::clean::Overrides;
+use model::appraisal::{AppraisalRequest, FitSettings, appraise};
 use model::hedonic::market_time::{MarketTimeTerm, monthly_index, months_before};
 use model::hedonic::{AgeForm, HedonicParams};
 use model::import::{ImportOptions, import_csv_bytes};
@@ -246,36 +245,17 @@ fn the_grid_brings_each_comparable_to_the_appraisal_date() {
 
 #[test]
 fn an_appraisal_with_market_conditions_is_saved_and_reproduces() {
-    let market = demo_market(4_000, 1);
-    let settings = FitSettings {
-        as_of: Some(model::demo::demo_as_of()),
-        ..FitSettings::default()
-    };
-    let segment = find_segment(&market, "Quellmark", "Tessel").unwrap();
-    let fit = fit_market(&market, segment, &settings, &Overrides::new()).unwrap();
-    assert!(fit.model.market_time().in_fit());
-    let request = AppraisalRequest::new(tessel(2022, 41_000.0));
-    let appraisal = appraise(&market, &fit, &request).unwrap();
-    let purpose = model::session::Purpose::Value;
-    let session = acceptance::test_session(&model::session::Capture {
-        market: &market,
-        market_path: None,
-        fit: &fit,
-        settings: &settings,
-        overrides: &Overrides::new(),
-        request: &request,
-        appraisal: &appraisal,
-        purpose: &purpose,
-        case: &model::session::CaseDetails::default(),
-        keep_segment: false,
-    });
-    assert!(session.fit.rates.market_drift.is_some());
-    assert!(session.fit.market_time.as_ref().unwrap().in_fit());
-    let text = model::session::session_to_ron(&session).unwrap();
-    assert!(text.contains("market_conditions"));
-    let again = model::session::parse_session(&text, "again.ron").unwrap();
-    let r = model::session::reproduce(&again).unwrap();
-    assert!(r.reproduces(), "{:?}", r.differences);
+    let again = acceptance::saved_and_read_back(
+        FitSettings::default(),
+        AppraisalRequest::new(tessel(2022, 41_000.0)),
+    );
+    assert!(again.fit.rates.market_drift.is_some());
+    assert!(again.fit.market_time.as_ref().unwrap().in_fit());
+    assert!(again.appraisal.comparables.iter().all(|c| {
+        c.adjustments
+            .iter()
+            .any(|l| l.kind == AdjustmentKind::MarketConditions)
+    }));
     // A hand edit of the saved drift is found by the replay.
     let mut edited = again.clone();
     if let Some(d) = edited.fit.rates.market_drift.as_mut() {

@@ -215,38 +215,17 @@ fn with_variant_slopes_the_variant_line_compares_the_variants_at_the_subjects_ag
 
 #[test]
 fn an_appraisal_with_variant_slopes_is_saved_and_reproduces() {
-    let market = demo_market(4_000, 1);
-    let settings = FitSettings {
-        as_of: Some(model::demo::demo_as_of()),
-        variant_slopes: VariantSlopes::Always,
-        ..FitSettings::default()
-    };
-    let segment = find_segment(&market, "Quellmark", "Tessel").unwrap();
-    let fit = fit_market(&market, segment, &settings, &Overrides::new()).unwrap();
     let mut subject = tessel(2020, 60_000.0);
     subject.variant = Some("Tolvane".into());
-    let mut request = AppraisalRequest::new(subject);
-    request.rules.same_variant_only = false;
-    let appraisal = appraise(&market, &fit, &request).unwrap();
-    let purpose = model::session::Purpose::Value;
-    let session = acceptance::test_session(&model::session::Capture {
-        market: &market,
-        market_path: None,
-        fit: &fit,
-        settings: &settings,
-        overrides: &Overrides::new(),
-        request: &request,
-        appraisal: &appraisal,
-        purpose: &purpose,
-        case: &model::session::CaseDetails::default(),
-        keep_segment: false,
-    });
-    assert!(!session.fit.rates.variant_age_slopes.is_empty());
-    assert!(!session.fit.premiums.is_empty());
-    let text = model::session::session_to_ron(&session).unwrap();
-    let again = model::session::parse_session(&text, "again.ron").unwrap();
-    let r = model::session::reproduce(&again).unwrap();
-    assert!(r.reproduces(), "{:?}", r.differences);
+    let again = acceptance::saved_and_read_back(
+        FitSettings {
+            variant_slopes: VariantSlopes::Always,
+            ..FitSettings::default()
+        },
+        AppraisalRequest::new(subject),
+    );
+    assert!(!again.fit.rates.variant_age_slopes.is_empty());
+    assert!(!again.fit.premiums.is_empty());
     // A hand edit of a saved slope is found.
     let mut edited = again.clone();
     for v in edited.fit.rates.variant_age_slopes.values_mut() {
