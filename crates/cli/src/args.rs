@@ -83,6 +83,9 @@ pub enum Command {
         #[arg(long, default_value_t = 15)]
         top: usize,
     },
+    /// Appraise many subjects against one market: MARKET positional as for `appraise`, the
+    /// subjects from --subjects (the market's column names plus `id`), one value row each.
+    Batch(Box<BatchArgs>),
     /// Print a saved session's report as PDF and/or self-contained HTML.
     Report {
         /// The session file.
@@ -156,6 +159,25 @@ pub enum OdometerArg {
     Miles,
     /// Kilometers (converted to miles).
     Km,
+}
+
+/// `batch`: the market, the comparable rules and level of `appraise`, and the subjects.
+#[derive(Debug, Clone, Args)]
+pub struct BatchArgs {
+    /// Market, fit and comparable options as for `appraise` (its --subject, worksheet, case and
+    /// session options are refused: each subject comes from --subjects).
+    #[command(flatten)]
+    pub appraise: AppraiseArgs,
+    /// The subjects, one per row: id, model year, make, model, miles (or km), optionally
+    /// variant, condition, VIN and options, with the market's header spellings.
+    #[arg(long, value_name = "SUBJECTS.csv")]
+    pub subjects: PathBuf,
+    /// Write the values here as CSV (standard output when omitted; --json prints JSON).
+    #[arg(long, value_name = "VALUES.csv")]
+    pub out: Option<PathBuf>,
+    /// Also write one session file per appraised subject into this folder (<id>.ron).
+    #[arg(long, value_name = "DIR")]
+    pub sessions: Option<PathBuf>,
 }
 
 /// Options shared by every command that reads and fits a market.

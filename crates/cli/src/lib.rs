@@ -2,6 +2,7 @@
 //! thin `comptrail` binary, so the command-line tests reach the same parsing and loading code.
 
 pub mod args;
+mod batch;
 pub mod load;
 mod output;
 mod render;
@@ -120,6 +121,7 @@ fn run(cli: Cli) -> Result<ExitCode> {
     match command {
         Command::DemoMarket { rows, seed, out } => demo_market(rows, seed, &out),
         Command::Fit(args) => fit(&args),
+        Command::Batch(args) => batch::run(&args),
         Command::Appraise(mut args) => {
             date_of_loss_is_the_appraisal_date(&mut args)?;
             if let Some(path) = &args.session {

@@ -88,6 +88,14 @@ pub struct SaveInputs<'a> {
 
 /// Saves the appraisal as a session file.
 pub fn save(args: &AppraiseArgs, out: &Path, s: &SaveInputs<'_>) -> Result<Session> {
+    let session = capture(args, s)?;
+    write_session(out, &session)?;
+    eprintln!("saved the session to {}", out.display());
+    Ok(session)
+}
+
+/// The session of an appraisal made with `args`, not yet written.
+pub fn capture(args: &AppraiseArgs, s: &SaveInputs<'_>) -> Result<Session> {
     let settings = crate::load::fit_settings(&args.market)?;
     let overrides = crate::load::overrides(&args.market);
     let at = now();
@@ -111,8 +119,6 @@ pub fn save(args: &AppraiseArgs, out: &Path, s: &SaveInputs<'_>) -> Result<Sessi
             notes: args.notes.clone(),
         },
     )?;
-    write_session(out, &session)?;
-    eprintln!("saved the session to {}", out.display());
     Ok(session)
 }
 

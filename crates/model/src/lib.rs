@@ -9,6 +9,7 @@
 pub mod adjustment;
 pub mod appraisal;
 pub mod backtest;
+pub mod batch;
 pub mod case;
 pub mod cautions;
 pub mod clean;

@@ -337,3 +337,98 @@ fn options_are_counted_priced_and_lined_and_can_be_left_out() {
     assert!(shown.contains("options stated: "), "{shown}");
     assert!(shown.contains("equipment: fitted option"), "{shown}");
 }
+
+#[test]
+fn a_batch_values_each_subject_as_appraise_does_and_names_the_rows_it_cannot() {
+    let dir = std::env::temp_dir().join(format!("comptrail-cli-batch-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let subjects = dir.join("subjects.csv");
+    // The market's header spellings (Year, Trim, Odometer), an options cell with its separator,
+    // and three rows that cannot be valued.
+    std::fs::write(
+        &subjects,
+        "id,Year,Make,Model,Trim,Odometer,Condition,Options\n\
+         T-1,2022,Quellmark,Tessel,Ambrel,41000,used,sunroof;tow package\n\
+         T-2,2019,quellmark,TESSEL,Tolvane,70500,certified,\n\
+         T-3,19x5,Quellmark,Tessel,Ambrel,40000,used,\n\
+         T-4,2021,Nobody,Nothing,,40000,used,\n\
+         ,2021,Quellmark,Tessel,Ambrel,40000,used,\n",
+    )
+    .unwrap();
+    let market = repo("assets/demo-market.csv");
+    let out = dir.join("values.csv");
+    let sessions = dir.join("sessions");
+    succeeded(&[
+        "batch",
+        &market,
+        "--subjects",
+        subjects.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "--sessions",
+        sessions.to_str().unwrap(),
+    ]);
+    let values = std::fs::read_to_string(&out).unwrap();
+    let lines: Vec<&str> = values.lines().collect();
+    assert_eq!(lines[0], model::batch::CSV_HEADER);
+    assert_eq!(lines.len(), 6, "{values}");
+    // The first subject's value is the one `appraise` gives it, to the cent.
+    let one = json(&[
+        "appraise",
+        &market,
+        "--subject",
+        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used,options=sunroof;tow package",
+        "--json",
+    ]);
+    let value = one["indicated_value"].as_f64().unwrap();
+    assert!(
+        lines[1].contains(&format!(",{value:.2},")),
+        "{} vs {value}",
+        lines[1]
+    );
+    assert!(
+        lines[2].starts_with("T-2,3,\"2019 quellmark TESSEL Tolvane"),
+        "{}",
+        lines[2]
+    );
+    assert!(lines[3].contains("is not a number"), "{}", lines[3]);
+    assert!(
+        lines[4].contains("the market has no Nobody Nothing"),
+        "{}",
+        lines[4]
+    );
+    assert!(lines[5].ends_with("no id"), "{}", lines[5]);
+    // One session per valued subject, each reproducing.
+    for id in ["T-1", "T-2"] {
+        let session = model::session::read_session(&sessions.join(format!("{id}.ron"))).unwrap();
+        assert!(model::session::reproduce(&session).unwrap().reproduces());
+    }
+    assert_eq!(std::fs::read_dir(&sessions).unwrap().count(), 2);
+    // JSON, and the options of one appraisal refused.
+    let doc = json(&[
+        "batch",
+        &market,
+        "--subjects",
+        subjects.to_str().unwrap(),
+        "--json",
+    ]);
+    assert_eq!(doc["subjects"], 5);
+    assert_eq!(doc["valued"], 2);
+    assert!(
+        doc["values"][3]["error"]
+            .as_str()
+            .unwrap()
+            .contains("Nobody")
+    );
+    let refused = comptrail(&[
+        "batch",
+        &market,
+        "--subjects",
+        subjects.to_str().unwrap(),
+        "--claim-number",
+        "CL-1",
+    ]);
+    assert_eq!(refused.status.code(), Some(1));
+    std::fs::remove_dir_all(&dir).ok();
+}

@@ -6,7 +6,7 @@
 //! line, column and value.
 
 mod batches;
-mod headers;
+pub mod headers;
 mod report;
 mod rows;
 mod values;
