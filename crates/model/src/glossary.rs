@@ -2,7 +2,7 @@
 //! anyone reading a report without the code.
 
 /// Each term with what it means here.
-pub const GLOSSARY: [(&str, &str); 16] = [
+pub const GLOSSARY: [(&str, &str); 19] = [
     (
         "Indicated value",
         "The value the comparables indicate: the weighted mean of their adjusted prices.",
@@ -21,7 +21,7 @@ pub const GLOSSARY: [(&str, &str); 16] = [
     ),
     (
         "Adjustment",
-        "A change to a comparable's price for one way it differs from the subject (miles, model year, variant, sale class, or a line of yours with its basis). A comparable better than the subject is adjusted down.",
+        "A change to a comparable's price for one way it differs from the subject (miles, model year, variant, sale class, market conditions, equipment, or a line of yours with its basis). A comparable better than the subject is adjusted down.",
     ),
     (
         "Net adjustment",
@@ -62,6 +62,18 @@ pub const GLOSSARY: [(&str, &str); 16] = [
     (
         "Days' supply",
         "Listings of the model on the market divided by its average daily sales: how long the market would take to sell what is listed.",
+    ),
+    (
+        "Market conditions",
+        "The market's change between a comparable's listing date and the appraisal date, from the fitted drift of prices over the months the listings span: a comparable listed in a higher market is adjusted down.",
+    ),
+    (
+        "Equipment line",
+        "An adjustment for an option the subject and a comparable differ in, at the option's price fitted from the market (options stated on at least 20 listings).",
+    ),
+    (
+        "Premium fade",
+        "Whether a variant's premium over the base shrinks (or grows) with age; kept in the fit only when the F test and the data support it.",
     ),
     (
         "VIN check",
