@@ -44,15 +44,17 @@ pub struct PriceGap {
 /// Gaps of every listing in the fitted segment at `level`, most negative first.
 #[must_use]
 pub fn price_gaps(market: &Market, fit: &MarketFit, level: f64) -> Vec<PriceGap> {
+    let shifts = fit.model.row_shifts(market, &fit.cleaning.rows);
     let mut gaps: Vec<PriceGap> = fit
         .cleaning
         .rows
         .iter()
-        .map(|&row| {
+        .zip(shifts)
+        .map(|(&row, shift)| {
             let attributes = fit.model.attributes_of_row(market, row);
             let estimate = fit.model.estimate(&attributes, level);
-            // The market on the listing's own date (the fitted drift carries today's back).
-            let shift = fit.model.row_shift(market, row).exp();
+            // The market on the listing's own date and with its own options.
+            let shift = shift.exp();
             let expected = shift * estimate.median;
             let band = estimate.prediction_interval;
             let price = market.asking_price[row];

@@ -830,6 +830,23 @@ impl HedonicModel {
         self.market_conditions_effect(market.listed_on[row]) + options
     }
 
+    /// [`Self::row_shift`] of each of `rows`, each options cell's columns worked out once.
+    #[must_use]
+    pub fn row_shifts(&self, market: &Market, rows: &[usize]) -> Vec<f64> {
+        let columns = option_columns_of(market, rows, &self.design);
+        rows.iter()
+            .map(|&r| {
+                let options: f64 = columns
+                    .get(&market.options[r])
+                    .into_iter()
+                    .flatten()
+                    .map(|&c| self.coefficients[c])
+                    .sum();
+                self.market_conditions_effect(market.listed_on[r]) + options
+            })
+            .collect()
+    }
+
     /// Residual sum of squares of ln price.
     #[must_use]
     pub fn rss(&self) -> f64 {
