@@ -75,7 +75,15 @@ fn a_fade_put_into_a_constructed_market_is_recovered_exactly_and_kept() {
     // The premium at age 8 is 0.25 − 0.12 = 0.13 of ln price.
     let (at8, se) = model.premium(top, 8.0);
     assert!((at8 - 0.13).abs() < 1e-6 && se < 1e-4, "{at8} {se}");
-    let test = test_premium_fade(&market, &rows(&market), as_of(), AgeForm::Linear, true).unwrap();
+    let test = test_premium_fade(
+        &market,
+        &rows(&market),
+        as_of(),
+        AgeForm::Linear,
+        true,
+        true,
+    )
+    .unwrap();
     assert!(test.supported(), "{test:?}");
     assert_eq!(test.df1, 2);
     let words = summary(&model, &market, Some(&Ok(test)), 9);

@@ -19,6 +19,8 @@ use model::hedonic::HedonicParams;
 use model::import::{ImportOptions, import_csv_bytes};
 use model::subject::Subject;
 
+// One stage after another, each timed and printed: a script, read top to bottom.
+#[allow(clippy::too_many_lines)]
 fn main() {
     let args: Vec<String> = std::env::args().skip(1).collect();
     let path = args
@@ -70,7 +72,13 @@ fn main() {
     );
     let included = cleaning.included_rows();
     let t = Instant::now();
-    let choice = model::hedonic::choose_age_form(&market, &included, as_of, settings.market_time);
+    let choice = model::hedonic::choose_age_form(
+        &market,
+        &included,
+        as_of,
+        settings.market_time,
+        settings.equipment,
+    );
     println!("  age form      {:>9.1?}  ({})", t.elapsed(), choice.chosen);
     let t = Instant::now();
     let fade = model::hedonic::premium_fade::test_premium_fade(
@@ -79,6 +87,7 @@ fn main() {
         as_of,
         choice.chosen,
         settings.market_time,
+        settings.equipment,
     );
     println!(
         "  premium test  {:>9.1?}  (kept: {})",

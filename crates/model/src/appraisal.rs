@@ -232,8 +232,15 @@ pub fn fit_market(
         overrides,
     );
     let included_rows = cleaning.included_rows();
-    let age_form_choice = (settings.age_form == AgeForm::Auto)
-        .then(|| choose_age_form(market, &included_rows, as_of, settings.market_time));
+    let age_form_choice = (settings.age_form == AgeForm::Auto).then(|| {
+        choose_age_form(
+            market,
+            &included_rows,
+            as_of,
+            settings.market_time,
+            settings.equipment,
+        )
+    });
     let age_form = age_form_choice
         .as_ref()
         .map_or(settings.age_form, |c| c.chosen);
@@ -244,6 +251,7 @@ pub fn fit_market(
             as_of,
             age_form,
             settings.market_time,
+            settings.equipment,
         )
     });
     let variant_slopes = match settings.variant_slopes {

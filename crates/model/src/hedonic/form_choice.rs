@@ -71,12 +71,13 @@ pub fn choose_age_form(
     rows: &[usize],
     as_of: NaiveDate,
     market_time: bool,
+    equipment: bool,
 ) -> AgeFormChoice {
     let step = rows.len().div_ceil(CHOICE_SAMPLE).max(1);
     let sample: Vec<usize> = rows.iter().copied().step_by(step).collect();
     let candidates: Vec<AgeFormCandidate> = AgeForm::FITTED
         .iter()
-        .map(|&form| judge(market, &sample, as_of, form, market_time))
+        .map(|&form| judge(market, &sample, as_of, form, (market_time, equipment)))
         .collect();
     let best = candidates
         .iter()
@@ -148,11 +149,12 @@ fn judge(
     rows: &[usize],
     as_of: NaiveDate,
     form: AgeForm,
-    market_time: bool,
+    (market_time, equipment): (bool, bool),
 ) -> AgeFormCandidate {
     let fitted = HedonicParams::new(as_of)
         .age_form(form)
         .market_time(market_time)
+        .equipment(equipment)
         .check()
         .and_then(|p| p.fit(market, rows));
     match fitted {

@@ -128,6 +128,7 @@ pub fn test_premium_fade(
     as_of: NaiveDate,
     age_form: AgeForm,
     market_time: bool,
+    equipment: bool,
 ) -> Result<PremiumFadeTest, String> {
     let step = rows.len().div_ceil(super::CHOICE_SAMPLE).max(1);
     let sample: Vec<usize> = rows.iter().copied().step_by(step).collect();
@@ -135,6 +136,7 @@ pub fn test_premium_fade(
         HedonicParams::new(as_of)
             .age_form(age_form)
             .market_time(market_time)
+            .equipment(equipment)
             .variant_slopes(slopes)
             .check()
             .and_then(|p| p.fit(market, &sample))
