@@ -114,6 +114,40 @@ impl Subject {
         })
     }
 
+    /// A typical vehicle of `market`'s largest make and model, to start from when the subject
+    /// is not in a market just opened: its commonest model year, its commonest variant, the
+    /// median miles of that year's listings, sold used, no options. `None` for an empty market.
+    #[must_use]
+    pub fn typical_of(market: &crate::market::Market) -> Option<Self> {
+        let (segment, _) = market.segments().into_iter().next()?;
+        let rows = market.rows_of(segment);
+        let mut years: std::collections::BTreeMap<i32, usize> = std::collections::BTreeMap::new();
+        for &r in &rows {
+            *years.entry(market.model_year[r]).or_default() += 1;
+        }
+        let model_year = years
+            .iter()
+            .max_by(|a, b| a.1.cmp(b.1).then(a.0.cmp(b.0)))
+            .map(|(&y, _)| y)?;
+        let miles: Vec<f64> = rows
+            .iter()
+            .filter(|&&r| market.model_year[r] == model_year)
+            .map(|&r| market.miles[r])
+            .collect();
+        Some(Self {
+            model_year,
+            make: market.names.name(segment.make).to_owned(),
+            model: market.names.name(segment.model).to_owned(),
+            variant: market
+                .most_common_variant(segment)
+                .filter(|v| v != crate::vocabulary::NO_VARIANT),
+            miles: crate::stats::median(&miles).unwrap_or(0.0).round(),
+            condition: Condition::Used,
+            options: None,
+            vin: None,
+        })
+    }
+
     /// A subject with the attributes of a listing (picking a listing as the subject).
     #[must_use]
     pub fn from_listing(listing: &Listing) -> Self {

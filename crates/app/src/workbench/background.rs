@@ -57,6 +57,21 @@ impl Workbench {
                 self.runtime.loading = None;
                 match outcome {
                     Ok((market, report)) => {
+                        // A subject the file does not hold starts over as a typical vehicle
+                        // of the file's largest model, and says so: else nothing can be shown
+                        // to pick another from.
+                        let subject = &self.document.subject;
+                        if market.find_segment(&subject.make, &subject.model).is_none() {
+                            if let Some(typical) = model::subject::Subject::typical_of(&market) {
+                                self.notice = Some(crate::notice::Notice::done(format!(
+                                    "The file has no {} {}: the subject is now a typical {} of it. Set your vehicle in the subject pane.",
+                                    subject.make,
+                                    subject.model,
+                                    typical.describe()
+                                )));
+                                self.apply(Command::SetSubject(typical));
+                            }
+                        }
                         self.runtime.market = Some(market);
                         self.runtime.market_source = Some(source);
                         self.runtime.import_report = Some(*report);

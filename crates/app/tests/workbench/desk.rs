@@ -424,3 +424,32 @@ fn the_subjects_options_are_typed_and_priced_by_the_market() {
     wb.wait_for_jobs();
     assert_eq!(wb.document().subject.options, None);
 }
+
+#[test]
+fn a_market_without_the_subjects_model_starts_from_a_typical_vehicle_of_it() {
+    // Regression: opening a file of another model left an empty screen ("the market has no
+    // Quellmark Tessel") with no subject pane to choose another vehicle from.
+    let mut wb = workbench();
+    let path = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("../../tests/data/markets/small-export-16.csv");
+    wb.apply(Command::OpenMarket(path));
+    wb.wait_for_jobs();
+    let subject = &wb.document().subject;
+    assert_eq!(
+        (subject.make.as_str(), subject.model.as_str()),
+        ("Orvane", "Kestrel")
+    );
+    assert!(
+        wb.runtime().appraisal.is_some(),
+        "{:?}",
+        wb.runtime().fit_error
+    );
+    let notice = wb.notice().expect("a notice");
+    assert!(
+        notice.text.contains("The file has no Quellmark Tessel"),
+        "{}",
+        notice.text
+    );
+    let harness = harness_on(wb);
+    harness.get_by_label_contains("Indicated value");
+}
