@@ -263,21 +263,53 @@ pub fn saved_and_read_back(
     let fit =
         model::appraisal::fit_market(&market, segment, &settings, &overrides).expect("the fit");
     let appraisal = model::appraisal::appraise(&market, &fit, &request).expect("the appraisal");
-    let session = test_session(&model::session::Capture {
-        market: &market,
-        market_path: None,
-        fit: &fit,
-        settings: &settings,
-        overrides: &overrides,
-        request: &request,
-        appraisal: &appraisal,
-        purpose: &model::session::Purpose::Value,
-        case: &model::session::CaseDetails::default(),
-        keep_segment: false,
-    });
+    let session = value_session(&market, &fit, &settings, &overrides, &request, &appraisal);
     let text = model::session::session_to_ron(&session).expect("written");
     let again = model::session::parse_session(&text, "again.ron").expect("read back");
     let replay = model::session::reproduce(&again).expect("replayed");
     assert!(replay.reproduces(), "{:?}", replay.differences);
     again
+}
+
+/// The appraisal of `request` on `fit` captured as a value session (no worksheet, no case
+/// details, no market path, the segment not kept).
+#[must_use]
+pub fn value_session(
+    market: &model::market::Market,
+    fit: &model::appraisal::MarketFit,
+    settings: &model::appraisal::FitSettings,
+    overrides: &model::clean::Overrides,
+    request: &model::appraisal::AppraisalRequest,
+    appraisal: &model::appraisal::Appraisal,
+) -> model::session::Session {
+    test_session(&model::session::Capture {
+        market,
+        market_path: None,
+        fit,
+        settings,
+        overrides,
+        request,
+        appraisal,
+        purpose: &model::session::Purpose::Value,
+        case: &model::session::CaseDetails::default(),
+        keep_segment: false,
+    })
+}
+
+/// A market constructed by a check from CSV `text` (the whole text imported with the default
+/// options), and all its rows.
+///
+/// # Panics
+/// If the text does not import.
+#[must_use]
+#[allow(clippy::expect_used, clippy::needless_pass_by_value)]
+pub fn constructed_market(text: String) -> (model::market::Market, Vec<usize>) {
+    let (market, _) = model::import::import_csv_bytes(
+        "constructed.csv",
+        text.into_bytes(),
+        &model::import::ImportOptions::default(),
+    )
+    .expect("the constructed market imports");
+    let rows = (0..market.len()).collect();
+    (market, rows)
 }

@@ -12,7 +12,6 @@ use model::appraisal::{AppraisalRequest, FitSettings, appraise, find_segment, fi
 use model::clean::Overrides;
 use model::equipment::{MIN_OPTION_LISTINGS, count};
 use model::hedonic::{AgeForm, HedonicParams};
-use model::import::{ImportOptions, import_csv_bytes};
 use model::market::Market;
 
 /// Constructed by definition: 200 undated listings of one model, ages 1 to 8; every other one
@@ -49,13 +48,7 @@ fn constructed() -> Market {
             options.join(";")
         );
     }
-    import_csv_bytes(
-        "constructed.csv",
-        csv.into_bytes(),
-        &ImportOptions::default(),
-    )
-    .unwrap()
-    .0
+    acceptance::constructed_market(csv).0
 }
 
 #[test]

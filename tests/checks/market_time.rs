@@ -12,7 +12,6 @@ use model::adjustment::AdjustmentKind;
 use model::appraisal::{AppraisalRequest, FitSettings, appraise};
 use model::hedonic::market_time::{MarketTimeTerm, monthly_index, months_before};
 use model::hedonic::{AgeForm, HedonicParams};
-use model::import::{ImportOptions, import_csv_bytes};
 use model::market::Market;
 use model::warnings::WarningCode;
 
@@ -45,13 +44,7 @@ fn constructed(dates: &[NaiveDate], level: impl Fn(NaiveDate) -> f64, noise: &[f
             );
         }
     }
-    import_csv_bytes(
-        "constructed.csv",
-        csv.into_bytes(),
-        &ImportOptions::default(),
-    )
-    .unwrap()
-    .0
+    acceptance::constructed_market(csv).0
 }
 
 fn all_rows(market: &Market) -> Vec<usize> {

@@ -12,7 +12,6 @@ use model::appraisal::{AppraisalRequest, FitSettings, appraise, find_segment, fi
 use model::clean::Overrides;
 use model::hedonic::premium_fade::{summary, test_premium_fade};
 use model::hedonic::{AgeForm, HedonicParams, VariantSlopes};
-use model::import::{ImportOptions, import_csv_bytes};
 use model::market::Market;
 
 fn as_of() -> chrono::NaiveDate {
@@ -42,13 +41,7 @@ fn constructed(fade: [f64; 3], noise: impl Fn(usize) -> f64) -> Market {
             ln_price.exp()
         );
     }
-    import_csv_bytes(
-        "constructed.csv",
-        csv.into_bytes(),
-        &ImportOptions::default(),
-    )
-    .unwrap()
-    .0
+    acceptance::constructed_market(csv).0
 }
 
 fn rows(market: &Market) -> Vec<usize> {

@@ -419,18 +419,8 @@ fn a_hand_included_comparable_the_fit_cannot_price_is_refused_and_the_session_re
             .iter()
             .all(|c| c.listing.line != tolvane_lines[0])
     );
-    let session = acceptance::test_session(&model::session::Capture {
-        market: &market,
-        market_path: None,
-        fit: &fit,
-        settings: &settings,
-        overrides: &overrides,
-        request: &request,
-        appraisal: &appraisal,
-        purpose: &Purpose::Value,
-        keep_segment: false,
-        case: &model::session::CaseDetails::default(),
-    });
+    let session =
+        acceptance::value_session(&market, &fit, &settings, &overrides, &request, &appraisal);
     let dir = scratch_dir("refused");
     let path = dir.join("refused.ron");
     write_session(&path, &session).unwrap();

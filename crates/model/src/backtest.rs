@@ -70,10 +70,17 @@ pub struct Backtest {
     pub not_valued: usize,
 }
 
-/// The factor that carries an estimate of the appraisal date's market back to the listing date
-/// of `row`: a held-out listing was priced on its own date.
-fn on_listing_date(fit: &MarketFit, market: &Market, row: usize) -> f64 {
-    fit.model.row_shift(market, row).exp()
+/// The factor that carries an estimate (of the appraisal date's market, without options) to
+/// each held-out listing's own date and options, by row: it was priced with them.
+fn own_date_and_options(
+    fit: &MarketFit,
+    market: &Market,
+    held: &[usize],
+) -> std::collections::HashMap<usize, f64> {
+    held.iter()
+        .copied()
+        .zip(fit.model.row_shifts(market, held).into_iter().map(f64::exp))
+        .collect()
 }
 
 /// Runs the backtest over the fit's included listings.
@@ -125,7 +132,8 @@ pub fn backtest(
             market_index: None,
             premium_fade: None,
         };
-        let then = |row: usize| on_listing_date(&fold_fit, market, row);
+        let factors = own_date_and_options(&fold_fit, market, &held);
+        let then = |row: usize| factors.get(&row).copied().unwrap_or(1.0);
         for &row in &held {
             let a = fold_fit.model.attributes_of_row(market, row);
             if !fold_fit.model.design().knows_variant(a.variant)

@@ -821,13 +821,7 @@ impl HedonicModel {
     /// its attributes alone (of the appraisal date, without options) leaves out.
     #[must_use]
     pub fn row_shift(&self, market: &Market, row: usize) -> f64 {
-        let options: f64 = self
-            .design
-            .option_columns(market.names.name(market.options[row]))
-            .into_iter()
-            .map(|c| self.coefficients[c])
-            .sum();
-        self.market_conditions_effect(market.listed_on[row]) + options
+        self.row_shifts(market, &[row])[0]
     }
 
     /// [`Self::row_shift`] of each of `rows`, each options cell's columns worked out once.
