@@ -15,6 +15,7 @@ pub mod cautions;
 pub mod clean;
 pub mod comparables;
 pub mod condition;
+pub mod convert;
 pub mod demo;
 pub mod depreciation;
 pub mod equipment;

@@ -6,7 +6,9 @@
 //! line, column and value.
 
 mod batches;
+pub mod dataset;
 pub mod headers;
+mod parquet;
 mod report;
 mod rows;
 mod values;
@@ -21,7 +23,10 @@ use crate::market::{Market, MarketSource, content_hash};
 
 use batches::{Plan, Tokenizer, read_batches};
 pub use headers::{Field, field_for, normalize_header};
-pub use report::{DroppedValue, ImportReport, RejectReason, RejectedRow, reason_in_words};
+pub use parquet::{import_parquet, parquet_fingerprint};
+pub use report::{
+    DroppedValue, ImportReport, PartRead, RejectReason, RejectedRow, reason_in_words,
+};
 pub use values::{parse_date, parse_number, parse_year};
 
 /// Kilometers per statute mile.
@@ -149,6 +154,32 @@ pub enum ImportError {
         /// Fields in the header.
         header_fields: usize,
     },
+    /// A folder named as a market holds no Parquet files.
+    #[error("{folder}: no .parquet files in the folder or its sub-folders")]
+    NoParquetFiles {
+        /// The folder.
+        folder: String,
+    },
+    /// A Parquet file could not be decoded.
+    #[error("{file}: cannot be read as Parquet: {message}")]
+    Parquet {
+        /// The file, from the dataset's root.
+        file: String,
+        /// What the decoder said.
+        message: String,
+    },
+    /// No partition of a dataset holds the make and model asked for.
+    #[error("{folder}: no partition holds {make} {model}; the dataset holds {available}")]
+    ModelNotInDataset {
+        /// The dataset's folder.
+        folder: String,
+        /// Make asked for.
+        make: String,
+        /// Model asked for.
+        model: String,
+        /// The makes and models its folders name, with their rows.
+        available: String,
+    },
     /// Every row was rejected (or there were none).
     #[error("{file}: no usable rows: {}", summary_of(report))]
     NoUsableRows {
@@ -171,6 +202,20 @@ fn summary_of(report: &ImportReport) -> String {
         let _ = write!(s, " (first: line {}: {})", first.line, first.reason);
     }
     s
+}
+
+/// Imports a market: a CSV file, or a Parquet file or folder (see [`dataset`]). With `wanted`,
+/// a partitioned Parquet market is read only for that make and model; a CSV file is read whole.
+pub fn import_market(
+    path: &Path,
+    options: &ImportOptions,
+    wanted: Option<(&str, &str)>,
+) -> Result<(Market, ImportReport), ImportError> {
+    if dataset::is_parquet_market(path) {
+        parquet::import_parquet(path, options, wanted)
+    } else {
+        import_csv_file(path, options)
+    }
 }
 
 /// Reads and imports a CSV file.
@@ -297,6 +342,7 @@ fn import_planned(
         file_name: file,
         rows_read: report.rows_read,
         content_hash: hash,
+        model_read: None,
     };
     Ok((market, report))
 }
@@ -465,10 +511,19 @@ fn try_map_header(
     delimiter: u8,
     options: ImportOptions,
 ) -> Result<HeaderMapping, ImportError> {
+    map_names(file, split_header(header, delimiter), options)
+}
+
+/// Maps column names (a CSV header's fields, a Parquet file's columns) to fields.
+fn map_names(
+    file: &str,
+    names: Vec<String>,
+    options: ImportOptions,
+) -> Result<HeaderMapping, ImportError> {
     let mut columns: HashMap<Field, (usize, String)> = HashMap::new();
     let mut ignored = Vec::new();
     let mut odometer = OdometerUnit::Miles;
-    for (index, raw) in split_header(header, delimiter).into_iter().enumerate() {
+    for (index, raw) in names.into_iter().enumerate() {
         let normalized = normalize_header(&raw);
         let Some(mut field) = field_for(&normalized) else {
             if !raw.trim().is_empty() {

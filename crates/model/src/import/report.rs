@@ -91,18 +91,37 @@ impl std::fmt::Display for RejectReason {
 /// A rejected row.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct RejectedRow {
-    /// Line in the file (1 is the header).
+    /// Line in the file (1 is the header); for a Parquet market, the row across the dataset's
+    /// files in path order (from 1).
     pub line: u64,
+    /// For a Parquet market: the file and its row ("make=A/model=B/part-0.parquet, row 5").
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub place: Option<String>,
     /// Why it was rejected.
     #[serde(flatten)]
     pub reason: RejectReason,
 }
 
+impl RejectedRow {
+    /// Where the row is, for people: its file and row for a Parquet market, else its line.
+    #[must_use]
+    pub fn where_found(&self) -> String {
+        place_in_words(self.line, self.place.as_deref())
+    }
+}
+
+fn place_in_words(line: u64, place: Option<&str>) -> String {
+    place.map_or_else(|| format!("line {line}"), str::to_owned)
+}
+
 /// An optional value that was unreadable and dropped while its row was kept.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct DroppedValue {
-    /// Line in the file.
+    /// Line in the file (for a Parquet market, the row across the dataset, as for rejections).
     pub line: u64,
+    /// For a Parquet market: the file and its row.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub place: Option<String>,
     /// Column header.
     pub column: String,
     /// The text found.
@@ -145,6 +164,49 @@ pub struct ImportReport {
     /// The options stated in the file, commonest first, with the spellings read as one.
     #[serde(default)]
     pub options_found: Vec<crate::equipment::OptionCount>,
+    /// For a Parquet market: the files read, in path order, with the dataset row each starts
+    /// at; empty for a CSV file.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub parts_read: Vec<PartRead>,
+    /// For a Parquet market: the dataset's files not read because they hold other models.
+    #[serde(default)]
+    pub parts_skipped: usize,
+}
+
+/// One Parquet file read into a market.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct PartRead {
+    /// Path from the dataset's root.
+    pub file: String,
+    /// The dataset row (from 1) of its first row.
+    pub first_row: u64,
+    /// Its rows.
+    pub rows: u64,
+}
+
+impl DroppedValue {
+    /// Where the value is, for people: its file and row for a Parquet market, else its line.
+    #[must_use]
+    pub fn where_found(&self) -> String {
+        place_in_words(self.line, self.place.as_deref())
+    }
+}
+
+impl ImportReport {
+    /// True when the market was read from Parquet.
+    #[must_use]
+    pub fn is_parquet(&self) -> bool {
+        !self.parts_read.is_empty()
+    }
+
+    /// The file and row of dataset row `line` of a Parquet market.
+    #[must_use]
+    pub fn place_of(&self, line: u64) -> Option<String> {
+        let i = self.parts_read.partition_point(|p| p.first_row <= line);
+        let part = self.parts_read.get(i.checked_sub(1)?)?;
+        (line < part.first_row + part.rows)
+            .then(|| format!("{}, row {}", part.file, line - part.first_row + 1))
+    }
 }
 
 impl ImportReport {
@@ -154,6 +216,10 @@ impl ImportReport {
             .rejected_by_reason
             .entry(reason.code().to_owned())
             .or_default() += 1;
-        self.rejected.push(RejectedRow { line, reason });
+        self.rejected.push(RejectedRow {
+            line,
+            place: None,
+            reason,
+        });
     }
 }

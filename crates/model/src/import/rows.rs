@@ -342,6 +342,7 @@ impl OptionalReader<'_, '_> {
     fn drop(&mut self, market: &Market, row: usize, field: Field, value: &str, note: &str) {
         self.dropped.push(DroppedValue {
             line: market.line[row],
+            place: None,
             column: self.mapping.header(field).to_owned(),
             value: value.to_owned(),
             note: note.to_owned(),
