@@ -11,7 +11,7 @@ use model::clean::Overrides;
 use model::comparables::ComparableRules;
 use model::depreciation::{DeclineRank, rank_segments};
 use model::gaps::{PriceGap, price_gaps};
-use model::import::{ImportError, ImportOptions, ImportReport, import_csv_file};
+use model::import::{ImportError, ImportOptions, ImportReport, import_market};
 use model::market::Market;
 
 use crate::document::MarketSource;
@@ -180,7 +180,8 @@ fn run(job: Job) -> JobResult {
             let options = ImportOptions::default();
             let outcome = match &source {
                 MarketSource::Demo { rows } => model::demo::import_demo(*rows, &options),
-                MarketSource::File(path) => import_csv_file(path, &options),
+                // The workbench lists every model: a Parquet dataset is read whole.
+                MarketSource::File(path) => import_market(path, &options, &[]),
             };
             JobResult::Loaded {
                 source,

@@ -83,6 +83,24 @@ pub enum Command {
         #[arg(long, default_value_t = 15)]
         top: usize,
     },
+    /// Write a market CSV as Parquet partitioned by make and model (make=…/model=…/ folders),
+    /// reading it in blocks; prints the CSV's import report.
+    Convert {
+        /// The market CSV.
+        file: PathBuf,
+        /// The folder to write (created; it must not already hold Parquet files).
+        #[arg(long)]
+        out: PathBuf,
+        /// Field separator (default: detected from the header).
+        #[arg(long, allow_negative_numbers = true, value_parser = separator)]
+        delimiter: Option<char>,
+        /// Unit of a column named only "mileage" or "odometer".
+        #[arg(long, value_enum, default_value = "miles")]
+        odometer: OdometerArg,
+        /// Print JSON instead of a summary.
+        #[arg(long)]
+        json: bool,
+    },
     /// Appraise many subjects against one market: MARKET positional as for `appraise`, the
     /// subjects from --subjects (the market's column names plus `id`), one value row each.
     Batch(Box<BatchArgs>),
@@ -183,7 +201,8 @@ pub struct BatchArgs {
 /// Options shared by every command that reads and fits a market.
 #[derive(Debug, Clone, Args)]
 pub struct MarketArgs {
-    /// Market CSV file; the built-in demo market when omitted.
+    /// Market: a CSV file, a Parquet file, or a folder of Parquet files partitioned
+    /// make=…/model=…/ (only the model needed is read); the built-in demo market when omitted.
     pub file: Option<PathBuf>,
     /// Make to fit (needed when the file holds several models).
     #[arg(long)]
@@ -220,10 +239,12 @@ pub struct MarketArgs {
     /// Unsold listings older than this many days are stale (0 keeps them all; at most 3,650).
     #[arg(long, allow_negative_numbers = true, default_value_t = 180, value_parser = clap::value_parser!(u32).range(0..=3_650))]
     pub stale_days: u32,
-    /// Keep the listing on this file line even if a cleaning rule excludes it (repeatable).
+    /// Keep the listing on this file line (for Parquet, this dataset row) even if a cleaning
+    /// rule excludes it (repeatable).
     #[arg(long = "keep", value_name = "LINE")]
     pub keep: Vec<u64>,
-    /// Exclude the listing on this file line from the fit and comparables (repeatable).
+    /// Exclude the listing on this file line (for Parquet, this dataset row) from the fit and
+    /// comparables (repeatable).
     #[arg(long = "drop", value_name = "LINE")]
     pub drop: Vec<u64>,
     /// Rows of the demo market when no file is given (1 to 10,000,000).

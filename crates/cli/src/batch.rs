@@ -39,7 +39,18 @@ pub fn run(args: &BatchArgs) -> Result<()> {
         .with_context(|| format!("cannot read the subjects file {}", args.subjects.display()))?;
     let rows = read_subjects(&text).with_context(|| args.subjects.display().to_string())?;
     let market_args = &args.appraise.market;
-    let loaded = crate::load::load_market(market_args)?;
+    // A partitioned Parquet market is read for the subjects' models only.
+    let mut wanted: Vec<(String, String)> = rows
+        .iter()
+        .filter_map(|r| r.subject.as_ref().ok())
+        .map(|s| (s.make.clone(), s.model.clone()))
+        .collect();
+    wanted.sort();
+    wanted.dedup_by(|a, b| {
+        model::vocabulary::name_key(&a.0) == model::vocabulary::name_key(&b.0)
+            && model::vocabulary::name_key(&a.1) == model::vocabulary::name_key(&b.1)
+    });
+    let loaded = crate::load::load_market(market_args, &wanted)?;
     let settings = crate::load::fit_settings(market_args)?;
     let overrides = crate::load::overrides(market_args);
     // The rules and level every subject is appraised with (the subject is each row's).

@@ -122,6 +122,13 @@ fn run(cli: Cli) -> Result<ExitCode> {
         Command::DemoMarket { rows, seed, out } => demo_market(rows, seed, &out),
         Command::Fit(args) => fit(&args),
         Command::Batch(args) => batch::run(&args),
+        Command::Convert {
+            file,
+            out,
+            delimiter,
+            odometer,
+            json,
+        } => convert(&file, &out, &load::import_options(delimiter, odometer), json),
         Command::Appraise(mut args) => {
             date_of_loss_is_the_appraisal_date(&mut args)?;
             if let Some(path) = &args.session {
@@ -246,8 +253,25 @@ fn demo_market(rows: u64, seed: u64, out: &std::path::Path) -> Result<()> {
     Ok(())
 }
 
+fn convert(
+    file: &std::path::Path,
+    out: &std::path::Path,
+    options: &model::import::ImportOptions,
+    json: bool,
+) -> Result<()> {
+    let done = model::convert::convert_csv(file, out, options, model::convert::BLOCK_BYTES)?;
+    let doc = output::ConversionDocument {
+        out: out.display().to_string(),
+        rows_written: done.rows_written,
+        partitions: done.partitions,
+        files: done.files,
+        import: ImportSummary::from_report(&done.report),
+    };
+    print(json, &doc, || render::conversion(&doc))
+}
+
 fn fit(args: &MarketArgs) -> Result<()> {
-    let loaded = load::load_market(args)?;
+    let loaded = load::load_market(args, &load::wanted(args, None))?;
     let segment = load::choose_segment(&loaded.market, args, None)?;
     let fit = load::fit(&loaded, args, segment)?;
     let doc = FitDocument {
@@ -352,7 +376,10 @@ fn appraise_command(args: &AppraiseArgs) -> Result<()> {
         }
     };
     let subject = Subject::parse(&subject_text)?;
-    let loaded = load::load_market(&args.market)?;
+    let loaded = load::load_market(
+        &args.market,
+        &load::wanted(&args.market, Some((&subject.make, &subject.model))),
+    )?;
     let segment = load::choose_segment(
         &loaded.market,
         &args.market,
@@ -452,7 +479,8 @@ fn quick_backtest(
 }
 
 fn depreciation(args: &MarketArgs, max_age: u32) -> Result<()> {
-    let loaded = load::load_market(args)?;
+    // The ranking compares every model: the whole market is read.
+    let loaded = load::load_market(args, &[])?;
     let segment = load::choose_segment(&loaded.market, args, None).or_else(|e| {
         // Several models and none chosen: describe the largest, rank them all.
         loaded.market.segments().first().map(|s| s.0).ok_or(e)
@@ -473,7 +501,7 @@ fn gaps(args: &MarketArgs, level: f64, top: usize) -> Result<()> {
     if !(level > 0.0 && level < 1.0) {
         bail!("--level {level} must be strictly between 0 and 1");
     }
-    let loaded = load::load_market(args)?;
+    let loaded = load::load_market(args, &load::wanted(args, None))?;
     let segment = load::choose_segment(&loaded.market, args, None)?;
     let fit = load::fit(&loaded, args, segment)?;
     let doc = GapsDocument {
@@ -492,7 +520,7 @@ fn backtest_command(
     level: f64,
     comparable_subjects: u64,
 ) -> Result<()> {
-    let loaded = load::load_market(args)?;
+    let loaded = load::load_market(args, &load::wanted(args, None))?;
     let segment = load::choose_segment(&loaded.market, args, None)?;
     let fit = load::fit(&loaded, args, segment)?;
     let settings = BacktestSettings {

@@ -5,7 +5,7 @@ use chrono::NaiveDate;
 use model::appraisal::{FitSettings, MarketFit, find_segment, fit_market, segment_list};
 use model::clean::{Override, Overrides};
 use model::hedonic::{AgeForm, VariantSlopes};
-use model::import::{ImportOptions, ImportReport, OdometerUnit, import_csv_file};
+use model::import::{ImportOptions, ImportReport, OdometerUnit, import_market};
 use model::market::{Market, Segment};
 
 use crate::args::{AgeFormArg, MarketArgs, OdometerArg, VariantSlopesArg};
@@ -18,22 +18,41 @@ pub struct Loaded {
     pub report: ImportReport,
 }
 
-/// Imports the file named in `args`, or generates the demo market.
-pub fn load_market(args: &MarketArgs) -> Result<Loaded> {
-    let mut options = ImportOptions {
-        delimiter: args.delimiter.map(|c| c as u8),
-        odometer_unit: match args.odometer {
+/// The import options for a separator and odometer unit.
+#[must_use]
+pub fn import_options(delimiter: Option<char>, odometer: OdometerArg) -> ImportOptions {
+    ImportOptions {
+        delimiter: delimiter.map(|c| c as u8),
+        odometer_unit: match odometer {
             OdometerArg::Miles => OdometerUnit::Miles,
             OdometerArg::Km => OdometerUnit::Kilometers,
         },
         ..ImportOptions::default()
-    };
+    }
+}
+
+/// The makes and models a command needs from a partitioned Parquet market: `--make/--model`
+/// when both are given, else `subject`'s, else none (every partition is read).
+#[must_use]
+pub fn wanted(args: &MarketArgs, subject: Option<(&str, &str)>) -> Vec<(String, String)> {
+    match (args.make.as_deref(), args.model.as_deref(), subject) {
+        (Some(make), Some(model), _) | (_, _, Some((make, model))) => {
+            vec![(make.to_owned(), model.to_owned())]
+        }
+        _ => Vec::new(),
+    }
+}
+
+/// Imports the market named in `args` (only the makes and models in `wanted` of a partitioned
+/// Parquet market; everything when it is empty), or generates the demo market.
+pub fn load_market(args: &MarketArgs, wanted: &[(String, String)]) -> Result<Loaded> {
+    let mut options = import_options(args.delimiter, args.odometer);
     if let Some(as_of) = parse_as_of(args)? {
         use chrono::Datelike;
         options.latest_model_year = options.latest_model_year.max(as_of.year() + 1);
     }
     let (market, report) = if let Some(path) = &args.file {
-        import_csv_file(path, &options)?
+        import_market(path, &options, wanted)?
     } else {
         model::demo::import_demo(args.demo_rows as usize, &options)?
     };

@@ -15,10 +15,23 @@ use serde::Serialize;
 /// Rejections and dropped values listed in full up to this many; the counts are always whole.
 const LISTED: usize = 50;
 
+/// What `convert` wrote.
+#[derive(Debug, Serialize)]
+pub struct ConversionDocument {
+    pub out: String,
+    pub rows_written: usize,
+    pub partitions: usize,
+    pub files: Vec<model::convert::WrittenFile>,
+    pub import: ImportSummary,
+}
+
 /// The import summary.
 #[derive(Debug, Serialize)]
 pub struct ImportSummary {
     pub file: String,
+    /// For a Parquet market: the files read and the files passed over (other models).
+    pub parquet_files_read: usize,
+    pub parquet_files_skipped: usize,
     pub delimiter: String,
     pub odometer_unit: String,
     pub rows_read: usize,
@@ -42,6 +55,8 @@ impl ImportSummary {
     pub fn from_report(r: &ImportReport) -> Self {
         Self {
             file: r.file_name.clone(),
+            parquet_files_read: r.parts_read.len(),
+            parquet_files_skipped: r.parts_skipped,
             delimiter: r.delimiter.clone(),
             odometer_unit: r.odometer_unit.clone(),
             rows_read: r.rows_read,

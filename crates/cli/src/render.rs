@@ -6,17 +6,48 @@ use model::adjustment::describe;
 use model::format::{money, signed_money, thousands};
 
 use crate::output::{
-    AppraisalDocument, BacktestDocument, DepreciationDocument, FitSummary, GapsDocument,
+    AppraisalDocument, ConversionDocument, BacktestDocument, DepreciationDocument, FitSummary, GapsDocument,
     ImportSummary,
 };
 
-pub fn import(s: &ImportSummary) -> String {
-    let mut o = String::new();
+pub fn conversion(d: &ConversionDocument) -> String {
+    let mut o = import(&d.import);
     let _ = writeln!(
         o,
-        "Market: {} ({} separated, odometer in {}): {} rows read, {} used, {} rejected",
+        "Wrote {} listings of {} {} to {} in {} Parquet {} (make=…/model=…/ folders).",
+        thousands(d.rows_written as f64),
+        thousands(d.partitions as f64),
+        if d.partitions == 1 { "model" } else { "models" },
+        d.out,
+        thousands(d.files.len() as f64),
+        if d.files.len() == 1 { "file" } else { "files" },
+    );
+    o
+}
+
+pub fn import(s: &ImportSummary) -> String {
+    let mut o = String::new();
+    let form = if s.parquet_files_read > 0 {
+        format!(
+            "Parquet, {} {} read{}",
+            thousands(s.parquet_files_read as f64),
+            if s.parquet_files_read == 1 { "file" } else { "files" },
+            if s.parquet_files_skipped > 0 {
+                format!(
+                    ", {} of other models not opened",
+                    thousands(s.parquet_files_skipped as f64)
+                )
+            } else {
+                String::new()
+            }
+        )
+    } else {
+        format!("{} separated", s.delimiter)
+    };
+    let _ = writeln!(
+        o,
+        "Market: {} ({form}, odometer in {}): {} rows read, {} used, {} rejected",
         s.file,
-        s.delimiter,
         s.odometer_unit,
         thousands(s.rows_read as f64),
         thousands(s.rows_used as f64),
@@ -31,7 +62,7 @@ pub fn import(s: &ImportSummary) -> String {
         );
     }
     for r in s.rejected.iter().take(5) {
-        let _ = writeln!(o, "    line {}: {}", r.line, r.reason);
+        let _ = writeln!(o, "    {}: {}", r.where_found(), r.reason);
     }
     if s.rows_rejected > 5 {
         let _ = writeln!(
@@ -45,8 +76,11 @@ pub fn import(s: &ImportSummary) -> String {
         for d in s.dropped_values.iter().take(3) {
             let _ = writeln!(
                 o,
-                "    line {}: {} = '{}': {}",
-                d.line, d.column, d.value, d.note
+                "    {}: {} = '{}': {}",
+                d.where_found(),
+                d.column,
+                d.value,
+                d.note
             );
         }
     }

@@ -205,8 +205,10 @@ fn rerun(args: &AppraiseArgs, session: &Session, path: &str) -> Result<Outcome> 
         file: Some(PathBuf::from(path)),
         ..args.market.clone()
     };
-    let loaded =
-        crate::load::load_market(&market_args).with_context(|| format!("re-running on {path}"))?;
+    let subject = &session.request.subject;
+    let wanted = [(subject.make.clone(), subject.model.clone())];
+    let loaded = crate::load::load_market(&market_args, &wanted)
+        .with_context(|| format!("re-running on {path}"))?;
     let market = &loaded.market;
     let segment = find_segment(
         market,

@@ -592,7 +592,7 @@ mod tests {
             Err(ConvertError::NotEmpty { .. })
         ));
 
-        let (lake, report) = import_parquet(&out, &options, None).unwrap_or_else(|e| panic!("{e}"));
+        let (lake, report) = import_parquet(&out, &options, &[]).unwrap_or_else(|e| panic!("{e}"));
         assert_eq!(lake.len(), csv_market.len());
         assert!(report.rejected.is_empty());
         assert_eq!(report.parts_read.len(), done.files.len());
@@ -618,7 +618,7 @@ mod tests {
         }
 
         // One model: only its folder is opened, and the fingerprint can be found again.
-        let (one, one_report) = import_parquet(&out, &options, Some(("QUELLMARK", "tessel")))
+        let (one, one_report) = import_parquet(&out, &options, &[("QUELLMARK".into(), "tessel".into())])
             .unwrap_or_else(|e| panic!("{e}"));
         assert_eq!(one.segments().len(), 1);
         assert!(one_report.parts_skipped > 0);
@@ -628,9 +628,9 @@ mod tests {
                 .iter()
                 .all(|p| p.file.starts_with("make=Quellmark/model=Tessel/"))
         );
-        let read = one.source.model_read.clone().unwrap_or_default();
+        assert_eq!(one.source.models_read.len(), 1);
         assert_eq!(
-            parquet_fingerprint(&out, Some((&read.0, &read.1))).ok().as_deref(),
+            parquet_fingerprint(&out, &one.source.models_read).ok().as_deref(),
             Some(one.source.content_hash.as_str())
         );
         // Rows are numbered across the dataset in path order, whichever files were read.
@@ -642,7 +642,7 @@ mod tests {
             .map(|p| p.first_row);
         assert_eq!(Some(first.first_row), whole_first);
         assert_eq!(one.line[0], first.first_row);
-        let missing = import_parquet(&out, &options, Some(("Quellmark", "Nope")));
+        let missing = import_parquet(&out, &options, &[("Quellmark".into(), "Nope".into())]);
         let message = missing.err().map(|e| e.to_string()).unwrap_or_default();
         assert!(message.contains("no partition holds Quellmark Nope; the dataset holds"), "{message}");
         std::fs::remove_dir_all(&dir).ok();
@@ -700,7 +700,7 @@ mod tests {
             ..ImportOptions::default()
         };
         let (market, report) =
-            import_parquet(&dir, &options, None).unwrap_or_else(|e| panic!("{e}"));
+            import_parquet(&dir, &options, &[]).unwrap_or_else(|e| panic!("{e}"));
         std::fs::remove_dir_all(&dir).ok();
         assert_eq!(market.len(), 1);
         assert_eq!(market.names.name(market.make[0]), "Ardent", "from the folder");
@@ -726,11 +726,11 @@ mod tests {
         let dir = scratch("damaged");
         std::fs::create_dir_all(dir.join("make=A")).unwrap_or_else(|e| panic!("{e}"));
         let options = ImportOptions::default();
-        let empty = import_parquet(&dir, &options, None).err().map(|e| e.to_string());
+        let empty = import_parquet(&dir, &options, &[]).err().map(|e| e.to_string());
         assert!(empty.is_some_and(|m| m.contains("no .parquet files")));
         std::fs::write(dir.join("make=A/part-0.parquet"), b"PAR1 not really")
             .unwrap_or_else(|e| panic!("{e}"));
-        let damaged = import_parquet(&dir, &options, None).err().map(|e| e.to_string());
+        let damaged = import_parquet(&dir, &options, &[]).err().map(|e| e.to_string());
         std::fs::remove_dir_all(&dir).ok();
         assert!(
             damaged.as_deref().is_some_and(|m| m.starts_with("make=A/part-0.parquet: cannot be read as Parquet")),

@@ -20,10 +20,10 @@ pub struct MarketSource {
     /// XXH3-64 hash of the file's bytes (see [`content_hash`]); for a Parquet market, of the
     /// dataset as read (see [`crate::import::parquet_fingerprint`]).
     pub content_hash: String,
-    /// For a partitioned Parquet market read for one make and model: that make and model (only
-    /// their partitions were read, and the fingerprint covers those files' bytes).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub model_read: Option<(String, String)>,
+    /// For a partitioned Parquet market read for some makes and models only: those (only their
+    /// partitions were read, and the fingerprint covers those files' bytes).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub models_read: Vec<(String, String)>,
 }
 
 /// A make and model pair: the unit a depreciation fit is made for.

@@ -334,7 +334,9 @@ impl Workbench {
             FilePrompt::Report | FilePrompt::CustomerReport => dialog
                 .set_file_name(suggested.display().to_string())
                 .save_file(),
-            FilePrompt::LocateMarket => dialog.add_filter("market CSV", &["csv"]).pick_file(),
+            FilePrompt::LocateMarket => dialog
+                .add_filter("market (CSV or Parquet)", &["csv", "parquet"])
+                .pick_file(),
             FilePrompt::Profiles => dialog
                 .add_filter("jurisdiction profiles", &["ron"])
                 .pick_file(),

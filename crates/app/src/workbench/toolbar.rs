@@ -52,9 +52,16 @@ impl Workbench {
     fn open_dialog(&mut self) {
         // Without a desktop portal the dialog returns nothing at once; the typed path remains.
         if let Some(path) = rfd::FileDialog::new()
-            .add_filter("market CSV", &["csv"])
+            .add_filter("market (CSV or Parquet)", &["csv", "parquet"])
             .pick_file()
         {
+            self.apply(Command::OpenMarket(path));
+        }
+    }
+
+    /// A folder of Parquet files partitioned make=…/model=…/, as analytical engines write them.
+    fn open_folder_dialog(&mut self) {
+        if let Some(path) = rfd::FileDialog::new().pick_folder() {
             self.apply(Command::OpenMarket(path));
         }
     }
@@ -62,13 +69,26 @@ impl Workbench {
     pub(super) fn toolbar_ui(&mut self, ui: &mut Ui) {
         ui.horizontal_wrapped(|ui| {
             ui.strong("comptrail");
-            if ui.button("Open market…").on_hover_text("Ctrl+O").clicked() {
+            if ui
+                .button("Open market…")
+                .on_hover_text("A CSV or Parquet file (Ctrl+O)")
+                .clicked()
+            {
                 self.open_dialog();
+            }
+            if ui
+                .button("Folder…")
+                .on_hover_text(
+                    "A folder of Parquet files partitioned make=…/model=…/, as analytical engines write them",
+                )
+                .clicked()
+            {
+                self.open_folder_dialog();
             }
             ui.label("or path:");
             let edit = ui.add(
                 egui::TextEdit::singleline(&mut self.path_input)
-                    .hint_text("/path/to/market.csv")
+                    .hint_text("market.csv, .parquet or folder")
                     .desired_width(220.0),
             );
             let submit = edit.lost_focus() && ui.input(|i| i.key_pressed(Key::Enter));

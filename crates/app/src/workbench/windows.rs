@@ -47,7 +47,7 @@ impl Workbench {
                         .max_height(240.0)
                         .show(ui, |ui| {
                             for r in report.rejected.iter().take(200) {
-                                ui.label(format!("line {}: {}", r.line, r.reason));
+                                ui.label(format!("{}: {}", r.where_found(), r.reason));
                             }
                         });
                 }

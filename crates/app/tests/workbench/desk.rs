@@ -453,3 +453,79 @@ fn a_market_without_the_subjects_model_starts_from_a_typical_vehicle_of_it() {
     let harness = harness_on(wb);
     harness.get_by_label_contains("Indicated value");
 }
+
+#[test]
+fn a_parquet_folder_opens_like_its_csv_dropped_typed_or_from_recent() {
+    let dir = scratch("lake");
+    let csv = dir.join("market.csv");
+    std::fs::write(&csv, model::demo::demo_csv_bytes(SMALL_DEMO, 4)).unwrap();
+    let lake = dir.join("lake");
+    let options = model::import::ImportOptions::default();
+    model::convert::convert_csv(&csv, &lake, &options, model::convert::BLOCK_BYTES).unwrap();
+
+    let mut from_csv = workbench();
+    from_csv.apply(Command::OpenMarket(csv.clone()));
+    from_csv.wait_for_jobs();
+    let expected = indicated(&from_csv);
+
+    // Dropped on the window, as a file manager drops a folder.
+    let mut harness = harness_on(workbench());
+    harness
+        .input_mut()
+        .dropped_files
+        .push(std::sync::Arc::new(Dropped(lake.clone())));
+    harness.run_steps(2);
+    harness.state_mut().wait_for_jobs();
+    harness.run_steps(2);
+    let wb = harness.state();
+    let market = wb.runtime().market.as_ref().expect("the folder opened");
+    assert_eq!(market.source.file_name, "lake");
+    assert_eq!(market.len(), from_csv.runtime().market.as_ref().unwrap().len());
+    assert!(
+        (indicated(wb) - expected).abs() < 0.005,
+        "{} against {expected}",
+        indicated(wb)
+    );
+    assert_eq!(wb.preferences().recent_files.first(), Some(&lake));
+    harness.get_by_label_contains("Indicated value");
+
+    // Typed into the path box and loaded.
+    let mut harness = harness_on(workbench());
+    // The path box is the first text field, in the toolbar.
+    let path_box = || eframe::egui::accesskit::Role::TextInput;
+    harness
+        .get_all_by_role(path_box())
+        .next()
+        .expect("the path box")
+        .click();
+    harness.run_steps(1);
+    harness
+        .get_all_by_role(path_box())
+        .next()
+        .expect("the path box")
+        .type_text(&lake.display().to_string());
+    harness.run_steps(1);
+    harness.get_by_label("Load").click();
+    harness.run_steps(2);
+    harness.state_mut().wait_for_jobs();
+    harness.run_steps(2);
+    assert_eq!(
+        harness.state().runtime().market.as_ref().map(|m| m.source.file_name.clone()),
+        Some("lake".to_owned())
+    );
+    std::fs::remove_dir_all(&dir).ok();
+}
+
+/// A folder dropped from a file manager.
+#[derive(Debug)]
+struct Dropped(std::path::PathBuf);
+
+impl eframe::egui::DroppedFile for Dropped {
+    fn path(&self) -> &std::path::Path {
+        &self.0
+    }
+
+    fn bytes(&self) -> Result<Vec<u8>, String> {
+        Err("a folder".into())
+    }
+}

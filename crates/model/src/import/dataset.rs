@@ -154,20 +154,23 @@ pub fn unescape(text: &str) -> String {
     String::from_utf8(out).unwrap_or_else(|_| text.to_owned())
 }
 
-/// Which files a make and model needs: those whose `make` and `model` partitions (when the
-/// layout has them) name it, compared without case or spacing; files without such folders may
-/// hold any model and are always read.
+/// Which files the makes and models in `wanted` need (every file when `wanted` is empty): those
+/// whose `make` and `model` partitions (when the layout has them) name one of them, compared
+/// without case or spacing; files without such folders may hold any model and are always read.
 #[must_use]
 pub fn files_for<'f>(
     files: &'f [PartFile],
     is_make: &dyn Fn(&str) -> bool,
     is_model: &dyn Fn(&str) -> bool,
-    wanted: Option<(&str, &str)>,
+    wanted: &[(String, String)],
 ) -> Vec<&'f PartFile> {
-    let Some((make, model)) = wanted else {
+    if wanted.is_empty() {
         return files.iter().collect();
-    };
-    let (make, model) = (name_key(make), name_key(model));
+    }
+    let keys: Vec<(String, String)> = wanted
+        .iter()
+        .map(|(make, model)| (name_key(make), name_key(model)))
+        .collect();
     files
         .iter()
         .filter(|f| {
@@ -176,7 +179,9 @@ pub fn files_for<'f>(
                 Some(None) => false,
                 Some(Some(v)) => name_key(v) == want,
             };
-            fits(f.value_of(is_make), &make) && fits(f.value_of(is_model), &model)
+            keys.iter().any(|(make, model)| {
+                fits(f.value_of(is_make), make) && fits(f.value_of(is_model), model)
+            })
         })
         .collect()
 }
@@ -261,17 +266,18 @@ mod tests {
         );
         assert_eq!(files[3].partition[0].1, None);
         let is = |name: &'static str| move |k: &str| k == name;
+        let want = |make: &str, model: &str| vec![(make.to_owned(), model.to_owned())];
         let chosen = files_for(
             &files,
             &is("make"),
             &is("model"),
-            Some(("QUELLMARK", "  tessel")),
+            &want("QUELLMARK", "  tessel"),
         );
         assert_eq!(chosen.len(), 2);
         assert!(chosen.iter().all(|f| f.relative.contains("Tessel")));
-        let none = files_for(&files, &is("make"), &is("model"), Some(("Orb", "Orb")));
+        let none = files_for(&files, &is("make"), &is("model"), &want("Orb", "Orb"));
         assert!(none.is_empty(), "a null make is no make");
-        assert_eq!(files_for(&files, &is("make"), &is("model"), None).len(), 4);
+        assert_eq!(files_for(&files, &is("make"), &is("model"), &[]).len(), 4);
         assert_eq!(
             partition_list(&files, &[5, 1000, 2000, 7], &is("make"), &is("model")),
             "(none) Orb (7), Ardent Vale/X (5), Quellmark Tessel (3,000)"

@@ -169,14 +169,12 @@ pub enum ImportError {
         message: String,
     },
     /// No partition of a dataset holds the make and model asked for.
-    #[error("{folder}: no partition holds {make} {model}; the dataset holds {available}")]
+    #[error("{folder}: no partition holds {models}; the dataset holds {available}")]
     ModelNotInDataset {
         /// The dataset's folder.
         folder: String,
-        /// Make asked for.
-        make: String,
-        /// Model asked for.
-        model: String,
+        /// The makes and models asked for.
+        models: String,
         /// The makes and models its folders name, with their rows.
         available: String,
     },
@@ -204,12 +202,13 @@ fn summary_of(report: &ImportReport) -> String {
     s
 }
 
-/// Imports a market: a CSV file, or a Parquet file or folder (see [`dataset`]). With `wanted`,
-/// a partitioned Parquet market is read only for that make and model; a CSV file is read whole.
+/// Imports a market: a CSV file, or a Parquet file or folder (see [`dataset`]). With makes and
+/// models in `wanted`, a partitioned Parquet market is read only for them; a CSV file is read
+/// whole.
 pub fn import_market(
     path: &Path,
     options: &ImportOptions,
-    wanted: Option<(&str, &str)>,
+    wanted: &[(String, String)],
 ) -> Result<(Market, ImportReport), ImportError> {
     if dataset::is_parquet_market(path) {
         parquet::import_parquet(path, options, wanted)
@@ -342,7 +341,7 @@ fn import_planned(
         file_name: file,
         rows_read: report.rows_read,
         content_hash: hash,
-        model_read: None,
+        models_read: Vec::new(),
     };
     Ok((market, report))
 }

@@ -38,10 +38,9 @@ pub fn find_market_file(
         None => session.market.location.candidates(session_path),
     };
     for candidate in &candidates {
-        if let Ok(bytes) = std::fs::read(candidate) {
+        if let Some(hash) = fingerprint(candidate, session) {
             // Shown to people: "/cases/market.csv", not "/cases/claims/../market.csv".
             let candidate = &std::fs::canonicalize(candidate).unwrap_or_else(|_| candidate.clone());
-            let hash = content_hash(&bytes);
             return if hash == session.market.source.content_hash {
                 MarketFile::Unchanged(candidate.clone())
             } else {
@@ -54,5 +53,15 @@ pub fn find_market_file(
     }
     MarketFile::Missing {
         looked_at: candidates.into_iter().next(),
+    }
+}
+
+/// The fingerprint of the market at `path` as the session's market was read: a CSV file's bytes,
+/// or a Parquet dataset's files (only the models the session's market was read for).
+fn fingerprint(path: &Path, session: &Session) -> Option<String> {
+    if crate::import::dataset::is_parquet_market(path) && path.exists() {
+        crate::import::parquet_fingerprint(path, &session.market.source.models_read).ok()
+    } else {
+        std::fs::read(path).ok().map(|bytes| content_hash(&bytes))
     }
 }
