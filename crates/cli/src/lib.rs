@@ -128,7 +128,7 @@ fn run(cli: Cli) -> Result<ExitCode> {
             delimiter,
             odometer,
             json,
-        } => convert(&file, &out, &load::import_options(delimiter, odometer), json),
+        } => convert(&file, &out, load::import_options(delimiter, odometer), json),
         Command::Appraise(mut args) => {
             date_of_loss_is_the_appraisal_date(&mut args)?;
             if let Some(path) = &args.session {
@@ -256,10 +256,10 @@ fn demo_market(rows: u64, seed: u64, out: &std::path::Path) -> Result<()> {
 fn convert(
     file: &std::path::Path,
     out: &std::path::Path,
-    options: &model::import::ImportOptions,
+    options: model::import::ImportOptions,
     json: bool,
 ) -> Result<()> {
-    let done = model::convert::convert_csv(file, out, options, model::convert::BLOCK_BYTES)?;
+    let done = model::convert::convert_csv(file, out, &options, model::convert::BLOCK_BYTES)?;
     let doc = output::ConversionDocument {
         out: out.display().to_string(),
         rows_written: done.rows_written,

@@ -6,8 +6,8 @@ use model::adjustment::describe;
 use model::format::{money, signed_money, thousands};
 
 use crate::output::{
-    AppraisalDocument, ConversionDocument, BacktestDocument, DepreciationDocument, FitSummary, GapsDocument,
-    ImportSummary,
+    AppraisalDocument, BacktestDocument, ConversionDocument, DepreciationDocument, FitSummary,
+    GapsDocument, ImportSummary,
 };
 
 pub fn conversion(d: &ConversionDocument) -> String {
@@ -25,13 +25,17 @@ pub fn conversion(d: &ConversionDocument) -> String {
     o
 }
 
-pub fn import(s: &ImportSummary) -> String {
-    let mut o = String::new();
-    let form = if s.parquet_files_read > 0 {
+/// "Parquet, 3 files read, 6 of other models not opened" or "comma separated".
+fn source_form(s: &ImportSummary) -> String {
+    if s.parquet_files_read > 0 {
         format!(
             "Parquet, {} {} read{}",
             thousands(s.parquet_files_read as f64),
-            if s.parquet_files_read == 1 { "file" } else { "files" },
+            if s.parquet_files_read == 1 {
+                "file"
+            } else {
+                "files"
+            },
             if s.parquet_files_skipped > 0 {
                 format!(
                     ", {} of other models not opened",
@@ -43,7 +47,12 @@ pub fn import(s: &ImportSummary) -> String {
         )
     } else {
         format!("{} separated", s.delimiter)
-    };
+    }
+}
+
+pub fn import(s: &ImportSummary) -> String {
+    let mut o = String::new();
+    let form = source_form(s);
     let _ = writeln!(
         o,
         "Market: {} ({form}, odometer in {}): {} rows read, {} used, {} rejected",

@@ -137,13 +137,11 @@ pub fn convert_csv(
         let cut = if at_end {
             chunk.len()
         } else {
-            match last_record_end(&chunk) {
-                Some(end) => end + 1,
-                None => {
-                    carry = chunk;
-                    continue;
-                }
-            }
+            let Some(end) = last_record_end(&chunk) else {
+                carry = chunk;
+                continue;
+            };
+            end + 1
         };
         carry = chunk.split_off(cut);
         let lines_in_block = memchr::memchr_iter(b'\n', &chunk).count() as u64;
@@ -170,7 +168,7 @@ pub fn convert_csv(
         block += 1;
     }
     whole.rows_used = writer.rows;
-    whole.file_name = file_name.clone();
+    whole.file_name.clone_from(&file_name);
     if writer.rows == 0 {
         return Err(ImportError::NoUsableRows {
             file: file_name,
@@ -218,11 +216,11 @@ fn last_record_end(bytes: &[u8]) -> Option<usize> {
 /// Adds a block's report (its lines shifted by `shift`) to the whole file's.
 fn add_report(whole: &mut ImportReport, block: ImportReport, shift: u64) {
     if whole.file_name.is_empty() {
-        whole.file_name = block.file_name.clone();
-        whole.delimiter = block.delimiter.clone();
-        whole.odometer_unit = block.odometer_unit.clone();
+        whole.file_name.clone_from(&block.file_name);
+        whole.delimiter.clone_from(&block.delimiter);
+        whole.odometer_unit.clone_from(&block.odometer_unit);
         whole.column_map = block.column_map.clone();
-        whole.ignored_columns = block.ignored_columns.clone();
+        whole.ignored_columns.clone_from(&block.ignored_columns);
     }
     whole.rows_read += block.rows_read;
     whole.condition_inferred += block.condition_inferred;
@@ -265,7 +263,7 @@ fn add_report(whole: &mut ImportReport, block: ImportReport, shift: u64) {
     }
     whole
         .options_found
-        .sort_by(|a, b| b.listings.cmp(&a.listings));
+        .sort_by_key(|o| std::cmp::Reverse(o.listings));
 }
 
 /// A block's error with its lines made the file's.
@@ -375,8 +373,7 @@ pub fn write_rows(path: &Path, market: &Market, rows: &[usize]) -> Result<(), St
             .build(),
     );
     let file = std::fs::File::create(path).map_err(|e| e.to_string())?;
-    let mut writer =
-        SerializedFileWriter::new(file, schema, props).map_err(|e| e.to_string())?;
+    let mut writer = SerializedFileWriter::new(file, schema, props).map_err(|e| e.to_string())?;
     let mut group = writer.next_row_group().map_err(|e| e.to_string())?;
     let mut index = 0usize;
     while let Some(mut column) = group.next_column().map_err(|e| e.to_string())? {
@@ -583,7 +580,10 @@ mod tests {
         // The whole file's report: the same rows rejected on the same lines, the same drops.
         assert!(csv_report.rejected.len() > 50);
         assert_eq!(done.report.rejected, csv_report.rejected);
-        assert_eq!(done.report.rejected_by_reason, csv_report.rejected_by_reason);
+        assert_eq!(
+            done.report.rejected_by_reason,
+            csv_report.rejected_by_reason
+        );
         assert_eq!(done.report.dropped_values, csv_report.dropped_values);
         assert_eq!(done.report.rows_read, csv_report.rows_read);
         // Converting again into the same folder is refused rather than mixing two datasets.
@@ -604,7 +604,9 @@ mod tests {
                 .find_segment(make, model)
                 .unwrap_or_else(|| panic!("{make} {model}"));
             let a: Vec<Listing> = (0..csv_market.len())
-                .filter(|&r| csv_market.make[r] == segment.make && csv_market.model[r] == segment.model)
+                .filter(|&r| {
+                    csv_market.make[r] == segment.make && csv_market.model[r] == segment.model
+                })
                 .map(|r| without_place(&csv_market.listing(r)))
                 .collect();
             let b: Vec<Listing> = (0..lake.len())
@@ -618,8 +620,9 @@ mod tests {
         }
 
         // One model: only its folder is opened, and the fingerprint can be found again.
-        let (one, one_report) = import_parquet(&out, &options, &[("QUELLMARK".into(), "tessel".into())])
-            .unwrap_or_else(|e| panic!("{e}"));
+        let (one, one_report) =
+            import_parquet(&out, &options, &[("QUELLMARK".into(), "tessel".into())])
+                .unwrap_or_else(|e| panic!("{e}"));
         assert_eq!(one.segments().len(), 1);
         assert!(one_report.parts_skipped > 0);
         assert!(
@@ -630,7 +633,9 @@ mod tests {
         );
         assert_eq!(one.source.models_read.len(), 1);
         assert_eq!(
-            parquet_fingerprint(&out, &one.source.models_read).ok().as_deref(),
+            parquet_fingerprint(&out, &one.source.models_read)
+                .ok()
+                .as_deref(),
             Some(one.source.content_hash.as_str())
         );
         // Rows are numbered across the dataset in path order, whichever files were read.
@@ -644,7 +649,10 @@ mod tests {
         assert_eq!(one.line[0], first.first_row);
         let missing = import_parquet(&out, &options, &[("Quellmark".into(), "Nope".into())]);
         let message = missing.err().map(|e| e.to_string()).unwrap_or_default();
-        assert!(message.contains("no partition holds Quellmark Nope; the dataset holds"), "{message}");
+        assert!(
+            message.contains("no partition holds Quellmark Nope; the dataset holds"),
+            "{message}"
+        );
         std::fs::remove_dir_all(&dir).ok();
     }
 
@@ -678,15 +686,33 @@ mod tests {
         let mut k = 0;
         while let Some(mut c) = g.next_column().unwrap_or_else(|e| panic!("{e}")) {
             let r = match k {
-                0 => c.typed::<ByteArrayType>().write_batch(&years, Some(&all), None),
-                1 => c
+                0 => c
                     .typed::<ByteArrayType>()
-                    .write_batch(&["Vale", "Vale", "Vale"].map(text), Some(&[1, 1, 0, 1]), None),
-                2 => c.typed::<DoubleType>().write_batch(&[21_000.0, 20_000.0, 19_000.0, -5.0], Some(&all), None),
-                3 => c.typed::<Int64Type>().write_batch(&[30_000, 31_000, 32_000, 33_000], Some(&all), None),
+                    .write_batch(&years, Some(&all), None),
+                1 => c.typed::<ByteArrayType>().write_batch(
+                    &["Vale", "Vale", "Vale"].map(text),
+                    Some(&[1, 1, 0, 1]),
+                    None,
+                ),
+                2 => c.typed::<DoubleType>().write_batch(
+                    &[21_000.0, 20_000.0, 19_000.0, -5.0],
+                    Some(&all),
+                    None,
+                ),
+                3 => c.typed::<Int64Type>().write_batch(
+                    &[30_000, 31_000, 32_000, 33_000],
+                    Some(&all),
+                    None,
+                ),
                 // 2026-03-01T10:00Z and an instant far outside any calendar.
-                4 => c.typed::<Int64Type>().write_batch(&[1_772_359_200_000, i64::MAX], Some(&[1, 0, 0, 1]), None),
-                _ => c.typed::<ByteArrayType>().write_batch(&[], Some(&[0; 4]), None),
+                4 => c.typed::<Int64Type>().write_batch(
+                    &[1_772_359_200_000, i64::MAX],
+                    Some(&[1, 0, 0, 1]),
+                    None,
+                ),
+                _ => c
+                    .typed::<ByteArrayType>()
+                    .write_batch(&[], Some(&[0; 4]), None),
             };
             r.unwrap_or_else(|e| panic!("{e}"));
             c.close().unwrap_or_else(|e| panic!("{e}"));
@@ -703,8 +729,15 @@ mod tests {
             import_parquet(&dir, &options, &[]).unwrap_or_else(|e| panic!("{e}"));
         std::fs::remove_dir_all(&dir).ok();
         assert_eq!(market.len(), 1);
-        assert_eq!(market.names.name(market.make[0]), "Ardent", "from the folder");
-        assert_eq!(market.listed_on[0], chrono::NaiveDate::from_ymd_opt(2026, 3, 1));
+        assert_eq!(
+            market.names.name(market.make[0]),
+            "Ardent",
+            "from the folder"
+        );
+        assert_eq!(
+            market.listed_on[0],
+            chrono::NaiveDate::from_ymd_opt(2026, 3, 1)
+        );
         assert_eq!(report.ignored_columns, ["colour"]);
         let rejected: Vec<(String, &str)> = report
             .rejected
@@ -715,8 +748,14 @@ mod tests {
             rejected,
             [
                 ("make=Ardent/feed.parquet, row 2".to_owned(), "not_a_number"),
-                ("make=Ardent/feed.parquet, row 3".to_owned(), "missing_value"),
-                ("make=Ardent/feed.parquet, row 4".to_owned(), "price_out_of_range"),
+                (
+                    "make=Ardent/feed.parquet, row 3".to_owned(),
+                    "missing_value"
+                ),
+                (
+                    "make=Ardent/feed.parquet, row 4".to_owned(),
+                    "price_out_of_range"
+                ),
             ]
         );
     }
@@ -726,14 +765,20 @@ mod tests {
         let dir = scratch("damaged");
         std::fs::create_dir_all(dir.join("make=A")).unwrap_or_else(|e| panic!("{e}"));
         let options = ImportOptions::default();
-        let empty = import_parquet(&dir, &options, &[]).err().map(|e| e.to_string());
+        let empty = import_parquet(&dir, &options, &[])
+            .err()
+            .map(|e| e.to_string());
         assert!(empty.is_some_and(|m| m.contains("no .parquet files")));
         std::fs::write(dir.join("make=A/part-0.parquet"), b"PAR1 not really")
             .unwrap_or_else(|e| panic!("{e}"));
-        let damaged = import_parquet(&dir, &options, &[]).err().map(|e| e.to_string());
+        let damaged = import_parquet(&dir, &options, &[])
+            .err()
+            .map(|e| e.to_string());
         std::fs::remove_dir_all(&dir).ok();
         assert!(
-            damaged.as_deref().is_some_and(|m| m.starts_with("make=A/part-0.parquet: cannot be read as Parquet")),
+            damaged
+                .as_deref()
+                .is_some_and(|m| m.starts_with("make=A/part-0.parquet: cannot be read as Parquet")),
             "{damaged:?}"
         );
     }

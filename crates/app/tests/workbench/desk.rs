@@ -480,7 +480,10 @@ fn a_parquet_folder_opens_like_its_csv_dropped_typed_or_from_recent() {
     let wb = harness.state();
     let market = wb.runtime().market.as_ref().expect("the folder opened");
     assert_eq!(market.source.file_name, "lake");
-    assert_eq!(market.len(), from_csv.runtime().market.as_ref().unwrap().len());
+    assert_eq!(
+        market.len(),
+        from_csv.runtime().market.as_ref().unwrap().len()
+    );
     assert!(
         (indicated(wb) - expected).abs() < 0.005,
         "{} against {expected}",
@@ -510,7 +513,12 @@ fn a_parquet_folder_opens_like_its_csv_dropped_typed_or_from_recent() {
     harness.state_mut().wait_for_jobs();
     harness.run_steps(2);
     assert_eq!(
-        harness.state().runtime().market.as_ref().map(|m| m.source.file_name.clone()),
+        harness
+            .state()
+            .runtime()
+            .market
+            .as_ref()
+            .map(|m| m.source.file_name.clone()),
         Some("lake".to_owned())
     );
     std::fs::remove_dir_all(&dir).ok();

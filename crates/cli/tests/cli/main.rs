@@ -9,4 +9,5 @@ mod commands;
 mod common;
 mod desk;
 mod fuzz;
+mod lake;
 mod sessions;

@@ -6,6 +6,7 @@
 //! across the whole dataset and fingerprinting what was read.
 
 use std::collections::BTreeMap;
+use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
 use crate::vocabulary::name_key;
@@ -59,10 +60,23 @@ pub fn part_files(root: &Path) -> std::io::Result<Vec<PartFile>> {
             || root.display().to_string(),
             |n| n.to_string_lossy().into_owned(),
         );
+        // A file taken from a partitioned folder keeps the values its folders give it.
+        let partition = root
+            .ancestors()
+            .skip(1)
+            .map_while(|dir| {
+                let folder = dir.file_name()?.to_string_lossy().into_owned();
+                let (k, v) = folder.split_once('=')?;
+                Some((unescape(k), (v != NULL_PARTITION).then(|| unescape(v))))
+            })
+            .collect::<Vec<_>>()
+            .into_iter()
+            .rev()
+            .collect();
         return Ok(vec![PartFile {
             path: root.to_owned(),
             relative: name,
-            partition: Vec::new(),
+            partition,
         }]);
     }
     let mut found = Vec::new();
@@ -124,7 +138,7 @@ pub fn escape(value: &str) -> String {
         if must_escape(c) {
             let mut buf = [0u8; 4];
             for b in c.encode_utf8(&mut buf).bytes() {
-                out.push_str(&format!("%{b:02X}"));
+                let _ = write!(out, "%{b:02X}");
             }
         } else {
             out.push(c);
@@ -219,7 +233,14 @@ mod tests {
 
     #[test]
     fn partition_values_survive_escaping() {
-        for value in ["Quellmark", "Ardent/Vale", "50% off", "a=b:c", "Évreux #2", "x\ty"] {
+        for value in [
+            "Quellmark",
+            "Ardent/Vale",
+            "50% off",
+            "a=b:c",
+            "Évreux #2",
+            "x\ty",
+        ] {
             let folder = escape(value);
             assert!(!folder.contains('/') && !folder.contains('='), "{folder}");
             assert_eq!(unescape(&folder), value);
@@ -238,7 +259,10 @@ mod tests {
             ("make=Quellmark/model=Tessel", "part-1.parquet"),
             ("make=Quellmark/model=Tessel", "part-0.parquet"),
             ("make=Ardent/model=Vale%2FX", "data_0.parquet"),
-            ("make=__HIVE_DEFAULT_PARTITION__/model=Orb", "data_0.parquet"),
+            (
+                "make=__HIVE_DEFAULT_PARTITION__/model=Orb",
+                "data_0.parquet",
+            ),
             ("make=Ardent/model=Vale%2FX", "_SUCCESS"),
             ("make=Ardent/model=Vale%2FX", ".part.crc"),
         ] {

@@ -120,6 +120,18 @@ pub enum ImportError {
         /// A hint, such as another delimiter that would work.
         hint: String,
     },
+    /// A Parquet file lacks required columns (neither stored nor given by its folders).
+    #[error(
+        "{file}: missing required column(s) {missing}; the file's columns are {found} (make and model may also come from make=…/model=… folders)"
+    )]
+    MissingParquetColumns {
+        /// The file, from the dataset's root.
+        file: String,
+        /// Canonical names of the missing fields, comma separated.
+        missing: String,
+        /// The columns found, comma separated.
+        found: String,
+    },
     /// Two headers map to the same field.
     #[error("{file}: line 1: columns '{first}' and '{second}' both mean {field}; keep one")]
     DuplicateColumn {

@@ -99,34 +99,10 @@ pub fn import_parquet(
         market.append(part.market);
         issues.append(part.issues);
     }
-    let merged_spellings = market.merge_spellings();
-    report.file_name = name.clone();
-    report.delimiter = "Parquet".into();
-    report.rows_read = issues.rows_read;
-    report.merged_spellings = merged_spellings;
-    report.condition_inferred = issues.condition_inferred;
+    report.merged_spellings = market.merge_spellings();
+    report.file_name.clone_from(&name);
     report.parts_skipped = files.len() - jobs.len();
-    for (line, reason) in issues.rejected {
-        report.reject(line, reason);
-    }
-    let places: Vec<Option<String>> = report
-        .rejected
-        .iter()
-        .map(|r| report.place_of(r.line))
-        .collect();
-    for (r, place) in report.rejected.iter_mut().zip(places) {
-        r.place = place;
-    }
-    report.dropped_values = issues.dropped;
-    for d in &mut report.dropped_values {
-        d.place = report
-            .parts_read
-            .iter()
-            .find(|p| d.line >= p.first_row && d.line < p.first_row + p.rows)
-            .map(|p| format!("{}, row {}", p.file, d.line - p.first_row + 1));
-    }
-    report.rows_used = market.len();
-    report.options_found = crate::equipment::count(&market, None);
+    finish_report(&mut report, issues, &market);
     if market.is_empty() {
         return Err(ImportError::NoUsableRows {
             file: name,
@@ -144,6 +120,36 @@ pub fn import_parquet(
         models_read: if pruned { wanted.to_vec() } else { Vec::new() },
     };
     Ok((market, report))
+}
+
+/// Adds what the rows gave to the report, each rejected row and dropped value with its file and
+/// row.
+fn finish_report(report: &mut ImportReport, issues: RowIssues, market: &Market) {
+    report.delimiter = "Parquet".into();
+    report.rows_read = issues.rows_read;
+    report.condition_inferred = issues.condition_inferred;
+    for (line, reason) in issues.rejected {
+        report.reject(line, reason);
+    }
+    let places: Vec<Option<String>> = report
+        .rejected
+        .iter()
+        .map(|r| report.place_of(r.line))
+        .collect();
+    for (r, place) in report.rejected.iter_mut().zip(places) {
+        r.place = place;
+    }
+    let places: Vec<Option<String>> = issues
+        .dropped
+        .iter()
+        .map(|d| report.place_of(d.line))
+        .collect();
+    report.dropped_values = issues.dropped;
+    for (d, place) in report.dropped_values.iter_mut().zip(places) {
+        d.place = place;
+    }
+    report.rows_used = market.len();
+    report.options_found = crate::equipment::count(market, None);
 }
 
 /// The fingerprint of a Parquet market as it was read: every file's path and size, and the
@@ -208,10 +214,7 @@ fn footer_rows(files: &[PartFile]) -> Result<Vec<u64>, ImportError> {
 
 /// Runs the Parquet decoder, turning its errors, and any panic inside it on a damaged file,
 /// into an error that names the file.
-fn guarded<T>(
-    file: &str,
-    work: impl FnOnce() -> Result<T, String>,
-) -> Result<T, ImportError> {
+fn guarded<T>(file: &str, work: impl FnOnce() -> Result<T, String>) -> Result<T, ImportError> {
     let outcome = std::panic::catch_unwind(std::panic::AssertUnwindSafe(work))
         .unwrap_or_else(|_| Err("the file is damaged (the Parquet decoder gave up)".to_owned()));
     outcome.map_err(|message| ImportError::Parquet {
@@ -303,7 +306,10 @@ fn read_file(
         }
     }
     for (key, value) in &file.partition {
-        if !names.iter().any(|n| normalize_header(n) == normalize_header(key)) {
+        if !names
+            .iter()
+            .any(|n| normalize_header(n) == normalize_header(key))
+        {
             names.push(key.clone());
             sources.push(Source::Partition(value.clone()));
         }
@@ -311,7 +317,7 @@ fn read_file(
     let mapping = map_names(&file.relative, names.clone(), options)?;
     let missing = missing_fields(&mapping);
     if !missing.is_empty() {
-        return Err(ImportError::MissingColumns {
+        return Err(ImportError::MissingParquetColumns {
             file: file.relative.clone(),
             missing: missing.join(", "),
             found: names
@@ -319,7 +325,6 @@ fn read_file(
                 .map(|h| format!("'{h}'"))
                 .collect::<Vec<_>>()
                 .join(", "),
-            hint: String::new(),
         });
     }
     // Only the mapped columns are decoded: the frame holds them in the mapping's order.
@@ -345,27 +350,8 @@ fn read_file(
         let group_rows = usize::try_from(reader.metadata().row_group(g).num_rows()).unwrap_or(0);
         let df = guarded(&file.relative, || {
             let group = reader.get_row_group(g).map_err(|e| e.to_string())?;
-            let mut columns: Vec<Column> = Vec::with_capacity(projected.len());
-            for (k, (_, i, _)) in projected.iter().enumerate() {
-                let name = PlSmallStr::from(format!("field_{k}"));
-                let text = match &sources[*i] {
-                    Source::Stored(c) => {
-                        let descr = schema.column(*c);
-                        let reader = group.get_column_reader(*c).map_err(|e| e.to_string())?;
-                        column_text(reader, &descr, group_rows, name)
-                            .map_err(|e| format!("column '{}': {e}", descr.name()))?
-                    }
-                    Source::Partition(value) => {
-                        let mut b = StringChunkedBuilder::new(name, group_rows);
-                        for _ in 0..group_rows {
-                            b.append_option(value.as_deref());
-                        }
-                        b.finish().into_column()
-                    }
-                };
-                columns.push(text);
-            }
-            DataFrame::new(group_rows, columns).map_err(|e| e.to_string())
+            let sources: Vec<&Source> = projected.iter().map(|(_, i, _)| &sources[*i]).collect();
+            group_frame(group.as_ref(), &schema, &sources, group_rows)
         })?;
         let start = first_row + row_in_file;
         let line_of = |row: usize| start + row as u64;
@@ -399,6 +385,36 @@ fn read_file(
             super::OdometerUnit::Kilometers => "kilometers".into(),
         },
     })
+}
+
+/// The text frame of one row group: a column per source, in order.
+fn group_frame(
+    group: &dyn parquet::file::reader::RowGroupReader,
+    schema: &parquet::schema::types::SchemaDescriptor,
+    sources: &[&Source],
+    rows: usize,
+) -> Result<DataFrame, String> {
+    let mut columns: Vec<Column> = Vec::with_capacity(sources.len());
+    for (k, source) in sources.iter().enumerate() {
+        let name = PlSmallStr::from(format!("field_{k}"));
+        let text = match source {
+            Source::Stored(c) => {
+                let descr = schema.column(*c);
+                let reader = group.get_column_reader(*c).map_err(|e| e.to_string())?;
+                column_text(reader, &descr, rows, name)
+                    .map_err(|e| format!("column '{}': {e}", descr.name()))?
+            }
+            Source::Partition(value) => {
+                let mut b = StringChunkedBuilder::new(name, rows);
+                for _ in 0..rows {
+                    b.append_option(value.as_deref());
+                }
+                b.finish().into_column()
+            }
+        };
+        columns.push(text);
+    }
+    DataFrame::new(rows, columns).map_err(|e| e.to_string())
 }
 
 /// How a stored column's values read as text.
@@ -447,7 +463,9 @@ fn column_text(
     let mut out = StringChunkedBuilder::new(name, rows);
     match (reader, reading) {
         (ColumnReader::Int32ColumnReader(r), Reading::Date) => {
-            fill(r, rows, max_def, &mut out, |v, s| date_text(i64::from(*v), s));
+            fill(r, rows, max_def, &mut out, |v, s| {
+                date_text(i64::from(*v), s);
+            });
         }
         (ColumnReader::Int32ColumnReader(r), Reading::Decimal(scale)) => {
             fill(r, rows, max_def, &mut out, |v, s| {
@@ -455,7 +473,8 @@ fn column_text(
             });
         }
         (ColumnReader::Int32ColumnReader(r), _) => {
-            let unsigned = matches!(descr.logical_type_ref(), Some(LogicalType::Integer(t)) if !t.is_signed);
+            let unsigned =
+                matches!(descr.logical_type_ref(), Some(LogicalType::Integer(t)) if !t.is_signed);
             fill(r, rows, max_def, &mut out, |v, s| {
                 if unsigned {
                     let _ = write!(s, "{}", *v as u32);
@@ -475,7 +494,8 @@ fn column_text(
             });
         }
         (ColumnReader::Int64ColumnReader(r), _) => {
-            let unsigned = matches!(descr.logical_type_ref(), Some(LogicalType::Integer(t)) if !t.is_signed);
+            let unsigned =
+                matches!(descr.logical_type_ref(), Some(LogicalType::Integer(t)) if !t.is_signed);
             fill(r, rows, max_def, &mut out, |v, s| {
                 if unsigned {
                     let _ = write!(s, "{}", *v as u64);
@@ -493,10 +513,14 @@ fn column_text(
             });
         }
         (ColumnReader::FloatColumnReader(r), _) => {
-            fill(r, rows, max_def, &mut out, |v, s| float_text(f64::from(*v), s));
+            fill(r, rows, max_def, &mut out, |v, s| {
+                float_text(f64::from(*v), s);
+            });
         }
         (ColumnReader::DoubleColumnReader(r), _) => {
-            fill(r, rows, max_def, &mut out, |v, s| float_text(*v, s));
+            fill(r, rows, max_def, &mut out, |v, s| {
+                float_text(*v, s);
+            });
         }
         (ColumnReader::BoolColumnReader(r), _) => {
             fill(r, rows, max_def, &mut out, |v, s| {
@@ -551,12 +575,7 @@ fn fill<T: ParquetType>(
         values.clear();
         defs.clear();
         let want = (rows - read).min(1 << 16);
-        let got = reader.read_records(
-            want,
-            (max_def > 0).then_some(&mut defs),
-            None,
-            &mut values,
-        );
+        let got = reader.read_records(want, (max_def > 0).then_some(&mut defs), None, &mut values);
         let Ok((records, _, _)) = got else {
             return;
         };
