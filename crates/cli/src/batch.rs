@@ -65,7 +65,23 @@ pub fn run(args: &BatchArgs) -> Result<()> {
             eprint!("\rappraised {done} of {total}");
         }
     };
-    let appraised = appraise_all(&loaded.market, &rows, &fits, &template, &progress);
+    let folder = args
+        .subjects
+        .parent()
+        .map(std::path::Path::to_path_buf)
+        .unwrap_or_default();
+    let purposes: Vec<model::batch::RowPurpose> = rows
+        .iter()
+        .map(|r| row_purpose(r, &folder, args.appraise.profiles.as_deref()))
+        .collect();
+    let appraised = appraise_all(
+        &loaded.market,
+        &rows,
+        &fits,
+        &template,
+        &purposes,
+        &progress,
+    );
     if terminal {
         eprintln!();
     }
@@ -103,6 +119,23 @@ pub fn run(args: &BatchArgs) -> Result<()> {
     Ok(())
 }
 
+/// A row's purpose: its `worksheet` file read as a claim worksheet (it names a profile) or a
+/// trade-in worksheet, relative to the subjects file's folder; a value only without one.
+fn row_purpose(
+    row: &model::batch::SubjectRow,
+    folder: &std::path::Path,
+    profiles: Option<&std::path::Path>,
+) -> model::batch::RowPurpose {
+    let Some(file) = &row.worksheet else {
+        return Ok(model::session::Purpose::Value);
+    };
+    let path = folder.join(file);
+    crate::session::read_worksheet(&path, profiles).map_err(|e| {
+        let chain: Vec<String> = e.chain().map(ToString::to_string).collect();
+        chain.join(": ")
+    })
+}
+
 /// One session file per appraised subject, named by its id (characters other than letters,
 /// digits, '-' and '_' replaced).
 fn write_sessions(
@@ -112,10 +145,11 @@ fn write_sessions(
     appraised: &[model::batch::Appraised<'_>],
 ) -> Result<()> {
     std::fs::create_dir_all(dir).with_context(|| format!("cannot create {}", dir.display()))?;
-    let purpose = model::session::Purpose::Value;
     let mut written = 0;
     for a in appraised {
-        let (Some(fit), Some(request), Some(appraisal)) = (a.fit, &a.request, &a.appraisal) else {
+        let (Some(fit), Some(request), Some(appraisal), Some(purpose)) =
+            (a.fit, &a.request, &a.appraisal, &a.purpose)
+        else {
             continue;
         };
         let session = crate::session::capture(
@@ -125,7 +159,7 @@ fn write_sessions(
                 fit,
                 request,
                 appraisal,
-                purpose: &purpose,
+                purpose,
             },
         )?;
         let name: String = a

@@ -73,6 +73,30 @@ pub fn purpose(args: &AppraiseArgs, request: &mut AppraisalRequest) -> Result<Pu
     Ok(Purpose::Value)
 }
 
+/// A worksheet file read as the purpose it states: a claim worksheet names its profile, a
+/// trade-in worksheet does not.
+pub fn read_worksheet(path: &Path, profiles: Option<&Path>) -> Result<Purpose> {
+    let text =
+        std::fs::read_to_string(path).with_context(|| format!("cannot read {}", path.display()))?;
+    if text.contains("profile_id") {
+        let inputs: ClaimInputs = read_ron(path, "claim worksheet")?;
+        let profiles = load_profiles(profiles)?;
+        let profile = profiles
+            .get(&inputs.profile_id)
+            .cloned()
+            .ok_or_else(|| {
+                anyhow!(
+                    "claim worksheet {}: no profile \"{}\"",
+                    path.display(),
+                    inputs.profile_id
+                )
+            })?;
+        Ok(Purpose::Claim { profile, inputs })
+    } else {
+        Ok(Purpose::TradeIn(read_ron(path, "trade-in worksheet")?))
+    }
+}
+
 fn now() -> DateTime<Utc> {
     DateTime::<Utc>::from(std::time::SystemTime::now())
 }

@@ -15,6 +15,7 @@ use crate::clean::Overrides;
 use crate::condition::Condition;
 use crate::import::headers::{Field, field_for, normalize_header};
 use crate::market::{Market, Segment};
+use crate::session::{Purpose, WorksheetOutcome, work_out};
 use crate::subject::Subject;
 
 /// One subject row of the file: its id, its line, and the subject or why it cannot be read.
@@ -26,6 +27,9 @@ pub struct SubjectRow {
     pub line: u64,
     /// The subject, or what was wrong with the row.
     pub subject: Result<Subject, String>,
+    /// The `worksheet` column: a trade-in or claim worksheet file (RON) for this subject, as
+    /// written (relative paths are from the subjects file's folder).
+    pub worksheet: Option<String>,
 }
 
 /// Why a subjects file cannot be read at all.
@@ -40,6 +44,9 @@ pub enum SubjectsError {
     #[error("the subjects file is empty")]
     Empty,
 }
+
+/// The subjects file's column naming each row's worksheet file.
+pub const WORKSHEET_COLUMN: &str = "worksheet";
 
 /// Splits one CSV record on `delimiter`, honouring double quotes ("" is a quote inside).
 fn split_record(line: &str, delimiter: char) -> Vec<String> {
@@ -98,6 +105,7 @@ pub fn read_subjects(text: &str) -> Result<Vec<SubjectRow>, SubjectsError> {
         find(Field::Vin),
         find(Field::Options),
     );
+    let worksheet = columns.iter().position(|c| c == WORKSHEET_COLUMN);
     Ok(lines
         .filter(|(_, l)| !l.trim().is_empty())
         .map(|(i, l)| {
@@ -152,6 +160,7 @@ pub fn read_subjects(text: &str) -> Result<Vec<SubjectRow>, SubjectsError> {
                 id: cell(Some(id)).unwrap_or_default().to_owned(),
                 line,
                 subject,
+                worksheet: cell(worksheet).map(str::to_owned),
             }
         })
         .collect())
@@ -180,7 +189,14 @@ pub struct BatchResult {
     pub age_form: Option<String>,
     /// The warnings' codes.
     pub warnings: Vec<&'static str>,
-    /// Why the subject has no value.
+    /// What the value is for: "Market value", "Trade-in offer" or "Total-loss claim".
+    pub purpose: &'static str,
+    /// The worksheet's bottom line: the ACV offer of a trade-in, the settlement payment of a
+    /// claim.
+    pub bottom_line: Option<f64>,
+    /// A claim's total-loss verdict under its profile's rule.
+    pub total_loss: Option<bool>,
+    /// Why the subject has no value (or its worksheet no bottom line).
     pub error: Option<String>,
 }
 
@@ -196,6 +212,8 @@ pub struct Appraised<'a> {
     pub request: Option<AppraisalRequest>,
     /// The appraisal.
     pub appraisal: Option<Appraisal>,
+    /// What it was for.
+    pub purpose: Option<Purpose>,
 }
 
 /// Cleans and fits, once each with `settings`, every segment the readable subjects of `rows`
@@ -225,28 +243,39 @@ pub fn fit_segments(
         .collect()
 }
 
+/// Each row's purpose: a value only, or its worksheet's (or why that could not be read).
+pub type RowPurpose = Result<Purpose, String>;
+
 /// Appraises every subject of `rows` against the segments' `fits` with `template`'s rules and
-/// level, on every core; `progress` is told how many are done.
+/// level, on every core, each for its purpose in `purposes` (by row; a missing entry is a value
+/// only); `progress` is told how many are done.
 pub fn appraise_all<'a>(
     market: &Market,
     rows: &[SubjectRow],
     fits: &'a BTreeMap<Segment, Result<MarketFit, String>>,
     template: &AppraisalRequest,
+    purposes: &[RowPurpose],
     progress: &(dyn Fn(usize) + Sync),
 ) -> Vec<Appraised<'a>> {
     let done = std::sync::atomic::AtomicUsize::new(0);
-    let one = |row: &SubjectRow| -> Appraised<'a> {
-        let out = appraise_one(market, row, fits, template);
+    let value_only: RowPurpose = Ok(Purpose::Value);
+    let jobs: Vec<(&SubjectRow, &RowPurpose)> = rows
+        .iter()
+        .enumerate()
+        .map(|(i, row)| (row, purposes.get(i).unwrap_or(&value_only)))
+        .collect();
+    let one = |(row, purpose): &(&SubjectRow, &RowPurpose)| -> Appraised<'a> {
+        let out = appraise_one(market, row, fits, template, purpose);
         progress(done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1);
         out
     };
     let threads = std::thread::available_parallelism().map_or(1, std::num::NonZero::get);
-    if threads < 2 || rows.len() < 2 {
-        return rows.iter().map(one).collect();
+    if threads < 2 || jobs.len() < 2 {
+        return jobs.iter().map(one).collect();
     }
-    let per = rows.len().div_ceil(threads);
+    let per = jobs.len().div_ceil(threads);
     std::thread::scope(|s| {
-        let handles: Vec<_> = rows
+        let handles: Vec<_> = jobs
             .chunks(per)
             .map(|chunk| s.spawn(|| chunk.iter().map(one).collect::<Vec<_>>()))
             .collect();
@@ -265,6 +294,7 @@ fn appraise_one<'a>(
     row: &SubjectRow,
     fits: &'a BTreeMap<Segment, Result<MarketFit, String>>,
     template: &AppraisalRequest,
+    purpose: &RowPurpose,
 ) -> Appraised<'a> {
     let mut result = BatchResult {
         id: row.id.clone(),
@@ -281,6 +311,9 @@ fn appraise_one<'a>(
         comparables: None,
         age_form: None,
         warnings: Vec::new(),
+        purpose: purpose.as_ref().map_or("", Purpose::title),
+        bottom_line: None,
+        total_loss: None,
         error: None,
     };
     let failed = |mut result: BatchResult, why: String| {
@@ -291,6 +324,7 @@ fn appraise_one<'a>(
             fit: None,
             request: None,
             appraisal: None,
+            purpose: None,
         }
     };
     if row.id.is_empty() {
@@ -298,6 +332,10 @@ fn appraise_one<'a>(
     }
     let subject = match &row.subject {
         Ok(s) => s.clone(),
+        Err(why) => return failed(result, why.clone()),
+    };
+    let purpose = match purpose {
+        Ok(p) => p.clone(),
         Err(why) => return failed(result, why.clone()),
     };
     let fit = match find_segment(market, &subject.make, &subject.model)
@@ -311,10 +349,14 @@ fn appraise_one<'a>(
         Ok(fit) => fit,
         Err(why) => return failed(result, why),
     };
-    let request = AppraisalRequest {
+    let mut request = AppraisalRequest {
         subject: subject.clone(),
         ..template.clone()
     };
+    if let Purpose::Claim { profile, .. } = &purpose {
+        // A claim's comparables follow its profile's rules, as for one appraisal.
+        request.rules = profile.comparable_rules(&template.rules);
+    }
     match appraise(market, fit, &request) {
         Ok(a) => {
             result.indicated_value = Some(a.reconciliation.indicated_value);
@@ -324,12 +366,22 @@ fn appraise_one<'a>(
             result.comparables = Some(a.comparables.len());
             result.age_form = Some(fit.model.params().age_form.to_string());
             result.warnings = a.warnings.iter().map(|w| w.code.as_str()).collect();
+            match work_out(&purpose, &a, &request) {
+                Ok(outcome) => {
+                    result.bottom_line = outcome.bottom_line().map(|(_, c)| c.dollars());
+                    if let Some(WorksheetOutcome::Claim(c)) = &outcome.worksheet {
+                        result.total_loss = Some(c.verdict.total_loss);
+                    }
+                }
+                Err(e) => result.error = Some(format!("worksheet: {e}")),
+            }
             Appraised {
                 result,
                 subject: Some(subject),
                 fit: Some(fit),
                 request: Some(request),
                 appraisal: Some(a),
+                purpose: Some(purpose),
             }
         }
         Err(e) => failed(result, e.to_string()),
@@ -337,7 +389,7 @@ fn appraise_one<'a>(
 }
 
 /// The CSV header of [`to_csv`].
-pub const CSV_HEADER: &str = "id,line,subject,indicated_value,band_lower,band_upper,model_estimate,comparables,age_form,warnings,error";
+pub const CSV_HEADER: &str = "id,line,subject,indicated_value,band_lower,band_upper,model_estimate,comparables,age_form,warnings,purpose,bottom_line,total_loss,error";
 
 /// The results as CSV: one row per subject, money to the cent, warnings' codes separated by
 /// ";", fields quoted where needed.
@@ -365,6 +417,11 @@ pub fn to_csv(results: &[BatchResult]) -> String {
             r.comparables.map(|c| c.to_string()).unwrap_or_default(),
             r.age_form.clone().unwrap_or_default(),
             quote(&r.warnings.join(";")),
+            quote(r.purpose),
+            money(r.bottom_line),
+            r.total_loss
+                .map(|t| if t { "yes" } else { "no" }.to_owned())
+                .unwrap_or_default(),
             quote(r.error.as_deref().unwrap_or("")),
         ];
         out.push_str(&fields.join(","));

@@ -432,3 +432,102 @@ fn a_batch_values_each_subject_as_appraise_does_and_names_the_rows_it_cannot() {
     assert_eq!(refused.status.code(), Some(1));
     std::fs::remove_dir_all(&dir).ok();
 }
+
+#[test]
+fn a_batch_row_with_a_worksheet_gets_its_offer_or_settlement_as_appraise_gives_it() {
+    let dir = std::env::temp_dir().join(format!("comptrail-cli-batch-ws-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(dir.join("sheets")).unwrap();
+    let trade_in = repo("sample-sessions/worksheets/dealer-trade-in.ron");
+    let claim = repo("sample-sessions/worksheets/total-loss-claim.ron");
+    std::fs::copy(&trade_in, dir.join("sheets/trade.ron")).unwrap();
+    std::fs::copy(&claim, dir.join("sheets/claim.ron")).unwrap();
+    std::fs::write(dir.join("sheets/broken.ron"), "(retail_value: ").unwrap();
+    let subjects = dir.join("subjects.csv");
+    // Worksheet paths are from the subjects file's folder.
+    std::fs::write(
+        &subjects,
+        "id,year,make,model,variant,miles,condition,worksheet\n\
+         D-1,2022,Quellmark,Tessel,Ambrel,41000,used,sheets/trade.ron\n\
+         C-1,2021,Quellmark,Brindle,Durnow,52300,used,sheets/claim.ron\n\
+         V-1,2022,Quellmark,Tessel,Ambrel,41000,used,\n\
+         X-1,2022,Quellmark,Tessel,Ambrel,41000,used,sheets/broken.ron\n\
+         X-2,2022,Quellmark,Tessel,Ambrel,41000,used,sheets/nowhere.ron\n",
+    )
+    .unwrap();
+    let market = repo("assets/demo-market.csv");
+    let sessions = dir.join("sessions");
+    let doc = json(&[
+        "batch",
+        &market,
+        "--as-of",
+        "2026-11-30",
+        "--subjects",
+        subjects.to_str().unwrap(),
+        "--sessions",
+        sessions.to_str().unwrap(),
+        "--json",
+    ]);
+    let values = doc["values"].as_array().unwrap();
+    let one = |subject: &str, purpose: &str, file: &str| {
+        json(&[
+            "appraise",
+            &market,
+            "--as-of",
+            "2026-11-30",
+            "--subject",
+            subject,
+            purpose,
+            file,
+            "--json",
+        ])
+    };
+    let dealer = one(
+        "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used",
+        "--trade-in",
+        &trade_in,
+    );
+    let offer = dealer["worksheet"]["trade_in"]["offer"]["offer"]
+        .as_f64()
+        .or_else(|| dealer["worksheet"]["trade_in"]["offer"].as_f64());
+    assert_eq!(values[0]["purpose"], "Trade-in offer");
+    assert!(offer.is_some(), "{}", dealer["worksheet"]);
+    assert_eq!(values[0]["bottom_line"].as_f64(), offer);
+    let adjuster = one(
+        "year=2021,make=Quellmark,model=Brindle,variant=Durnow,miles=52300,condition=used",
+        "--claim",
+        &claim,
+    );
+    assert_eq!(values[1]["purpose"], "Total-loss claim");
+    assert_eq!(
+        values[1]["indicated_value"].as_f64(),
+        adjuster["indicated_value"].as_f64(),
+        "the profile's comparable rules apply in a batch too"
+    );
+    assert!(values[1]["bottom_line"].as_f64().is_some());
+    assert_eq!(
+        values[1]["bottom_line"].as_f64(),
+        adjuster["worksheet"]["claim"]["settlement"]["payment"].as_f64(),
+        "{}",
+        adjuster["worksheet"]["claim"]["settlement"]
+    );
+    assert_eq!(
+        values[1]["total_loss"].as_bool(),
+        adjuster["worksheet"]["claim"]["verdict"]["total_loss"].as_bool()
+    );
+    assert_eq!(values[2]["purpose"], "Market value");
+    assert!(values[2]["bottom_line"].is_null());
+    for (row, why) in [(3, "trade-in worksheet"), (4, "cannot read")] {
+        let error = values[row]["error"].as_str().unwrap();
+        assert!(error.contains(why), "{error}");
+        assert!(values[row]["indicated_value"].is_null());
+    }
+    // The claim's session is a claim and reproduces.
+    let session = model::session::read_session(&sessions.join("C-1.ron")).unwrap();
+    assert!(matches!(
+        session.purpose,
+        model::session::Purpose::Claim { .. }
+    ));
+    assert!(model::session::reproduce(&session).unwrap().reproduces());
+    std::fs::remove_dir_all(&dir).ok();
+}
