@@ -3,7 +3,7 @@
 
 use std::collections::{BTreeMap, BTreeSet};
 
-use chrono::NaiveDate;
+use chrono::{Datelike, NaiveDate};
 use serde::{Deserialize, Serialize};
 
 use crate::clean::SegmentCleaning;
@@ -64,6 +64,22 @@ impl MileageRule {
             max_over: Some(a),
             max_under: Some(a),
         }
+    }
+
+    /// Within `rows` ordered by miles, the range that passes [`Self::check`]: the rows before
+    /// it fail by being under, the rows after by being over. The same comparisons as the check,
+    /// so the split agrees with it row for row.
+    #[must_use]
+    pub fn passing_range(&self, rows: &[CandidateRow], subject_miles: f64) -> (usize, usize) {
+        let under = self.max_under.map_or(0, |a| {
+            let limit = a.limit_for(subject_miles);
+            rows.partition_point(|c| subject_miles - c.miles > limit)
+        });
+        let over_from = self.max_over.map_or(rows.len(), |a| {
+            let limit = a.limit_for(subject_miles);
+            rows.partition_point(|c| c.miles - subject_miles <= limit)
+        });
+        (under.min(over_from), over_from)
     }
 
     /// Checks a comparable's mileage against the subject's; the broken limit on failure.
@@ -185,8 +201,8 @@ impl RuleBreak {
     pub fn code(&self) -> &'static str {
         match self {
             RuleBreak::ModelYearOutsideWindow { .. } => "model_year_outside_window",
-            RuleBreak::MilesOver { .. } => "miles_over_limit",
-            RuleBreak::MilesUnder { .. } => "miles_under_limit",
+            RuleBreak::MilesOver { .. } => MILES_OVER,
+            RuleBreak::MilesUnder { .. } => MILES_UNDER,
             RuleBreak::ListingTooOld { .. } => "listing_too_old",
             RuleBreak::ListedAfterAppraisalDate { .. } => "listed_after_appraisal_date",
             RuleBreak::TooFar { .. } => "too_far",
@@ -313,8 +329,18 @@ fn first_failing_filter(
     if let Some(b) = rules.mileage.check(subject.miles, c.miles) {
         return Some(b.code());
     }
-    if let Some(listed) = c.listed_on {
-        let days = (as_of - listed).num_days();
+    filter_after_mileage(c, subject, rules, as_of)
+}
+
+/// The filters after the mileage rule (for candidates already inside its range).
+fn filter_after_mileage(
+    c: &CandidateRow,
+    subject: &SubjectKey,
+    rules: &ComparableRules,
+    as_of: NaiveDate,
+) -> Option<&'static str> {
+    if let Some(listed) = c.listed_day {
+        let days = i64::from(as_of.num_days_from_ce()) - i64::from(listed);
         if days < 0 {
             return Some("listed_after_appraisal_date");
         }
@@ -394,6 +420,9 @@ pub struct CandidateRow {
     pub miles: f64,
     /// Listing date.
     pub listed_on: Option<NaiveDate>,
+    /// The listing date as a day number (days from the common era), so that "days listed" is
+    /// one subtraction of integers.
+    pub listed_day: Option<i32>,
     /// Distance in miles.
     pub distance_miles: Option<f32>,
     /// Variant id.
@@ -404,7 +433,9 @@ pub struct CandidateRow {
     pub included: bool,
 }
 
-/// Candidate rows grouped by model year, so a search visits only the subject's year window.
+/// Candidate rows grouped by model year and ordered by miles within each year, so a search
+/// visits only the subject's year window and, within it, only the mileage the rule allows (the
+/// rows outside are counted, not visited).
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct CandidateIndex {
     by_year: BTreeMap<i32, Vec<CandidateRow>>,
@@ -425,6 +456,7 @@ impl CandidateIndex {
                     model_year: market.model_year[row],
                     miles: market.miles[row],
                     listed_on: market.listed_on[row],
+                    listed_day: market.listed_on[row].map(|d| d.num_days_from_ce()),
                     distance_miles: market.distance_miles[row],
                     variant: market.variant[row],
                     condition: market.condition[row],
@@ -432,7 +464,7 @@ impl CandidateIndex {
                 });
         }
         for v in by_year.values_mut() {
-            v.sort_unstable_by_key(|c| c.row);
+            v.sort_unstable_by(|a, b| a.miles.total_cmp(&b.miles).then(a.row.cmp(&b.row)));
         }
         Self {
             by_year,
@@ -456,15 +488,43 @@ impl CandidateIndex {
     #[must_use]
     pub fn get(&self, market: &Market, row: usize) -> Option<&CandidateRow> {
         let rows = self.by_year.get(&market.model_year[row])?;
-        rows.binary_search_by_key(&row, |c| c.row)
-            .ok()
-            .map(|i| &rows[i])
+        // By miles first: the row is among those at its own mileage.
+        let miles = market.miles[row];
+        let from = rows.partition_point(|c| c.miles.total_cmp(&miles).is_lt());
+        rows[from..]
+            .iter()
+            .take_while(|c| c.miles.total_cmp(&miles).is_eq())
+            .find(|c| c.row == row)
     }
 
-    fn within(&self, first_year: i32, last_year: i32) -> impl Iterator<Item = &CandidateRow> + '_ {
+    /// Each model year's candidates in the window, ordered by miles.
+    fn years(&self, first_year: i32, last_year: i32) -> impl Iterator<Item = &[CandidateRow]> {
         self.by_year
             .range(first_year..=last_year)
-            .flat_map(|(_, rows)| rows.iter())
+            .map(|(_, rows)| rows.as_slice())
+    }
+}
+
+/// The codes of the mileage rule's two breaks, as [`RuleBreak::code`] gives them.
+const MILES_UNDER: &str = "miles_under_limit";
+const MILES_OVER: &str = "miles_over_limit";
+
+/// Listings stopped, by the code of the first filter each failed: a few codes, counted in a
+/// short list (a map keyed by text cost a tenth of a search's time).
+#[derive(Default)]
+struct StopCounts(Vec<(&'static str, usize)>);
+
+impl StopCounts {
+    fn add(&mut self, code: &'static str, n: usize) {
+        // The same literal nearly always: its address is compared before its text.
+        match self
+            .0
+            .iter_mut()
+            .find(|(c, _)| std::ptr::eq(*c, code) || *c == code)
+        {
+            Some((_, count)) => *count += n,
+            None => self.0.push((code, n)),
+        }
     }
 }
 
@@ -481,7 +541,7 @@ pub fn choose_comparables(
     choices: &ComparableChoices,
     as_of: NaiveDate,
 ) -> ComparableSelection {
-    let mut stopped: BTreeMap<&'static str, usize> = BTreeMap::new();
+    let mut stopped = StopCounts::default();
     let window = rules.model_year_window.max(0);
     let (first, last) = (
         subject.model_year.saturating_sub(window),
@@ -489,26 +549,64 @@ pub fn choose_comparables(
     );
     let mut in_window = 0usize;
     let mut passing: Vec<&CandidateRow> = Vec::new();
+    let mut spans = Spans::default();
+    // Each model year's passing rows, in miles order.
+    let mut runs: Vec<std::ops::Range<usize>> = Vec::new();
     let hand_picked = !choices.include.is_empty() || !choices.exclude.is_empty();
-    for c in candidates.within(first, last) {
-        in_window += 1;
+    // Ok(true): passes; Ok(false): kept by hand, handled below with every rule it breaks;
+    // Err: the first filter it fails.
+    let verdict = |c: &CandidateRow| -> Result<bool, &'static str> {
         let line = if hand_picked { market.line[c.row] } else { 0 };
         if hand_picked && choices.include.contains(&line) {
-            continue; // handled below with every rule it breaks
+            return Ok(false);
         }
-        let failed = first_failing_filter(c, subject, rules, as_of).or_else(|| {
+        // Outside a hand pick only rows inside the mileage range are visited.
+        let first_failing = if hand_picked {
+            first_failing_filter(c, subject, rules, as_of)
+        } else {
+            filter_after_mileage(c, subject, rules, as_of)
+        };
+        match first_failing.or_else(|| {
             (hand_picked && choices.exclude.contains(&line)).then_some("excluded_by_hand")
-        });
-        match failed {
-            Some(code) => *stopped.entry(code).or_default() += 1,
-            None => passing.push(c),
+        }) {
+            Some(code) => Err(code),
+            None => Ok(true),
         }
+    };
+    for rows in candidates.years(first, last) {
+        in_window += rows.len();
+        // By hand, every row is visited (a row kept by hand is not counted as stopped);
+        // otherwise the rows outside the mileage rule are counted without a visit.
+        let (from, to) = if hand_picked {
+            (0, rows.len())
+        } else {
+            rules.mileage.passing_range(rows, subject.miles)
+        };
+        if from > 0 {
+            stopped.add(MILES_UNDER, from);
+        }
+        if to < rows.len() {
+            stopped.add(MILES_OVER, rows.len() - to);
+        }
+        let run_start = passing.len();
+        for c in &rows[from..to] {
+            match verdict(c) {
+                Ok(true) => {
+                    spans.add(c, as_of);
+                    passing.push(c);
+                }
+                Ok(false) => {}
+                Err(code) => stopped.add(code, 1),
+            }
+        }
+        runs.push(run_start..passing.len());
     }
     let outside = candidates.len() - in_window;
     if outside > 0 {
-        stopped.insert("model_year_outside_window", outside);
+        stopped.add("model_year_outside_window", outside);
     }
     let stopped_by: BTreeMap<String, usize> = stopped
+        .0
         .into_iter()
         .map(|(k, v)| (k.to_owned(), v))
         .collect();
@@ -531,17 +629,11 @@ pub fn choose_comparables(
         })
         .collect();
     let passed = passing.len();
-    let ranges = Ranges::over(
-        passing
-            .iter()
-            .copied()
-            .chain(forced.iter().map(|(c, _)| *c)),
-        subject,
-        as_of,
-    );
+    for (c, _) in &forced {
+        spans.add(c, as_of);
+    }
+    let ranges = spans.ranges(subject);
     let distance = |c: &CandidateRow| gower_to_subject(c, subject, &rules.weights, &ranges, as_of);
-    let mut ranked: Vec<(&CandidateRow, f64)> =
-        passing.into_iter().map(|c| (c, distance(c))).collect();
     // Most similar first; ties to the more recent listing, then file order (rows are in file order).
     let order = |a: &(&CandidateRow, f64), b: &(&CandidateRow, f64)| {
         a.1.total_cmp(&b.1)
@@ -549,6 +641,11 @@ pub fn choose_comparables(
             .then_with(|| a.0.row.cmp(&b.0.row))
     };
     let slots = rules.count.saturating_sub(forced.len());
+    let mut ranked: Vec<(&CandidateRow, f64)> = if slots > 0 && passing.len() > slots {
+        nearest(&passing, &runs, slots, subject, rules, &ranges, &distance, &order)
+    } else {
+        passing.into_iter().map(|c| (c, distance(c))).collect()
+    };
     if ranked.len() > slots && slots > 0 {
         ranked.select_nth_unstable_by(slots - 1, order);
         ranked.truncate(slots);
@@ -583,6 +680,80 @@ pub fn choose_comparables(
     }
 }
 
+/// The `slots` passing candidates nearest the subject under `order`, without working out every
+/// candidate's distance: each model year's run is walked outward from the subject's mileage,
+/// and a direction stops once the mileage part alone puts a candidate's distance above the
+/// farthest kept (the distance is a weighted mean of parts that are never negative, so the
+/// mileage part over the sum of all weights bounds it from below). The result is the one a full
+/// sort gives, candidate for candidate; the bound is only trusted when it is clearly above.
+#[allow(clippy::too_many_arguments)]
+fn nearest<'c>(
+    passing: &[&'c CandidateRow],
+    runs: &[std::ops::Range<usize>],
+    slots: usize,
+    subject: &SubjectKey,
+    rules: &ComparableRules,
+    ranges: &Ranges,
+    distance: &dyn Fn(&CandidateRow) -> f64,
+    order: &dyn Fn(&(&'c CandidateRow, f64), &(&'c CandidateRow, f64)) -> std::cmp::Ordering,
+) -> Vec<(&'c CandidateRow, f64)> {
+    let w = &rules.weights;
+    let all_weight: f64 = [
+        w.model_year,
+        w.miles,
+        w.variant,
+        w.condition,
+        w.distance,
+        w.days_listed,
+    ]
+    .into_iter()
+    .filter(|&x| x > 0.0)
+    .sum();
+    let usable = w.miles > 0.0 && ranges.miles > 0.0 && all_weight > 0.0;
+    let bound = |c: &CandidateRow| {
+        if usable {
+            w.miles * ((subject.miles - c.miles).abs() / ranges.miles).min(1.0) / all_weight
+        } else {
+            0.0
+        }
+    };
+    let mut best: Vec<(&'c CandidateRow, f64)> = Vec::with_capacity(slots + 1);
+    // Whether `c` cannot be among the nearest: the bound clearly above the farthest kept.
+    let beyond = |best: &Vec<(&'c CandidateRow, f64)>, c: &CandidateRow| {
+        best.len() == slots && best.last().is_some_and(|&(_, far)| bound(c) > far * (1.0 + 1e-9) + 1e-12)
+    };
+    let consider = |best: &mut Vec<(&'c CandidateRow, f64)>, c: &'c CandidateRow| {
+        let item = (c, distance(c));
+        if best.len() == slots {
+            match best.last() {
+                Some(last) if order(&item, last).is_lt() => {
+                    best.pop();
+                }
+                _ => return,
+            }
+        }
+        let at = best.partition_point(|b| order(b, &item).is_lt());
+        best.insert(at, item);
+    };
+    for run in runs {
+        let rows = &passing[run.clone()];
+        let start = rows.partition_point(|c| c.miles < subject.miles);
+        for &c in &rows[start..] {
+            if beyond(&best, c) {
+                break;
+            }
+            consider(&mut best, c);
+        }
+        for &c in rows[..start].iter().rev() {
+            if beyond(&best, c) {
+                break;
+            }
+            consider(&mut best, c);
+        }
+    }
+    best
+}
+
 /// Ranges of the numeric attributes over the candidate pool and the subject (Gower's ranges
 /// are taken over the sample compared).
 struct Ranges {
@@ -592,39 +763,70 @@ struct Ranges {
     days_listed: f64,
 }
 
+#[cfg(test)]
 impl Ranges {
     fn over<'a>(
-        pool: impl Iterator<Item = &'a CandidateRow> + Clone,
+        pool: impl Iterator<Item = &'a CandidateRow>,
         subject: &SubjectKey,
         as_of: NaiveDate,
     ) -> Self {
-        let span = |values: &mut dyn Iterator<Item = f64>| {
-            let (lo, hi) = values.fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
-                (lo.min(v), hi.max(v))
-            });
-            if hi > lo { hi - lo } else { 0.0 }
-        };
-        Self {
-            model_year: span(
-                &mut pool
-                    .clone()
-                    .map(|c| f64::from(c.model_year))
-                    .chain([f64::from(subject.model_year)]),
-            ),
-            miles: span(&mut pool.clone().map(|c| c.miles).chain([subject.miles])),
-            distance: span(
-                &mut pool
-                    .clone()
-                    .filter_map(|c| c.distance_miles.map(f64::from))
-                    .chain([0.0]),
-            ),
-            days_listed: span(
-                &mut pool
-                    .filter_map(|c| c.listed_on.map(|d| (as_of - d).num_days() as f64))
-                    .chain([0.0]),
-            ),
+        let mut spans = Spans::default();
+        for c in pool {
+            spans.add(c, as_of);
+        }
+        spans.ranges(subject)
+    }
+}
+
+/// The lowest and highest of each numeric attribute over a pool, gathered one candidate at a
+/// time (during the filter pass, so the pool is not read twice).
+#[derive(Debug, Clone, Copy)]
+struct Spans([(f64, f64); 4]);
+
+impl Default for Spans {
+    fn default() -> Self {
+        Self([(f64::INFINITY, f64::NEG_INFINITY); 4])
+    }
+}
+
+impl Spans {
+    fn add(&mut self, c: &CandidateRow, as_of: NaiveDate) {
+        let values = [
+            Some(f64::from(c.model_year)),
+            Some(c.miles),
+            c.distance_miles.map(f64::from),
+            days_listed(c, as_of),
+        ];
+        for ((lo, hi), v) in self.0.iter_mut().zip(values) {
+            if let Some(v) = v {
+                *lo = lo.min(v);
+                *hi = hi.max(v);
+            }
         }
     }
+
+    /// The ranges with the subject's year and miles, and the subject's distance 0 and "listed
+    /// today", taken in.
+    fn ranges(mut self, subject: &SubjectKey) -> Ranges {
+        let with = [f64::from(subject.model_year), subject.miles, 0.0, 0.0];
+        for ((lo, hi), v) in self.0.iter_mut().zip(with) {
+            *lo = lo.min(v);
+            *hi = hi.max(v);
+        }
+        let span = |(lo, hi): (f64, f64)| if hi > lo { hi - lo } else { 0.0 };
+        Ranges {
+            model_year: span(self.0[0]),
+            miles: span(self.0[1]),
+            distance: span(self.0[2]),
+            days_listed: span(self.0[3]),
+        }
+    }
+}
+
+/// Days from a candidate's listing to the appraisal date.
+fn days_listed(c: &CandidateRow, as_of: NaiveDate) -> Option<f64> {
+    c.listed_day
+        .map(|d| f64::from(as_of.num_days_from_ce()) - f64::from(d))
 }
 
 fn gower_to_subject(
@@ -671,7 +873,7 @@ fn gower_to_subject(
         (
             GowerPart::Numeric {
                 a: Some(0.0),
-                b: c.listed_on.map(|d| (as_of - d).num_days() as f64),
+                b: days_listed(c, as_of),
                 range: ranges.days_listed,
             },
             w.days_listed,
@@ -698,5 +900,81 @@ impl std::fmt::Display for MileageRule {
             side(self.max_over, "above"),
             side(self.max_under, "below")
         )
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use rand::{Rng, SeedableRng};
+
+    use super::*;
+
+    /// The walk outward from the subject's mileage keeps exactly the candidates a full sort
+    /// keeps, in the same order, on random pools with many ties (whole-thousand miles, a few
+    /// dates and variants) and any count.
+    #[test]
+    fn the_nearest_walk_keeps_what_a_full_sort_keeps() {
+        let mut rng = rand_chacha::ChaCha8Rng::seed_from_u64(7);
+        let as_of = NaiveDate::from_ymd_opt(2026, 12, 1).unwrap_or_default();
+        for case in 0..300 {
+            let n = rng.random_range(1..400);
+            let mut rows: Vec<CandidateRow> = (0..n)
+                .map(|row| {
+                    let listed = as_of - chrono::TimeDelta::days(rng.random_range(0..5));
+                    CandidateRow {
+                        row,
+                        model_year: 2020 + rng.random_range(0..3),
+                        miles: f64::from(rng.random_range(0..60)) * 1_000.0,
+                        listed_on: Some(listed),
+                        listed_day: Some(listed.num_days_from_ce()),
+                        distance_miles: (rng.random_range(0..4) > 0)
+                            .then(|| rng.random_range(0..3) as f32 * 10.0),
+                        variant: rng.random_range(0..3),
+                        condition: Condition::Used,
+                        included: true,
+                    }
+                })
+                .collect();
+            rows.sort_by(|a, b| {
+                a.model_year
+                    .cmp(&b.model_year)
+                    .then(a.miles.total_cmp(&b.miles))
+                    .then(a.row.cmp(&b.row))
+            });
+            let passing: Vec<&CandidateRow> = rows.iter().collect();
+            let mut runs = Vec::new();
+            let mut start = 0;
+            for i in 1..=passing.len() {
+                if i == passing.len() || passing[i].model_year != passing[start].model_year {
+                    runs.push(start..i);
+                    start = i;
+                }
+            }
+            let subject = SubjectKey {
+                model_year: 2021,
+                miles: f64::from(rng.random_range(0..60)) * 1_000.0,
+                variant: 1,
+                condition: Condition::Used,
+            };
+            let rules = ComparableRules::default();
+            let ranges = Ranges::over(passing.iter().copied(), &subject, as_of);
+            let distance =
+                |c: &CandidateRow| gower_to_subject(c, &subject, &rules.weights, &ranges, as_of);
+            let order = |a: &(&CandidateRow, f64), b: &(&CandidateRow, f64)| {
+                a.1.total_cmp(&b.1)
+                    .then_with(|| b.0.listed_on.cmp(&a.0.listed_on))
+                    .then_with(|| a.0.row.cmp(&b.0.row))
+            };
+            let slots = rng.random_range(1..12);
+            let walked = nearest(
+                &passing, &runs, slots, &subject, &rules, &ranges, &distance, &order,
+            );
+            let mut sorted: Vec<(&CandidateRow, f64)> =
+                passing.iter().map(|&c| (c, distance(c))).collect();
+            sorted.sort_by(order);
+            sorted.truncate(slots);
+            let rows_of = |v: &[(&CandidateRow, f64)]| v.iter().map(|(c, _)| c.row).collect::<Vec<_>>();
+            assert_eq!(rows_of(&walked), rows_of(&sorted), "case {case}");
+        }
     }
 }
