@@ -46,17 +46,21 @@ pub struct Cli {
 /// The commands.
 #[derive(Debug, Subcommand)]
 pub enum Command {
-    /// Write an invented demo market as CSV.
+    /// Write an invented demo market as CSV, or with --parquet straight into a folder
+    /// partitioned make=…/model=…/.
     DemoMarket {
-        /// Listings to generate (1 to 10,000,000).
-        #[arg(long, allow_negative_numbers = true, default_value_t = 20_000, value_parser = clap::value_parser!(u64).range(1..=10_000_000))]
+        /// Listings to generate (1 to 10,000,000 as CSV; to 1,000,000,000 with --parquet).
+        #[arg(long, allow_negative_numbers = true, default_value_t = 20_000, value_parser = clap::value_parser!(u64).range(1..=1_000_000_000))]
         rows: u64,
         /// Random seed; the same seed gives the same file.
         #[arg(long, default_value_t = 1)]
         seed: u64,
-        /// Output file.
+        /// Output file (with --parquet, the folder).
         #[arg(long)]
         out: PathBuf,
+        /// Write partitioned Parquet, generated a million listings at a time on every core.
+        #[arg(long)]
+        parquet: bool,
     },
     /// Fit the market: terms, standard errors, R², annual depreciation, import and cleaning summary.
     Fit(MarketArgs),

@@ -119,7 +119,12 @@ fn run(cli: Cli) -> Result<ExitCode> {
         }))
     });
     match command {
-        Command::DemoMarket { rows, seed, out } => demo_market(rows, seed, &out),
+        Command::DemoMarket {
+            rows,
+            seed,
+            out,
+            parquet,
+        } => demo_market(rows, seed, &out, parquet),
         Command::Fit(args) => fit(&args),
         Command::Batch(args) => batch::run(&args),
         Command::Convert {
@@ -235,9 +240,28 @@ fn print(json: bool, doc: &impl Serialize, human: impl FnOnce() -> String) -> Re
     Ok(())
 }
 
-fn demo_market(rows: u64, seed: u64, out: &std::path::Path) -> Result<()> {
-    // --rows is checked to 1..=10,000,000 when it is read.
+fn demo_market(rows: u64, seed: u64, out: &std::path::Path, parquet: bool) -> Result<()> {
+    // --rows is checked to 1..=1,000,000,000 when it is read.
     let rows = rows as usize;
+    if parquet {
+        let started = std::time::Instant::now();
+        let done = model::convert::demo_lake(rows, seed, out)?;
+        eprintln!(
+            "wrote {} invented listings of {} models to {} in {} Parquet files in {:.1} s (seed {seed}, as of {})",
+            model::format::thousands(done.rows_written as f64),
+            done.partitions,
+            out.display(),
+            done.files.len(),
+            started.elapsed().as_secs_f64(),
+            model::demo::demo_as_of()
+        );
+        return Ok(());
+    }
+    if rows > 10_000_000 {
+        bail!(
+            "--rows {rows}: a CSV demo market holds at most 10,000,000 listings; use --parquet for more"
+        );
+    }
     let file =
         std::fs::File::create(out).with_context(|| format!("cannot create {}", out.display()))?;
     let mut writer = std::io::BufWriter::new(file);

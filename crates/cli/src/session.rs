@@ -81,16 +81,13 @@ pub fn read_worksheet(path: &Path, profiles: Option<&Path>) -> Result<Purpose> {
     if text.contains("profile_id") {
         let inputs: ClaimInputs = read_ron(path, "claim worksheet")?;
         let profiles = load_profiles(profiles)?;
-        let profile = profiles
-            .get(&inputs.profile_id)
-            .cloned()
-            .ok_or_else(|| {
-                anyhow!(
-                    "claim worksheet {}: no profile \"{}\"",
-                    path.display(),
-                    inputs.profile_id
-                )
-            })?;
+        let profile = profiles.get(&inputs.profile_id).cloned().ok_or_else(|| {
+            anyhow!(
+                "claim worksheet {}: no profile \"{}\"",
+                path.display(),
+                inputs.profile_id
+            )
+        })?;
         Ok(Purpose::Claim { profile, inputs })
     } else {
         Ok(Purpose::TradeIn(read_ron(path, "trade-in worksheet")?))

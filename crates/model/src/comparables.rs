@@ -528,19 +528,25 @@ impl StopCounts {
     }
 }
 
-/// Chooses comparables for `subject` among the indexed candidates. Filters apply in this order,
-/// and a listing is counted under the first it fails: model-year window, mileage, listing age,
-/// distance, variant, cleaning exclusions, then the appraiser's exclusions.
-#[must_use]
-pub fn choose_comparables(
+/// What a search's window holds: the candidates passing every filter (each model year's run in
+/// miles order), their ranges, and the count stopped by each filter.
+struct Window<'c> {
+    passing: Vec<&'c CandidateRow>,
+    runs: Vec<std::ops::Range<usize>>,
+    spans: Spans,
+    stopped: StopCounts,
+    inside: usize,
+}
+
+/// Applies the hard filters to the candidates of the subject's model-year window.
+fn scan_window<'c>(
     market: &Market,
-    cleaning: &SegmentCleaning,
-    candidates: &CandidateIndex,
+    candidates: &'c CandidateIndex,
     subject: &SubjectKey,
     rules: &ComparableRules,
     choices: &ComparableChoices,
     as_of: NaiveDate,
-) -> ComparableSelection {
+) -> Window<'c> {
     let mut stopped = StopCounts::default();
     let window = rules.model_year_window.max(0);
     let (first, last) = (
@@ -601,6 +607,35 @@ pub fn choose_comparables(
         }
         runs.push(run_start..passing.len());
     }
+    Window {
+        passing,
+        runs,
+        spans,
+        stopped,
+        inside: in_window,
+    }
+}
+
+/// Chooses comparables for `subject` among the indexed candidates. Filters apply in this order,
+/// and a listing is counted under the first it fails: model-year window, mileage, listing age,
+/// distance, variant, cleaning exclusions, then the appraiser's exclusions.
+#[must_use]
+pub fn choose_comparables(
+    market: &Market,
+    cleaning: &SegmentCleaning,
+    candidates: &CandidateIndex,
+    subject: &SubjectKey,
+    rules: &ComparableRules,
+    choices: &ComparableChoices,
+    as_of: NaiveDate,
+) -> ComparableSelection {
+    let Window {
+        passing,
+        runs,
+        mut spans,
+        mut stopped,
+        inside: in_window,
+    } = scan_window(market, candidates, subject, rules, choices, as_of);
     let outside = candidates.len() - in_window;
     if outside > 0 {
         stopped.add("model_year_outside_window", outside);
@@ -642,7 +677,9 @@ pub fn choose_comparables(
     };
     let slots = rules.count.saturating_sub(forced.len());
     let mut ranked: Vec<(&CandidateRow, f64)> = if slots > 0 && passing.len() > slots {
-        nearest(&passing, &runs, slots, subject, rules, &ranges, &distance, &order)
+        nearest(
+            &passing, &runs, slots, subject, rules, &ranges, &distance, &order,
+        )
     } else {
         passing.into_iter().map(|c| (c, distance(c))).collect()
     };
@@ -680,6 +717,9 @@ pub fn choose_comparables(
     }
 }
 
+/// A candidate with its distance to the subject.
+type Ranked<'c> = (&'c CandidateRow, f64);
+
 /// The `slots` passing candidates nearest the subject under `order`, without working out every
 /// candidate's distance: each model year's run is walked outward from the subject's mileage,
 /// and a direction stops once the mileage part alone puts a candidate's distance above the
@@ -695,7 +735,7 @@ fn nearest<'c>(
     rules: &ComparableRules,
     ranges: &Ranges,
     distance: &dyn Fn(&CandidateRow) -> f64,
-    order: &dyn Fn(&(&'c CandidateRow, f64), &(&'c CandidateRow, f64)) -> std::cmp::Ordering,
+    order: &dyn Fn(&Ranked<'c>, &Ranked<'c>) -> std::cmp::Ordering,
 ) -> Vec<(&'c CandidateRow, f64)> {
     let w = &rules.weights;
     let all_weight: f64 = [
@@ -720,7 +760,10 @@ fn nearest<'c>(
     let mut best: Vec<(&'c CandidateRow, f64)> = Vec::with_capacity(slots + 1);
     // Whether `c` cannot be among the nearest: the bound clearly above the farthest kept.
     let beyond = |best: &Vec<(&'c CandidateRow, f64)>, c: &CandidateRow| {
-        best.len() == slots && best.last().is_some_and(|&(_, far)| bound(c) > far * (1.0 + 1e-9) + 1e-12)
+        best.len() == slots
+            && best
+                .last()
+                .is_some_and(|&(_, far)| bound(c) > far * (1.0 + 1e-9) + 1e-12)
     };
     let consider = |best: &mut Vec<(&'c CandidateRow, f64)>, c: &'c CandidateRow| {
         let item = (c, distance(c));
@@ -973,7 +1016,8 @@ mod tests {
                 passing.iter().map(|&c| (c, distance(c))).collect();
             sorted.sort_by(order);
             sorted.truncate(slots);
-            let rows_of = |v: &[(&CandidateRow, f64)]| v.iter().map(|(c, _)| c.row).collect::<Vec<_>>();
+            let rows_of =
+                |v: &[(&CandidateRow, f64)]| v.iter().map(|(c, _)| c.row).collect::<Vec<_>>();
             assert_eq!(rows_of(&walked), rows_of(&sorted), "case {case}");
         }
     }

@@ -16,6 +16,8 @@ use std::io::Read;
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
 
+use chrono::Datelike;
+
 use parquet::basic::Compression;
 use parquet::column::writer::ColumnWriter;
 use parquet::data_type::ByteArray;
@@ -183,6 +185,76 @@ pub fn convert_csv(
         partitions: writer.folders.len(),
         rows_written: writer.rows,
         files,
+    })
+}
+
+/// Rows of the demo market generated and written per block by [`demo_lake`].
+pub const DEMO_BLOCK_ROWS: usize = 1_000_000;
+
+/// Generates `rows` invented listings straight into the partitioned layout in `out`, block by
+/// block on every core (block `b` is the demo market of its size drawn with seed `seed` + `b`),
+/// so a market far larger than memory can be made. Memory stays near one block per core.
+pub fn demo_lake(rows: usize, seed: u64, out: &Path) -> Result<Conversion, ConvertError> {
+    if crate::import::dataset::part_files(out).is_ok_and(|f| !f.is_empty()) && out.is_dir() {
+        return Err(ConvertError::NotEmpty {
+            path: out.display().to_string(),
+        });
+    }
+    let blocks = rows.div_ceil(DEMO_BLOCK_ROWS);
+    let cores = std::thread::available_parallelism()
+        .map_or(1, std::num::NonZero::get)
+        .min(blocks)
+        .max(1);
+    let options = ImportOptions {
+        latest_model_year: crate::demo::demo_as_of().year() + 1,
+        ..ImportOptions::default()
+    };
+    let work = |core: usize| -> Result<(PartitionWriter, ImportReport), ConvertError> {
+        let mut writer = PartitionWriter::new(out);
+        let mut report = ImportReport::default();
+        for block in (core..blocks).step_by(cores) {
+            let n = DEMO_BLOCK_ROWS.min(rows - block * DEMO_BLOCK_ROWS);
+            let bytes = crate::demo::demo_csv_bytes(n, seed.wrapping_add(block as u64));
+            let (market, block_report) = import_csv_bytes("demo", bytes, &options)?;
+            add_report(&mut report, block_report, 0);
+            writer.write_block(&market, block)?;
+        }
+        Ok((writer, report))
+    };
+    let parts: Vec<Result<(PartitionWriter, ImportReport), ConvertError>> =
+        std::thread::scope(|scope| {
+            let handles: Vec<_> = (0..cores).map(|c| scope.spawn(move || work(c))).collect();
+            handles
+                .into_iter()
+                .map(|h| {
+                    h.join().unwrap_or_else(|_| {
+                        Err(ConvertError::Write {
+                            path: out.display().to_string(),
+                            message: "a writing thread failed".into(),
+                        })
+                    })
+                })
+                .collect()
+        });
+    let mut files = Vec::new();
+    let mut rows_written = 0;
+    let mut folders = std::collections::BTreeSet::new();
+    let mut report = ImportReport::default();
+    for part in parts {
+        let (writer, part_report) = part?;
+        rows_written += writer.rows;
+        folders.extend(writer.folders.into_values());
+        files.extend(writer.files);
+        add_report(&mut report, part_report, 0);
+    }
+    report.rows_used = rows_written;
+    report.file_name = crate::demo::demo_name(rows);
+    files.sort_by(|a, b| a.file.cmp(&b.file));
+    Ok(Conversion {
+        report,
+        files,
+        rows_written,
+        partitions: folders.len(),
     })
 }
 
