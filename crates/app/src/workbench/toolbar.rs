@@ -230,8 +230,18 @@ impl Workbench {
                 } else {
                     String::new()
                 };
+                let form = if report.is_parquet() {
+                    let files = report.parts_read.len();
+                    format!(
+                        " (Parquet, {} {})",
+                        model::format::thousands(files as f64),
+                        if files == 1 { "file" } else { "files" }
+                    )
+                } else {
+                    String::new()
+                };
                 format!(
-                    "{}: {} listings used of {} read, {} rejected{blank}",
+                    "{}{form}: {} listings used of {} read, {} rejected{blank}",
                     source.describe(),
                     model::format::thousands(report.rows_used as f64),
                     model::format::thousands(report.rows_read as f64),

@@ -491,6 +491,7 @@ fn a_parquet_folder_opens_like_its_csv_dropped_typed_or_from_recent() {
     );
     assert_eq!(wb.preferences().recent_files.first(), Some(&lake));
     harness.get_by_label_contains("Indicated value");
+    harness.get_by_label_contains("(Parquet, 3 files)");
 
     // Typed into the path box and loaded.
     let mut harness = harness_on(workbench());
