@@ -339,8 +339,39 @@ fn filter_after_mileage(
     rules: &ComparableRules,
     as_of: NaiveDate,
 ) -> Option<&'static str> {
+    filters_after_mileage(
+        FilterValues {
+            listed_day: c.listed_day,
+            distance_miles: c.distance_miles,
+            variant: c.variant,
+            included: c.included,
+        },
+        subject,
+        rules,
+        i64::from(as_of.num_days_from_ce()),
+    )
+}
+
+/// What the filters after the mileage rule read of a candidate.
+#[derive(Clone, Copy)]
+struct FilterValues {
+    listed_day: Option<i32>,
+    distance_miles: Option<f32>,
+    variant: NameId,
+    included: bool,
+}
+
+/// The filters after the mileage rule, in their order; `as_of_day` is the appraisal date's day
+/// number. The one place their rules are written.
+#[inline]
+fn filters_after_mileage(
+    c: FilterValues,
+    subject: &SubjectKey,
+    rules: &ComparableRules,
+    as_of_day: i64,
+) -> Option<&'static str> {
     if let Some(listed) = c.listed_day {
-        let days = i64::from(as_of.num_days_from_ce()) - i64::from(listed);
+        let days = as_of_day - i64::from(listed);
         if days < 0 {
             return Some("listed_after_appraisal_date");
         }
@@ -438,8 +469,48 @@ pub struct CandidateRow {
 /// rows outside are counted, not visited).
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct CandidateIndex {
-    by_year: BTreeMap<i32, Vec<CandidateRow>>,
+    by_year: BTreeMap<i32, YearRows>,
     total: usize,
+}
+
+/// One model year's candidates in miles order, with the values the filter pass reads kept
+/// beside them column by column: the pass over tens of thousands of candidates reads a dozen
+/// bytes of each, not its whole record.
+#[derive(Debug, Clone, Default)]
+struct YearRows {
+    rows: Vec<CandidateRow>,
+    listed_day: Vec<Option<i32>>,
+    distance_miles: Vec<Option<f32>>,
+    variant: Vec<NameId>,
+    included: Vec<bool>,
+}
+
+impl PartialEq for YearRows {
+    /// The columns are copies of the rows' values.
+    fn eq(&self, other: &Self) -> bool {
+        self.rows == other.rows
+    }
+}
+
+impl YearRows {
+    fn from_rows(rows: Vec<CandidateRow>) -> Self {
+        Self {
+            listed_day: rows.iter().map(|c| c.listed_day).collect(),
+            distance_miles: rows.iter().map(|c| c.distance_miles).collect(),
+            variant: rows.iter().map(|c| c.variant).collect(),
+            included: rows.iter().map(|c| c.included).collect(),
+            rows,
+        }
+    }
+
+    fn values(&self, i: usize) -> FilterValues {
+        FilterValues {
+            listed_day: self.listed_day[i],
+            distance_miles: self.distance_miles[i],
+            variant: self.variant[i],
+            included: self.included[i],
+        }
+    }
 }
 
 impl CandidateIndex {
@@ -463,9 +534,13 @@ impl CandidateIndex {
                     included: cleaning.is_included(row),
                 });
         }
-        for v in by_year.values_mut() {
-            v.sort_unstable_by(|a, b| a.miles.total_cmp(&b.miles).then(a.row.cmp(&b.row)));
-        }
+        let by_year = by_year
+            .into_iter()
+            .map(|(year, mut v)| {
+                v.sort_unstable_by(|a, b| a.miles.total_cmp(&b.miles).then(a.row.cmp(&b.row)));
+                (year, YearRows::from_rows(v))
+            })
+            .collect();
         Self {
             by_year,
             total: rows.len(),
@@ -487,7 +562,7 @@ impl CandidateIndex {
     /// The candidate record of `row` of `market`, if it is a candidate.
     #[must_use]
     pub fn get(&self, market: &Market, row: usize) -> Option<&CandidateRow> {
-        let rows = self.by_year.get(&market.model_year[row])?;
+        let rows = &self.by_year.get(&market.model_year[row])?.rows;
         // By miles first: the row is among those at its own mileage.
         let miles = market.miles[row];
         let from = rows.partition_point(|c| c.miles.total_cmp(&miles).is_lt());
@@ -498,10 +573,10 @@ impl CandidateIndex {
     }
 
     /// Each model year's candidates in the window, ordered by miles.
-    fn years(&self, first_year: i32, last_year: i32) -> impl Iterator<Item = &[CandidateRow]> {
+    fn years(&self, first_year: i32, last_year: i32) -> impl Iterator<Item = &YearRows> {
         self.by_year
             .range(first_year..=last_year)
-            .map(|(_, rows)| rows.as_slice())
+            .map(|(_, rows)| rows)
     }
 }
 
@@ -566,20 +641,16 @@ fn scan_window<'c>(
         if hand_picked && choices.include.contains(&line) {
             return Ok(false);
         }
-        // Outside a hand pick only rows inside the mileage range are visited.
-        let first_failing = if hand_picked {
-            first_failing_filter(c, subject, rules, as_of)
-        } else {
-            filter_after_mileage(c, subject, rules, as_of)
-        };
-        match first_failing.or_else(|| {
+        match first_failing_filter(c, subject, rules, as_of).or_else(|| {
             (hand_picked && choices.exclude.contains(&line)).then_some("excluded_by_hand")
         }) {
             Some(code) => Err(code),
             None => Ok(true),
         }
     };
-    for rows in candidates.years(first, last) {
+    let as_of_day = i64::from(as_of.num_days_from_ce());
+    for year in candidates.years(first, last) {
+        let rows = &year.rows;
         in_window += rows.len();
         // By hand, every row is visited (a row kept by hand is not counted as stopped);
         // otherwise the rows outside the mileage rule are counted without a visit.
@@ -595,15 +666,29 @@ fn scan_window<'c>(
             stopped.add(MILES_OVER, rows.len() - to);
         }
         let run_start = passing.len();
-        for c in &rows[from..to] {
-            match verdict(c) {
-                Ok(true) => {
-                    spans.add(c, as_of);
-                    passing.push(c);
+        if hand_picked {
+            for c in &rows[from..to] {
+                match verdict(c) {
+                    Ok(true) => {
+                        spans.add(c, as_of);
+                        passing.push(c);
+                    }
+                    Ok(false) => {}
+                    Err(code) => stopped.add(code, 1),
                 }
-                Ok(false) => {}
-                Err(code) => stopped.add(code, 1),
             }
+        } else {
+            // Inside the mileage range: the other filters on the year's filter columns.
+            for (i, c) in rows.iter().enumerate().take(to).skip(from) {
+                match filters_after_mileage(year.values(i), subject, rules, as_of_day) {
+                    None => {
+                        spans.add_distance_and_days(c, as_of);
+                        passing.push(c);
+                    }
+                    Some(code) => stopped.add(code, 1),
+                }
+            }
+            spans.add_run(&passing[run_start..]);
         }
         runs.push(run_start..passing.len());
     }
@@ -749,10 +834,24 @@ fn nearest<'c>(
     .into_iter()
     .filter(|&x| x > 0.0)
     .sum();
-    let usable = w.miles > 0.0 && ranges.miles > 0.0 && all_weight > 0.0;
+    // The year and mileage parts, computed as the distance computes them; the parts that are
+    // not counted are at least zero, and a missing part only raises the distance.
+    let part = |weight: f64, a: f64, b: f64, range: f64| {
+        if weight > 0.0 && range > 0.0 {
+            weight * ((a - b).abs() / range).min(1.0)
+        } else {
+            0.0
+        }
+    };
     let bound = |c: &CandidateRow| {
-        if usable {
-            w.miles * ((subject.miles - c.miles).abs() / ranges.miles).min(1.0) / all_weight
+        if all_weight > 0.0 {
+            (part(
+                w.model_year,
+                f64::from(subject.model_year),
+                f64::from(c.model_year),
+                ranges.model_year,
+            ) + part(w.miles, subject.miles, c.miles, ranges.miles))
+                / all_weight
         } else {
             0.0
         }
@@ -778,6 +877,10 @@ fn nearest<'c>(
         let at = best.partition_point(|b| order(b, &item).is_lt());
         best.insert(at, item);
     };
+    // The subject's own model year first: its nearest fill the list soonest, and the other
+    // years' runs then stop sooner.
+    let mut runs: Vec<&std::ops::Range<usize>> = runs.iter().filter(|r| !r.is_empty()).collect();
+    runs.sort_by_key(|r| (passing[r.start].model_year - subject.model_year).abs());
     for run in runs {
         let rows = &passing[run.clone()];
         let start = rows.partition_point(|c| c.miles < subject.miles);
@@ -833,18 +936,42 @@ impl Default for Spans {
 }
 
 impl Spans {
+    const YEAR: usize = 0;
+    const MILES: usize = 1;
+
     fn add(&mut self, c: &CandidateRow, as_of: NaiveDate) {
-        let values = [
-            Some(f64::from(c.model_year)),
-            Some(c.miles),
-            c.distance_miles.map(f64::from),
-            days_listed(c, as_of),
-        ];
-        for ((lo, hi), v) in self.0.iter_mut().zip(values) {
-            if let Some(v) = v {
-                *lo = lo.min(v);
-                *hi = hi.max(v);
-            }
+        self.take(Self::YEAR, f64::from(c.model_year));
+        self.take(Self::MILES, c.miles);
+        self.add_distance_and_days(c, as_of);
+    }
+
+    /// The distance and days listed of `c` only: within one model year's run in miles order,
+    /// the year and the miles are taken from the run's ends ([`Self::add_run`]).
+    fn add_distance_and_days(&mut self, c: &CandidateRow, as_of: NaiveDate) {
+        if let Some(d) = c.distance_miles {
+            self.take(2, f64::from(d));
+        }
+        if let Some(days) = days_listed(c, as_of) {
+            self.take(3, days);
+        }
+    }
+
+    /// The year and the lowest and highest miles of a run of one model year in miles order.
+    fn add_run(&mut self, run: &[&CandidateRow]) {
+        if let (Some(first), Some(last)) = (run.first(), run.last()) {
+            self.take(Self::YEAR, f64::from(first.model_year));
+            self.take(Self::MILES, first.miles);
+            self.take(Self::MILES, last.miles);
+        }
+    }
+
+    fn take(&mut self, k: usize, v: f64) {
+        let (lo, hi) = &mut self.0[k];
+        if v < *lo {
+            *lo = v;
+        }
+        if v > *hi {
+            *hi = v;
         }
     }
 
