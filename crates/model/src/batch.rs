@@ -232,15 +232,27 @@ pub fn fit_segments(
         .collect();
     segments.sort_unstable();
     segments.dedup();
-    segments
-        .into_iter()
-        .map(|segment| {
-            (
-                segment,
-                fit_market(market, segment, settings, overrides).map_err(|e| e.to_string()),
-            )
-        })
-        .collect()
+    // The segments side by side: each fit is independent of the others.
+    std::thread::scope(|scope| {
+        let handles: Vec<_> = segments
+            .iter()
+            .map(|&segment| {
+                scope.spawn(move || {
+                    fit_market(market, segment, settings, overrides).map_err(|e| e.to_string())
+                })
+            })
+            .collect();
+        segments
+            .iter()
+            .zip(handles)
+            .map(|(&segment, h)| {
+                let fit = h
+                    .join()
+                    .unwrap_or_else(|_| Err("the fit stopped unexpectedly".to_owned()));
+                (segment, fit)
+            })
+            .collect()
+    })
 }
 
 /// Each row's purpose: a value only, or its worksheet's (or why that could not be read).
