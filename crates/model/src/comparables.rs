@@ -666,6 +666,7 @@ fn scan_window<'c>(
             stopped.add(MILES_OVER, rows.len() - to);
         }
         let run_start = passing.len();
+        let as_of_day_f64 = f64::from(as_of.num_days_from_ce());
         if hand_picked {
             for c in &rows[from..to] {
                 match verdict(c) {
@@ -680,9 +681,14 @@ fn scan_window<'c>(
         } else {
             // Inside the mileage range: the other filters on the year's filter columns.
             for (i, c) in rows.iter().enumerate().take(to).skip(from) {
-                match filters_after_mileage(year.values(i), subject, rules, as_of_day) {
+                let values = year.values(i);
+                match filters_after_mileage(values, subject, rules, as_of_day) {
                     None => {
-                        spans.add_distance_and_days(c, as_of);
+                        spans.add_filter_values(
+                            values.distance_miles,
+                            values.listed_day,
+                            as_of_day_f64,
+                        );
                         passing.push(c);
                     }
                     Some(code) => stopped.add(code, 1),
@@ -948,10 +954,25 @@ impl Spans {
     /// The distance and days listed of `c` only: within one model year's run in miles order,
     /// the year and the miles are taken from the run's ends ([`Self::add_run`]).
     fn add_distance_and_days(&mut self, c: &CandidateRow, as_of: NaiveDate) {
-        if let Some(d) = c.distance_miles {
+        self.add_filter_values(
+            c.distance_miles,
+            c.listed_day,
+            f64::from(as_of.num_days_from_ce()),
+        );
+    }
+
+    /// [`Self::add_distance_and_days`] from the year's filter columns (the record itself is
+    /// not read: in the filter pass that read was a sixth of the search's time).
+    fn add_filter_values(
+        &mut self,
+        distance_miles: Option<f32>,
+        listed_day: Option<i32>,
+        as_of_day: f64,
+    ) {
+        if let Some(d) = distance_miles {
             self.take(2, f64::from(d));
         }
-        if let Some(days) = days_listed(c, as_of) {
+        if let Some(days) = listed_day.map(|d| as_of_day - f64::from(d)) {
             self.take(3, days);
         }
     }
