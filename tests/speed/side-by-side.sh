@@ -38,9 +38,9 @@ measure() {
 echo "== $(date -u +%F) on $(nproc) cores"
 measure "$runs" "appraise, 1M CSV (Tessel: 500k in its segment)" "$bin" appraise m1m.csv --subject "$tessel"
 measure "$runs" "appraise, 1M as Parquet (Tessel)" "$bin" appraise lake1m --subject "$tessel"
-measure "$runs" "appraise, 1M as Parquet (Kestrel: 210k)" "$bin" appraise lake1m --subject "$kestrel"
-measure "$runs" "appraise, 10M as Parquet (Kestrel: 2.1M)" "$bin" appraise lake10m --subject "$kestrel"
+measure "$runs" "appraise, 1M as Parquet (Kestrel: 200k)" "$bin" appraise lake1m --subject "$kestrel"
+measure "$runs" "appraise, 10M as Parquet (Kestrel: 2M)" "$bin" appraise lake10m --subject "$kestrel"
 if [ -d lake100m ]; then
-  measure 1 "appraise, 100M as Parquet (Kestrel: 21M)" "$bin" appraise lake100m --subject "$kestrel"
+  measure 1 "appraise, 100M as Parquet (Kestrel: 20M)" "$bin" appraise lake100m --subject "$kestrel"
 fi
 measure 1 "batch, 10,000 subjects on the 1M CSV" "$bin" batch m1m.csv --subjects subjects10k.csv --out values.csv
