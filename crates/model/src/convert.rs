@@ -860,14 +860,17 @@ mod tests {
             }
             std::fs::write(&file, &bytes).unwrap_or_else(|e| panic!("{e}"));
             let outcome = std::panic::catch_unwind(|| import_parquet(&lake, &options, &[]));
+            assert!(
+                outcome.is_ok(),
+                "case {case}: a damaged file panicked through the reader"
+            );
             match outcome {
                 Ok(Ok(_)) => read += 1,
                 Ok(Err(e)) => {
                     errors += 1;
-                    let message = e.to_string();
-                    assert!(!message.is_empty());
+                    assert!(!e.to_string().is_empty());
                 }
-                Err(_) => panic!("case {case}: a damaged file panicked through the reader"),
+                Err(_) => {}
             }
         }
         std::fs::remove_dir_all(&dir).ok();
