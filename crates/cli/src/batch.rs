@@ -121,7 +121,8 @@ pub fn run(args: &BatchArgs) -> Result<()> {
 }
 
 /// "appraised 4,200 of 10,000 (42 %), about 3 s left" (padded to overwrite a longer line).
-fn progress_line(done: usize, total: usize, elapsed: std::time::Duration) -> String {
+#[must_use]
+pub fn progress_line(done: usize, total: usize, elapsed: std::time::Duration) -> String {
     let pct = done * 100 / total.max(1);
     let left = if done > 0 && done < total {
         let secs = elapsed.as_secs_f64() * (total - done) as f64 / done as f64;
@@ -196,25 +197,4 @@ fn write_sessions(
     }
     eprintln!("wrote {written} session files to {}", dir.display());
     Ok(())
-}
-
-#[cfg(test)]
-mod tests {
-    use std::time::Duration;
-
-    #[test]
-    fn the_progress_line_counts_and_estimates_what_is_left() {
-        assert_eq!(
-            super::progress_line(2_500, 10_000, Duration::from_secs(1)),
-            "appraised 2,500 of 10,000 (25 %), about 3 s left    "
-        );
-        assert_eq!(
-            super::progress_line(10_000, 10_000, Duration::from_secs(4)),
-            "appraised 10,000 of 10,000 (100 %)    "
-        );
-        assert_eq!(
-            super::progress_line(0, 0, Duration::ZERO),
-            "appraised 0 of 0 (0 %)    "
-        );
-    }
 }

@@ -29,6 +29,8 @@ use crate::output::{
     GapsDocument, ImportSummary,
 };
 
+pub use batch::progress_line;
+
 /// The subject appraised when none is given on the demo market.
 pub const DEMO_SUBJECT: &str =
     "year=2022,make=Quellmark,model=Tessel,variant=Ambrel,miles=41000,condition=used";

@@ -531,3 +531,20 @@ fn a_batch_row_with_a_worksheet_gets_its_offer_or_settlement_as_appraise_gives_i
     assert!(model::session::reproduce(&session).unwrap().reproduces());
     std::fs::remove_dir_all(&dir).ok();
 }
+
+#[test]
+fn the_batch_progress_line_counts_and_estimates_what_is_left() {
+    use std::time::Duration;
+    assert_eq!(
+        cli::progress_line(2_500, 10_000, Duration::from_secs(1)),
+        "appraised 2,500 of 10,000 (25 %), about 3 s left    "
+    );
+    assert_eq!(
+        cli::progress_line(10_000, 10_000, Duration::from_secs(4)),
+        "appraised 10,000 of 10,000 (100 %)    "
+    );
+    assert_eq!(
+        cli::progress_line(0, 0, Duration::ZERO),
+        "appraised 0 of 0 (0 %)    "
+    );
+}
