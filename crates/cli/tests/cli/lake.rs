@@ -167,6 +167,30 @@ fn an_engine_reads_what_convert_wrote_and_comptrail_reads_what_the_engine_wrote(
     ]);
     assert_eq!(whole["import"]["rows_used"], 420);
 
+    // A small export spelled three ways ("Orvane", "ORVANE", " kestrel  "): the engine makes a
+    // partition of each spelling (and escapes the spaces as %20); all three are the model's,
+    // and the value is the CSV's.
+    let small = repo("tests/data/markets/small-export-16.csv");
+    let messy = dir.join("messy-lake");
+    run_engine(&script, &["write", &small, path(&messy)]);
+    assert!(
+        std::fs::read_dir(messy.join("Make=Orvane"))
+            .unwrap()
+            .any(|e| e.unwrap().file_name().to_string_lossy().contains("%20")),
+        "the engine escapes spaces in folder names"
+    );
+    let kestrel = "year=2021,make=orvane,model=KESTREL,variant=Cressin,miles=50000";
+    let value = |market: &str| {
+        let doc = json(&["appraise", market, "--subject", kestrel, "--json"]);
+        (
+            doc["indicated_value"].as_f64(),
+            doc["import"]["rows_used"].clone(),
+        )
+    };
+    assert_eq!(value(path(&messy)), value(&small));
+    let doc = json(&["appraise", path(&messy), "--subject", kestrel, "--json"]);
+    assert_eq!(doc["import"]["parquet_files_read"], 3);
+
     // Written by comptrail, read by the engine: the same rows and sums as the engine's own
     // reading of the CSV.
     let ours = dir.join("our-lake");
