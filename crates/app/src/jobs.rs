@@ -37,6 +37,9 @@ pub enum Job {
     Load {
         /// Which market.
         source: MarketSource,
+        /// The subject's make and model: the model read when a Parquet market is too large to
+        /// read whole.
+        prefer: (String, String),
     },
     /// Backtest the fitted segment and rank the file's models.
     Study {
@@ -78,6 +81,8 @@ pub enum JobResult {
         source: MarketSource,
         /// The market and its report, or the reason it failed (boxed: the report is large).
         outcome: Result<(Arc<Market>, Box<ImportReport>), Arc<ImportError>>,
+        /// What was read when it was not the whole market, for a notice.
+        note: Option<String>,
     },
     /// A fit finished (or failed), with the segment's price gaps at the requested level.
     Fitted {
@@ -174,20 +179,75 @@ impl Worker {
     }
 }
 
+/// Listings above which the workbench reads one model of a Parquet market partitioned by make
+/// and model instead of all of it (a data lake's folder may hold a hundred million).
+pub const WHOLE_DATASET_LIMIT: u64 = 5_000_000;
+
+/// Imports a market file: a CSV, a Parquet file, or a partitioned folder, which is read whole
+/// up to `limit` listings (every model can then be chosen) and beyond it for one model only:
+/// `prefer` when the folder holds it, else its largest; the note says what was read.
+pub fn load_file(
+    path: &std::path::Path,
+    options: &ImportOptions,
+    prefer: (&str, &str),
+    limit: u64,
+) -> (Result<(Market, ImportReport), ImportError>, Option<String>) {
+    use model::vocabulary::name_key;
+    if !model::import::dataset::is_parquet_market(path) {
+        return (import_market(path, options, &[]), None);
+    }
+    let models = match model::import::parquet_models(path) {
+        Ok(models) => models,
+        Err(e) => return (Err(e), None),
+    };
+    let total: u64 = models.iter().map(|m| m.rows).sum();
+    let Some(largest) = models.first() else {
+        return (import_market(path, options, &[]), None);
+    };
+    if models.len() < 2 || total <= limit {
+        return (import_market(path, options, &[]), None);
+    }
+    let chosen = models
+        .iter()
+        .find(|m| {
+            name_key(&m.make) == name_key(prefer.0) && name_key(&m.model) == name_key(prefer.1)
+        })
+        .unwrap_or(largest);
+    let thousands = |n: u64| model::format::thousands(n as f64);
+    let note = format!(
+        "This folder holds {} listings of {} models, more than the workbench reads at once ({}): it read {} {} only ({} listings). To work on another model, open its folder (make=…/model=…) or use the command line, which reads the subject's model. The folder's models: {}.",
+        thousands(total),
+        models.len(),
+        thousands(limit),
+        chosen.make,
+        chosen.model,
+        thousands(chosen.rows),
+        models
+            .iter()
+            .map(|m| format!("{} {} ({})", m.make, m.model, thousands(m.rows)))
+            .collect::<Vec<_>>()
+            .join(", ")
+    );
+    let wanted = [(chosen.make.clone(), chosen.model.clone())];
+    (import_market(path, options, &wanted), Some(note))
+}
+
 fn run(job: Job) -> JobResult {
     match job {
-        Job::Load { source } => {
+        Job::Load { source, prefer } => {
             let options = ImportOptions::default();
-            let outcome = match &source {
-                MarketSource::Demo { rows } => model::demo::import_demo(*rows, &options),
-                // The workbench lists every model: a Parquet dataset is read whole.
-                MarketSource::File(path) => import_market(path, &options, &[]),
+            let (outcome, note) = match &source {
+                MarketSource::Demo { rows } => (model::demo::import_demo(*rows, &options), None),
+                MarketSource::File(path) => {
+                    load_file(path, &options, (&prefer.0, &prefer.1), WHOLE_DATASET_LIMIT)
+                }
             };
             JobResult::Loaded {
                 source,
                 outcome: outcome
                     .map(|(m, r)| (Arc::new(m), Box::new(r)))
                     .map_err(Arc::new),
+                note,
             }
         }
         Job::Study {

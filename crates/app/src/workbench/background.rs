@@ -53,18 +53,30 @@ impl Workbench {
 
     fn receive(&mut self, result: JobResult) {
         match result {
-            JobResult::Loaded { source, outcome } => {
+            JobResult::Loaded {
+                source,
+                outcome,
+                note,
+            } => {
                 self.runtime.loading = None;
                 match outcome {
                     Ok((market, report)) => {
+                        if let Some(note) = note {
+                            self.notice = Some(crate::notice::Notice::done(note));
+                        }
                         // A subject the file does not hold starts over as a typical vehicle
                         // of the file's largest model, and says so: else nothing can be shown
                         // to pick another from.
                         let subject = &self.document.subject;
                         if market.find_segment(&subject.make, &subject.model).is_none() {
                             if let Some(typical) = model::subject::Subject::typical_of(&market) {
+                                let before = self
+                                    .notice
+                                    .take()
+                                    .map(|n| format!("{} ", n.text))
+                                    .unwrap_or_default();
                                 self.notice = Some(crate::notice::Notice::done(format!(
-                                    "The file has no {} {}: the subject is now a typical {} of it. Set your vehicle in the subject pane.",
+                                    "{before}The file has no {} {}: the subject is now a typical {} of it. Set your vehicle in the subject pane.",
                                     subject.make,
                                     subject.model,
                                     typical.describe()
@@ -166,6 +178,10 @@ impl Workbench {
                 self.runtime.loading = Some(self.document.market.clone());
                 self.worker.submit(Job::Load {
                     source: self.document.market.clone(),
+                    prefer: (
+                        self.document.subject.make.clone(),
+                        self.document.subject.model.clone(),
+                    ),
                 });
                 return;
             }

@@ -97,6 +97,10 @@ impl Workbench {
         };
         worker.submit(Job::Load {
             source: document.market.clone(),
+            prefer: (
+                document.subject.make.clone(),
+                document.subject.model.clone(),
+            ),
         });
         // One drag of a slider settles into one undo step once it has been still for 0.4 s.
         let mut undoer = Undoer::with_settings(UndoSettings {

@@ -538,3 +538,50 @@ impl eframe::egui::DroppedFile for Dropped {
         Err("a folder".into())
     }
 }
+
+#[test]
+fn a_parquet_folder_too_large_to_read_whole_is_read_for_the_subjects_model_with_a_note() {
+    let dir = scratch("large-lake");
+    let csv = dir.join("market.csv");
+    std::fs::write(&csv, model::demo::demo_csv_bytes(3_000, 4)).unwrap();
+    let lake = dir.join("lake");
+    let options = model::import::ImportOptions::default();
+    model::convert::convert_csv(&csv, &lake, &options, model::convert::BLOCK_BYTES).unwrap();
+    let load =
+        |prefer: (&str, &str), limit: u64| app::jobs::load_file(&lake, &options, prefer, limit);
+
+    // Under the limit: every model, no note.
+    let (whole, note) = load(("Orvane", "Kestrel"), 1_000_000);
+    assert_eq!(whole.unwrap().0.segments().len(), 3);
+    assert!(note.is_none());
+
+    // Over it: the subject's model only, and a note that says so and names the others.
+    let (one, note) = load(("orvane", "KESTREL"), 1_000);
+    let market = one.unwrap().0;
+    assert_eq!(market.segments().len(), 1);
+    assert!(market.find_segment("Orvane", "Kestrel").is_some());
+    let note = note.expect("a note");
+    assert!(note.contains("3,000 listings of 3 models"), "{note}");
+    assert!(note.contains("it read Orvane Kestrel only"), "{note}");
+    assert!(note.contains("Quellmark Tessel ("), "{note}");
+    // A subject the folder does not hold: its largest model.
+    let (largest, _) = load(("Nobody", "Nothing"), 1_000);
+    assert!(
+        largest
+            .unwrap()
+            .0
+            .find_segment("Quellmark", "Tessel")
+            .is_some()
+    );
+
+    // One model's own folder opens on its own: its make and model come from the folders
+    // above it.
+    let kestrel = lake.join("make=Orvane").join("model=Kestrel");
+    let (alone, note) = load(("Quellmark", "Tessel"), 1_000);
+    drop(alone);
+    assert!(note.is_some());
+    let (alone, note) = app::jobs::load_file(&kestrel, &options, ("Quellmark", "Tessel"), 1_000);
+    assert!(note.is_none(), "one model: nothing to choose between");
+    assert!(alone.unwrap().0.find_segment("Orvane", "Kestrel").is_some());
+    std::fs::remove_dir_all(&dir).ok();
+}

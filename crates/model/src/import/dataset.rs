@@ -61,18 +61,7 @@ pub fn part_files(root: &Path) -> std::io::Result<Vec<PartFile>> {
             |n| n.to_string_lossy().into_owned(),
         );
         // A file taken from a partitioned folder keeps the values its folders give it.
-        let partition = root
-            .ancestors()
-            .skip(1)
-            .map_while(|dir| {
-                let folder = dir.file_name()?.to_string_lossy().into_owned();
-                let (k, v) = folder.split_once('=')?;
-                Some((unescape(k), (v != NULL_PARTITION).then(|| unescape(v))))
-            })
-            .collect::<Vec<_>>()
-            .into_iter()
-            .rev()
-            .collect();
+        let partition = folder_partition(root, 1);
         return Ok(vec![PartFile {
             path: root.to_owned(),
             relative: name,
@@ -81,8 +70,32 @@ pub fn part_files(root: &Path) -> std::io::Result<Vec<PartFile>> {
     }
     let mut found = Vec::new();
     walk(root, root, &mut found)?;
+    // A folder opened inside a partitioned dataset (`lake/make=Orvane/model=Kestrel`) keeps the
+    // values its own folders give.
+    let above = folder_partition(root, 0);
+    if !above.is_empty() {
+        for f in &mut found {
+            f.partition.splice(0..0, above.iter().cloned());
+        }
+    }
     found.sort_by(|a: &PartFile, b| a.relative.cmp(&b.relative));
     Ok(found)
+}
+
+/// The `key=value` pairs of the folders a path sits in, outermost first, read upward from the
+/// path (after skipping `skip` components) until a folder is not of that form.
+fn folder_partition(path: &Path, skip: usize) -> Vec<(String, Option<String>)> {
+    let mut pairs: Vec<(String, Option<String>)> = path
+        .ancestors()
+        .skip(skip)
+        .map_while(|dir| {
+            let folder = dir.file_name()?.to_string_lossy().into_owned();
+            let (k, v) = folder.split_once('=')?;
+            Some((unescape(k), (v != NULL_PARTITION).then(|| unescape(v))))
+        })
+        .collect();
+    pairs.reverse();
+    pairs
 }
 
 fn walk(root: &Path, dir: &Path, found: &mut Vec<PartFile>) -> std::io::Result<()> {

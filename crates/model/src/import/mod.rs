@@ -23,7 +23,7 @@ use crate::market::{Market, MarketSource, content_hash};
 
 use batches::{Plan, Tokenizer, read_batches};
 pub use headers::{Field, field_for, normalize_header};
-pub use parquet::{import_parquet, parquet_fingerprint};
+pub use parquet::{ModelPartition, import_parquet, parquet_fingerprint, parquet_models};
 pub use report::{
     DroppedValue, ImportReport, PartRead, RejectReason, RejectedRow, reason_in_words,
 };

@@ -152,6 +152,56 @@ fn finish_report(report: &mut ImportReport, issues: RowIssues, market: &Market) 
     report.options_found = crate::equipment::count(market, None);
 }
 
+/// One make and model of a partitioned Parquet market, with its listings (from the footers).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ModelPartition {
+    /// Make, as its folder names it.
+    pub make: String,
+    /// Model, as its folder names it.
+    pub model: String,
+    /// Rows in its files.
+    pub rows: u64,
+}
+
+/// The makes and models a Parquet market's folders name, largest first, with their rows; empty
+/// when its files are not partitioned by make and model (a single file, other keys). Reads the
+/// footers only. Spellings that name one model ("Kestrel", " kestrel ") are counted together,
+/// under the first met.
+pub fn parquet_models(root: &Path) -> Result<Vec<ModelPartition>, ImportError> {
+    let files = part_files(root).map_err(|source| ImportError::Io {
+        file: root.display().to_string(),
+        source,
+    })?;
+    let (is_make, is_model) = (is_field(Field::Make), is_field(Field::Model));
+    let rows = footer_rows(&files)?;
+    let mut models: Vec<ModelPartition> = Vec::new();
+    for (f, n) in files.iter().zip(rows) {
+        let (Some(Some(make)), Some(Some(model))) = (f.value_of(&is_make), f.value_of(&is_model))
+        else {
+            return Ok(Vec::new());
+        };
+        let key = (
+            crate::vocabulary::name_key(make),
+            crate::vocabulary::name_key(model),
+        );
+        match models.iter_mut().find(|m| {
+            (
+                crate::vocabulary::name_key(&m.make),
+                crate::vocabulary::name_key(&m.model),
+            ) == key
+        }) {
+            Some(m) => m.rows += n,
+            None => models.push(ModelPartition {
+                make: make.to_owned(),
+                model: model.to_owned(),
+                rows: n,
+            }),
+        }
+    }
+    models.sort_by(|a, b| b.rows.cmp(&a.rows).then_with(|| a.make.cmp(&b.make)));
+    Ok(models)
+}
+
 /// The fingerprint of a Parquet market as it was read: every file's path and size, and the
 /// bytes of the files read. Another file added, removed or resized changes it; so does any byte
 /// of a file read. Bytes of files not read (other models' partitions) are not looked at: a
