@@ -41,6 +41,17 @@ impl Workbench {
         self.refresh_appraisal();
     }
 
+    /// Waits for the next result of the worker only, takes it in, asks for what is stale and
+    /// re-appraises, as a frame would between two results (tests of what is on screen while a
+    /// fit is still running).
+    pub fn take_next_result(&mut self) {
+        if let Some(result) = self.worker.wait() {
+            self.receive(result);
+        }
+        self.request_fit_if_stale();
+        self.refresh_appraisal();
+    }
+
     /// Takes in what the worker finished, asks for what is stale, and re-appraises: once a
     /// frame, without blocking.
     pub(super) fn take_results(&mut self) {
@@ -88,6 +99,17 @@ impl Workbench {
                         self.runtime.market_source = Some(source);
                         self.runtime.import_report = Some(*report);
                         self.runtime.market_generation += 1;
+                        // The fit, its gaps and study and the appraisal were of the market just
+                        // replaced: their rows and names are that market's. Never shown with
+                        // the new one (a value from the old fit on the new rows, or a panic on
+                        // a row the new market does not have); the new fit follows.
+                        self.runtime.fit = None;
+                        self.runtime.fit_key = None;
+                        self.runtime.gaps = None;
+                        self.runtime.study = None;
+                        self.runtime.fit_error = None;
+                        self.runtime.appraisal = None;
+                        self.runtime.appraisal_error = None;
                         self.runtime.import_failure = None;
                         self.runtime.before_open = None;
                         self.selection = Selection::default();
@@ -102,6 +124,14 @@ impl Workbench {
             }
             JobResult::Fitted { outcome } => {
                 let key = self.runtime.fitting.take();
+                if key
+                    .as_ref()
+                    .is_some_and(|k| k.market_generation != self.runtime.market_generation)
+                {
+                    // Fitted on a market replaced meanwhile: dropped; the next frame asks for
+                    // the new market's fit.
+                    return;
+                }
                 match outcome {
                     Ok((fit, gaps)) => {
                         self.runtime.fit_generation += 1;
@@ -222,6 +252,15 @@ impl Workbench {
         let (Some(market), Some(fit)) = (&self.runtime.market, &self.runtime.fit) else {
             return;
         };
+        // Only a fit of the market on screen (see the import's handling above).
+        if self
+            .runtime
+            .fit_key
+            .as_ref()
+            .is_none_or(|k| k.market_generation != self.runtime.market_generation)
+        {
+            return;
+        }
         let generation = self.runtime.fit_generation;
         if self
             .appraised_for

@@ -585,3 +585,48 @@ fn a_parquet_folder_too_large_to_read_whole_is_read_for_the_subjects_model_with_
     assert!(alone.unwrap().0.find_segment("Orvane", "Kestrel").is_some());
     std::fs::remove_dir_all(&dir).ok();
 }
+
+#[test]
+fn between_opening_a_market_and_its_fit_nothing_of_the_old_fit_is_shown() {
+    // Regression (seen opening a Parquet folder under Xvfb): while the new market's fit ran,
+    // the old market's fit was paired with the new market's rows and names ("variant 'Ambrel'
+    // has no usable listings; known variants: Seller 001, …"); with other files it could show
+    // a value from the wrong market or index a row the new market does not have.
+    let dir = scratch("between");
+    let csv = dir.join("other.csv");
+    std::fs::write(&csv, model::demo::demo_csv_bytes(900, 8)).unwrap();
+    let mut wb = workbench();
+    assert!(wb.runtime().appraisal.is_some());
+    wb.apply(Command::OpenMarket(csv.clone()));
+    // Up to the import's result only (the first step asks for the import): the new market
+    // is in, its fit not yet.
+    for _ in 0..3 {
+        wb.take_next_result();
+        if wb.runtime().market.as_ref().unwrap().len() == 900 {
+            break;
+        }
+    }
+    assert_eq!(wb.runtime().market.as_ref().unwrap().len(), 900);
+    assert!(
+        wb.runtime().fit.is_none(),
+        "the old fit is gone with its market"
+    );
+    assert!(wb.runtime().appraisal.is_none());
+    assert!(
+        wb.runtime().appraisal_error.is_none(),
+        "{:?}",
+        wb.runtime().appraisal_error
+    );
+    wb.wait_for_jobs();
+    // Then the new market's own appraisal, the one a fresh start on the file gives.
+    let mut fresh = workbench();
+    fresh.apply(Command::OpenMarket(csv));
+    fresh.wait_for_jobs();
+    assert!(
+        wb.runtime().appraisal.is_some(),
+        "{:?}",
+        wb.runtime().appraisal_error
+    );
+    assert_eq!(indicated(&wb), indicated(&fresh));
+    std::fs::remove_dir_all(&dir).ok();
+}
