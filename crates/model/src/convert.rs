@@ -87,10 +87,7 @@ pub fn convert_csv(
     options: &ImportOptions,
     block_bytes: usize,
 ) -> Result<Conversion, ConvertError> {
-    let file_name = csv.file_name().map_or_else(
-        || csv.display().to_string(),
-        |n| n.to_string_lossy().into_owned(),
-    );
+    let file_name = crate::import::file_label(csv);
     let io = |source| ImportError::Io {
         file: file_name.clone(),
         source,

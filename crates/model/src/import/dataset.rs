@@ -56,10 +56,7 @@ pub fn part_files(root: &Path) -> std::io::Result<Vec<PartFile>> {
     if !root.is_dir() {
         // A single file: read it whatever its metadata says it is; the reader tells.
         std::fs::metadata(root)?;
-        let name = root.file_name().map_or_else(
-            || root.display().to_string(),
-            |n| n.to_string_lossy().into_owned(),
-        );
+        let name = super::file_label(root);
         // A file taken from a partitioned folder keeps the values its folders give it.
         let partition = folder_partition(root, 1);
         return Ok(vec![PartFile {

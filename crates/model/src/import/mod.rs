@@ -229,15 +229,22 @@ pub fn import_market(
     }
 }
 
+/// A market's name in messages and its provenance: the file's (or folder's) name, or the whole
+/// path when it has none.
+#[must_use]
+pub fn file_label(path: &Path) -> String {
+    path.file_name().map_or_else(
+        || path.display().to_string(),
+        |n| n.to_string_lossy().into_owned(),
+    )
+}
+
 /// Reads and imports a CSV file.
 pub fn import_csv_file(
     path: &Path,
     options: &ImportOptions,
 ) -> Result<(Market, ImportReport), ImportError> {
-    let file = path.file_name().map_or_else(
-        || path.display().to_string(),
-        |n| n.to_string_lossy().into_owned(),
-    );
+    let file = file_label(path);
     let bytes = read_whole_file(path).map_err(|source| ImportError::Io {
         file: file.clone(),
         source,

@@ -41,10 +41,7 @@ pub fn import_parquet(
     options: &ImportOptions,
     wanted: &[(String, String)],
 ) -> Result<(Market, ImportReport), ImportError> {
-    let name = root.file_name().map_or_else(
-        || root.display().to_string(),
-        |n| n.to_string_lossy().into_owned(),
-    );
+    let name = super::file_label(root);
     let files = part_files(root).map_err(|source| ImportError::Io {
         file: name.clone(),
         source,
@@ -510,6 +507,8 @@ fn column_text(
 ) -> Result<Column, String> {
     let reading = reading_of(descr);
     let max_def = descr.max_def_level();
+    let unsigned =
+        matches!(descr.logical_type_ref(), Some(LogicalType::Integer(t)) if !t.is_signed);
     let mut out = StringChunkedBuilder::new(name, rows);
     match (reader, reading) {
         (ColumnReader::Int32ColumnReader(r), Reading::Date) => {
@@ -523,14 +522,13 @@ fn column_text(
             });
         }
         (ColumnReader::Int32ColumnReader(r), _) => {
-            let unsigned =
-                matches!(descr.logical_type_ref(), Some(LogicalType::Integer(t)) if !t.is_signed);
             fill(r, rows, max_def, &mut out, |v, s| {
-                if unsigned {
-                    let _ = write!(s, "{}", *v as u32);
+                let v = if unsigned {
+                    i128::from(*v as u32)
                 } else {
-                    let _ = write!(s, "{v}");
-                }
+                    i128::from(*v)
+                };
+                let _ = write!(s, "{v}");
             });
         }
         (ColumnReader::Int64ColumnReader(r), Reading::Timestamp(per_second)) => {
@@ -544,14 +542,13 @@ fn column_text(
             });
         }
         (ColumnReader::Int64ColumnReader(r), _) => {
-            let unsigned =
-                matches!(descr.logical_type_ref(), Some(LogicalType::Integer(t)) if !t.is_signed);
             fill(r, rows, max_def, &mut out, |v, s| {
-                if unsigned {
-                    let _ = write!(s, "{}", *v as u64);
+                let v = if unsigned {
+                    i128::from(*v as u64)
                 } else {
-                    let _ = write!(s, "{v}");
-                }
+                    i128::from(*v)
+                };
+                let _ = write!(s, "{v}");
             });
         }
         (ColumnReader::Int96ColumnReader(r), _) => {
