@@ -71,9 +71,11 @@ pub fn run(args: &BatchArgs) -> Result<()> {
         .parent()
         .map(std::path::Path::to_path_buf)
         .unwrap_or_default();
+    // The profiles are read once, for every claim row.
+    let profiles = crate::session::load_profiles(args.appraise.profiles.as_deref());
     let purposes: Vec<model::batch::RowPurpose> = rows
         .iter()
-        .map(|r| row_purpose(r, &folder, args.appraise.profiles.as_deref()))
+        .map(|r| row_purpose(r, &folder, &profiles))
         .collect();
     let appraised = appraise_all(
         &loaded.market,
@@ -142,7 +144,7 @@ pub fn progress_line(done: usize, total: usize, elapsed: std::time::Duration) ->
 fn row_purpose(
     row: &model::batch::SubjectRow,
     folder: &std::path::Path,
-    profiles: Option<&std::path::Path>,
+    profiles: &Result<model::worksheet::ProfileFile>,
 ) -> model::batch::RowPurpose {
     let Some(file) = &row.worksheet else {
         return Ok(model::session::Purpose::Value);

@@ -33,7 +33,12 @@ pub fn load_profiles(path: Option<&Path>) -> Result<ProfileFile> {
 fn read_ron<T: serde::de::DeserializeOwned>(path: &Path, what: &str) -> Result<T> {
     let text =
         std::fs::read_to_string(path).with_context(|| format!("cannot read {}", path.display()))?;
-    ron::from_str(&text).map_err(|e| {
+    parse_ron(&text, path, what)
+}
+
+/// RON text read from `path`, its errors naming the file, line and column.
+fn parse_ron<T: serde::de::DeserializeOwned>(text: &str, path: &Path, what: &str) -> Result<T> {
+    ron::from_str(text).map_err(|e| {
         anyhow!(
             "{what} {}:{}:{}: {}",
             path.display(),
@@ -54,43 +59,50 @@ pub fn purpose(args: &AppraiseArgs, request: &mut AppraisalRequest) -> Result<Pu
     if let Some(path) = &args.claim {
         let inputs: ClaimInputs = read_ron(path, "claim worksheet")?;
         let profiles = load_profiles(args.profiles.as_deref())?;
-        let profile = profiles.get(&inputs.profile_id).cloned().ok_or_else(|| {
-            anyhow!(
-                "claim worksheet {}: no profile \"{}\"; the profiles are {}",
-                path.display(),
-                inputs.profile_id,
-                profiles
-                    .profiles
-                    .iter()
-                    .map(|p| p.id.as_str())
-                    .collect::<Vec<_>>()
-                    .join(", ")
-            )
-        })?;
-        request.rules = profile.comparable_rules(&request.rules);
-        return Ok(Purpose::Claim { profile, inputs });
+        let purpose = claim_purpose(path, inputs, &profiles)?;
+        if let Purpose::Claim { profile, .. } = &purpose {
+            request.rules = profile.comparable_rules(&request.rules);
+        }
+        return Ok(purpose);
     }
     Ok(Purpose::Value)
 }
 
-/// A worksheet file read as the purpose it states: a claim worksheet names its profile, a
-/// trade-in worksheet does not.
-pub fn read_worksheet(path: &Path, profiles: Option<&Path>) -> Result<Purpose> {
+/// A claim worksheet's purpose with its profile, or an error naming the profiles there are.
+fn claim_purpose(path: &Path, inputs: ClaimInputs, profiles: &ProfileFile) -> Result<Purpose> {
+    let profile = profiles.get(&inputs.profile_id).cloned().ok_or_else(|| {
+        anyhow!(
+            "claim worksheet {}: no profile \"{}\"; the profiles are {}",
+            path.display(),
+            inputs.profile_id,
+            profiles
+                .profiles
+                .iter()
+                .map(|p| p.id.as_str())
+                .collect::<Vec<_>>()
+                .join(", ")
+        )
+    })?;
+    Ok(Purpose::Claim { profile, inputs })
+}
+
+/// A worksheet file read as the purpose it states: a claim worksheet names its profile (looked
+/// up in `profiles`), a trade-in worksheet does not.
+pub fn read_worksheet(path: &Path, profiles: &Result<ProfileFile>) -> Result<Purpose> {
     let text =
         std::fs::read_to_string(path).with_context(|| format!("cannot read {}", path.display()))?;
     if text.contains("profile_id") {
-        let inputs: ClaimInputs = read_ron(path, "claim worksheet")?;
-        let profiles = load_profiles(profiles)?;
-        let profile = profiles.get(&inputs.profile_id).cloned().ok_or_else(|| {
-            anyhow!(
-                "claim worksheet {}: no profile \"{}\"",
-                path.display(),
-                inputs.profile_id
-            )
-        })?;
-        Ok(Purpose::Claim { profile, inputs })
+        let inputs: ClaimInputs = parse_ron(&text, path, "claim worksheet")?;
+        let profiles = profiles
+            .as_ref()
+            .map_err(|e| anyhow!("the jurisdiction profiles cannot be read: {e:#}"))?;
+        claim_purpose(path, inputs, profiles)
     } else {
-        Ok(Purpose::TradeIn(read_ron(path, "trade-in worksheet")?))
+        Ok(Purpose::TradeIn(parse_ron(
+            &text,
+            path,
+            "trade-in worksheet",
+        )?))
     }
 }
 
