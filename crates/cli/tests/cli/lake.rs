@@ -127,6 +127,38 @@ fn a_converted_market_values_the_subject_as_its_csv_and_its_sessions_reproduce()
         "{}",
         String::from_utf8_lossy(&check.stdout)
     );
+    // A batch on the folder reads only its subjects' models, and its sessions find the folder
+    // again as it was read (two models' files in the fingerprint).
+    let subjects = dir.join("subjects.csv");
+    std::fs::write(
+        &subjects,
+        "id,year,make,model,variant,miles\n\
+         A,2022,Quellmark,Tessel,Ambrel,41000\n\
+         B,2021,Orvane,Kestrel,Cressin,52000\n",
+    )
+    .unwrap();
+    let sessions = dir.join("batch-sessions");
+    let doc = json(&[
+        "batch",
+        path(&lake),
+        "--subjects",
+        path(&subjects),
+        "--sessions",
+        path(&sessions),
+        "--json",
+    ]);
+    assert_eq!(doc["valued"], 2, "{doc}");
+    for id in ["A", "B"] {
+        let check = comptrail(&[
+            "appraise",
+            "--session",
+            path(&sessions.join(format!("{id}.ron"))),
+        ]);
+        let said = String::from_utf8_lossy(&check.stdout);
+        assert!(check.status.success(), "{id}: {said}");
+        assert!(said.contains("unchanged at"), "{id}: {said}");
+    }
+
     // Another model's file may change without making this session's market stale …
     let other = lake.join("make=Orvane/model=Kestrel/part-00000.parquet");
     let bytes = std::fs::read(&other).unwrap();
