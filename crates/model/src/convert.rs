@@ -144,7 +144,17 @@ pub fn convert_csv(
         };
         carry = chunk.split_off(cut);
         let lines_in_block = memchr::memchr_iter(b'\n', &chunk).count() as u64;
-        if !chunk.iter().all(u8::is_ascii_whitespace) || whole.file_name.is_empty() {
+        let blank = chunk.iter().all(u8::is_ascii_whitespace);
+        if blank && !whole.file_name.is_empty() {
+            // A block of nothing but blank lines: counted as the whole file's import counts
+            // them (each line, the last one even without its line break).
+            let mut lines = chunk.split(|&b| b == b'\n').count();
+            if chunk.last() == Some(&b'\n') {
+                lines -= 1;
+            }
+            whole.blank_lines += lines;
+        }
+        if !blank || whole.file_name.is_empty() {
             let mut bytes = header.clone().unwrap_or_default();
             bytes.extend_from_slice(&chunk);
             let shift = next_line - 2;
@@ -601,6 +611,10 @@ mod tests {
         let text = String::from_utf8(crate::demo::demo_csv_bytes(rows, 5)).unwrap_or_default();
         let mut out = String::new();
         for (i, line) in text.lines().enumerate() {
+            if i == rows / 2 {
+                // More blank lines than one block holds: a block of nothing else.
+                out.push_str(&"  \n".repeat(30_000));
+            }
             let mut fields: Vec<String> = line.split(',').map(str::to_owned).collect();
             if i > 0 {
                 match i % 97 {
@@ -655,6 +669,8 @@ mod tests {
         );
         assert_eq!(done.report.dropped_values, csv_report.dropped_values);
         assert_eq!(done.report.rows_read, csv_report.rows_read);
+        assert!(csv_report.blank_lines >= 30_000);
+        assert_eq!(done.report.blank_lines, csv_report.blank_lines);
         // Converting again into the same folder is refused rather than mixing two datasets.
         assert!(matches!(
             convert_csv(&csv, &out, &options, 40_000),
