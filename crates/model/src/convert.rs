@@ -146,13 +146,7 @@ pub fn convert_csv(
         let lines_in_block = memchr::memchr_iter(b'\n', &chunk).count() as u64;
         let blank = chunk.iter().all(u8::is_ascii_whitespace);
         if blank && !whole.file_name.is_empty() {
-            // A block of nothing but blank lines: counted as the whole file's import counts
-            // them (each line, the last one even without its line break).
-            let mut lines = chunk.split(|&b| b == b'\n').count();
-            if chunk.last() == Some(&b'\n') {
-                lines -= 1;
-            }
-            whole.blank_lines += lines;
+            whole.blank_lines += blank_lines_in(&chunk);
         }
         if !blank || whole.file_name.is_empty() {
             let mut bytes = header.clone().unwrap_or_default();
@@ -263,6 +257,17 @@ pub fn demo_lake(rows: usize, seed: u64, out: &Path) -> Result<Conversion, Conve
         rows_written,
         partitions: folders.len(),
     })
+}
+
+/// The lines of a block of nothing but blank lines, counted as the whole file's import counts
+/// them (each line, the last one even without its line break).
+fn blank_lines_in(chunk: &[u8]) -> usize {
+    let lines = chunk.split(|&b| b == b'\n').count();
+    if chunk.last() == Some(&b'\n') {
+        lines - 1
+    } else {
+        lines
+    }
 }
 
 /// Reads until `buf` is full or the file ends; returns the bytes read.
