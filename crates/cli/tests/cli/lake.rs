@@ -176,6 +176,24 @@ fn a_converted_market_values_the_subject_as_its_csv_and_its_sessions_reproduce()
 }
 
 #[test]
+fn convert_prints_what_it_wrote_as_json() {
+    // The same as JSON, with the documented keys.
+    let dir = scratch("convert-json");
+    let csv = repo("assets/demo-market.csv");
+    let json_out = dir.join("lake");
+    let doc = json(&["convert", &csv, "--out", path(&json_out), "--json"]);
+    assert_eq!(doc["rows_written"], 2_000);
+    assert_eq!(doc["partitions"], 3);
+    assert_eq!(doc["import"]["rows_read"], 2_000);
+    let files = doc["files"].as_array().unwrap();
+    assert_eq!(files.len(), 3);
+    let rows: u64 = files.iter().map(|f| f["rows"].as_u64().unwrap()).sum();
+    assert_eq!(rows, 2_000);
+    assert!(json_out.join(files[0]["file"].as_str().unwrap()).is_file());
+    std::fs::remove_dir_all(&dir).ok();
+}
+
+#[test]
 fn an_engine_reads_what_convert_wrote_and_comptrail_reads_what_the_engine_wrote() {
     let Some(script) = engine() else {
         return;
