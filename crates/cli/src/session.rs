@@ -86,23 +86,24 @@ fn claim_purpose(path: &Path, inputs: ClaimInputs, profiles: &ProfileFile) -> Re
     Ok(Purpose::Claim { profile, inputs })
 }
 
-/// A worksheet file read as the purpose it states: a claim worksheet names its profile (looked
-/// up in `profiles`), a trade-in worksheet does not.
+/// A worksheet file read as the purpose it states: a claim worksheet (it names its profile,
+/// looked up in `profiles`) or else a trade-in worksheet. When it reads as neither, the error
+/// is the claim's if the text names a profile, the trade-in's otherwise.
 pub fn read_worksheet(path: &Path, profiles: &Result<ProfileFile>) -> Result<Purpose> {
     let text =
         std::fs::read_to_string(path).with_context(|| format!("cannot read {}", path.display()))?;
-    if text.contains("profile_id") {
-        let inputs: ClaimInputs = parse_ron(&text, path, "claim worksheet")?;
-        let profiles = profiles
-            .as_ref()
-            .map_err(|e| anyhow!("the jurisdiction profiles cannot be read: {e:#}"))?;
-        claim_purpose(path, inputs, profiles)
-    } else {
-        Ok(Purpose::TradeIn(parse_ron(
-            &text,
-            path,
-            "trade-in worksheet",
-        )?))
+    match parse_ron::<ClaimInputs>(&text, path, "claim worksheet") {
+        Ok(inputs) => {
+            let profiles = profiles
+                .as_ref()
+                .map_err(|e| anyhow!("the jurisdiction profiles cannot be read: {e:#}"))?;
+            claim_purpose(path, inputs, profiles)
+        }
+        Err(claim_error) => match parse_ron(&text, path, "trade-in worksheet") {
+            Ok(inputs) => Ok(Purpose::TradeIn(inputs)),
+            Err(_) if text.contains("profile_id") => Err(claim_error),
+            Err(trade_in_error) => Err(trade_in_error),
+        },
     }
 }
 

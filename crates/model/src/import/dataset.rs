@@ -178,31 +178,32 @@ pub fn unescape(text: &str) -> String {
     String::from_utf8(out).unwrap_or_else(|_| text.to_owned())
 }
 
-/// Which files the makes and models in `wanted` need (every file when `wanted` is empty): those
-/// whose `make` and `model` partitions (when the layout has them) name one of them, compared
-/// without case or spacing; files without such folders may hold any model and are always read.
+/// The indexes (into `files`) of the files the makes and models in `wanted` need (every file
+/// when `wanted` is empty): those whose `make` and `model` partitions (when the layout has them)
+/// name one of them, compared without case or spacing; files without such folders may hold any
+/// model and are always read.
 #[must_use]
-pub fn files_for<'f>(
-    files: &'f [PartFile],
+pub fn files_for(
+    files: &[PartFile],
     is_make: &dyn Fn(&str) -> bool,
     is_model: &dyn Fn(&str) -> bool,
     wanted: &[(String, String)],
-) -> Vec<&'f PartFile> {
+) -> Vec<usize> {
     if wanted.is_empty() {
-        return files.iter().collect();
+        return (0..files.len()).collect();
     }
     let keys: Vec<(String, String)> = wanted
         .iter()
         .map(|(make, model)| (name_key(make), name_key(model)))
         .collect();
-    files
-        .iter()
-        .filter(|f| {
-            let fits = |v: Option<Option<&str>>, want: &str| match v {
-                None => true,
-                Some(None) => false,
-                Some(Some(v)) => name_key(v) == want,
-            };
+    let fits = |v: Option<Option<&str>>, want: &str| match v {
+        None => true,
+        Some(None) => false,
+        Some(Some(v)) => name_key(v) == want,
+    };
+    (0..files.len())
+        .filter(|&i| {
+            let f = &files[i];
             keys.iter().any(|(make, model)| {
                 fits(f.value_of(is_make), make) && fits(f.value_of(is_model), model)
             })
@@ -308,7 +309,7 @@ mod tests {
             &want("QUELLMARK", "  tessel"),
         );
         assert_eq!(chosen.len(), 2);
-        assert!(chosen.iter().all(|f| f.relative.contains("Tessel")));
+        assert!(chosen.iter().all(|&i| files[i].relative.contains("Tessel")));
         let none = files_for(&files, &is("make"), &is("model"), &want("Orb", "Orb"));
         assert!(none.is_empty(), "a null make is no make");
         assert_eq!(files_for(&files, &is("make"), &is("model"), &[]).len(), 4);

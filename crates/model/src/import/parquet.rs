@@ -70,11 +70,7 @@ pub fn import_parquet(
         first_row.push(next);
         next += n;
     }
-    let index_of = |f: &PartFile| files.iter().position(|g| g.relative == f.relative);
-    let jobs: Vec<(usize, &PartFile)> = chosen
-        .iter()
-        .filter_map(|f| index_of(f).map(|i| (i, *f)))
-        .collect();
+    let jobs: Vec<(usize, &PartFile)> = chosen.iter().map(|&i| (i, &files[i])).collect();
     let read = read_files(&jobs, &first_row, *options)?;
     let mut hashes: Vec<Option<u64>> = vec![None; files.len()];
     let mut market = Market::default();
@@ -106,10 +102,10 @@ pub fn import_parquet(
             report: Box::new(report),
         });
     }
-    let pruned = report.parts_skipped > 0
-        || files
-            .iter()
-            .any(|f| f.value_of(&is_make).is_some() || f.value_of(&is_model).is_some());
+    // Read for the models asked for only when the folders name makes or models at all.
+    let pruned = files
+        .iter()
+        .any(|f| f.value_of(&is_make).is_some() || f.value_of(&is_model).is_some());
     market.source = MarketSource {
         file_name: name,
         rows_read: report.rows_read,
@@ -213,16 +209,14 @@ pub fn parquet_fingerprint(
         source,
     })?;
     let (is_make, is_model) = (is_field(Field::Make), is_field(Field::Model));
-    let chosen = files_for(&files, &is_make, &is_model, models_read);
     let mut hashes = vec![None; files.len()];
-    for (i, f) in files.iter().enumerate() {
-        if chosen.iter().any(|c| c.relative == f.relative) {
-            let bytes = std::fs::read(&f.path).map_err(|source| ImportError::Io {
-                file: f.relative.clone(),
-                source,
-            })?;
-            hashes[i] = Some(xxhash_rust::xxh3::xxh3_64(&bytes));
-        }
+    for i in files_for(&files, &is_make, &is_model, models_read) {
+        let f = &files[i];
+        let bytes = std::fs::read(&f.path).map_err(|source| ImportError::Io {
+            file: f.relative.clone(),
+            source,
+        })?;
+        hashes[i] = Some(xxhash_rust::xxh3::xxh3_64(&bytes));
     }
     Ok(fingerprint(&files, &hashes))
 }
