@@ -45,11 +45,15 @@ pub fn run(args: &BatchArgs) -> Result<()> {
         .filter_map(|r| r.subject.as_ref().ok())
         .map(|s| (s.make.clone(), s.model.clone()))
         .collect();
-    wanted.sort();
-    wanted.dedup_by(|a, b| {
-        model::vocabulary::name_key(&a.0) == model::vocabulary::name_key(&b.0)
-            && model::vocabulary::name_key(&a.1) == model::vocabulary::name_key(&b.1)
-    });
+    // Once per model however it is spelled (names are matched by their key).
+    let key = |(make, model): &(String, String)| {
+        (
+            model::vocabulary::name_key(make),
+            model::vocabulary::name_key(model),
+        )
+    };
+    wanted.sort_by_cached_key(key);
+    wanted.dedup_by(|a, b| key(a) == key(b));
     let loaded = crate::load::load_market(market_args, &wanted)?;
     let settings = crate::load::fit_settings(market_args)?;
     let overrides = crate::load::overrides(market_args);
